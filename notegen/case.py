@@ -1,0 +1,169 @@
+"""The validated case: what every later stage reads.
+
+Every number here is in the conventional unit of its field (see `CANONICAL_UNITS`),
+whatever unit the user reported it in; `Case.measurements` keeps what was reported.
+A value that was not given is `None`, never a default.
+"""
+
+from __future__ import annotations
+
+from datetime import datetime
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict
+
+Sex = Literal["female", "male"]
+Sample = Literal["arterial", "venous"]
+Volume = Literal["low", "normal", "high", "unknown"]
+UnitSystem = Literal["conventional", "si"]
+
+# The unit every value is held in after validation (conventional units).
+CANONICAL_UNITS: dict[str, str] = {
+    "gas.ph": "",
+    "gas.pco2": "mmHg",
+    "gas.hco3": "mmol/L",
+    "gas.po2": "mmHg",
+    "chem.na": "mmol/L",
+    "chem.k": "mmol/L",
+    "chem.cl": "mmol/L",
+    "chem.tco2": "mmol/L",
+    "chem.bun": "mg/dL",
+    "chem.creatinine": "mg/dL",
+    "chem.glucose": "mg/dL",
+    "chem.albumin": "g/dL",
+    "chem.ca": "mg/dL",
+    "chem.ionized_ca": "mmol/L",
+    "chem.mg": "mg/dL",
+    "chem.phos": "mg/dL",
+    "chem.lactate": "mmol/L",
+    "chem.osm": "mOsm/kg",
+    "urine.na": "mmol/L",
+    "urine.k": "mmol/L",
+    "urine.cl": "mmol/L",
+    "urine.creatinine": "mg/dL",
+    "urine.ph": "",
+    "urine.osm": "mOsm/kg",
+    "urine.calcium": "mg/dL",
+}
+
+_FROZEN = ConfigDict(frozen=True, extra="forbid")
+
+
+class Measurement(BaseModel):
+    """One reported value: as reported, and as converted to the canonical unit."""
+
+    model_config = _FROZEN
+
+    field: str  # dotted case path, e.g. "chem.k"
+    value: float  # in `unit`, the canonical unit of the field
+    unit: str
+    reported_value: float
+    reported_unit: str
+    qualifier: Literal["<", ">"] | None = None  # "<10" is held as value 10, qualifier "<"
+    taken_at: datetime | None = None
+    source: str = "case file"  # e.g. "case file", "paste line 4", "FHIR Observation/obs-3", "--set"
+
+
+class Patient(BaseModel):
+    model_config = _FROZEN
+
+    age: float | None = None
+    sex: Sex | None = None
+    weight_kg: float | None = None
+    height_cm: float | None = None
+
+
+class Gas(BaseModel):
+    model_config = _FROZEN
+
+    sample: Sample | None = None  # None: not stated (read as arterial, with a caution)
+    ph: float | None = None
+    pco2: float | None = None
+    hco3: float | None = None
+    po2: float | None = None
+    taken_at: datetime | None = None
+
+
+class Chem(BaseModel):
+    model_config = _FROZEN
+
+    na: float | None = None
+    k: float | None = None
+    cl: float | None = None
+    tco2: float | None = None
+    bun: float | None = None  # urea given in SI is converted to BUN (mg/dL urea nitrogen)
+    creatinine: float | None = None
+    glucose: float | None = None
+    albumin: float | None = None
+    ca: float | None = None
+    ionized_ca: float | None = None
+    mg: float | None = None
+    phos: float | None = None
+    lactate: float | None = None
+    osm: float | None = None
+    taken_at: datetime | None = None
+
+
+class Urine(BaseModel):
+    model_config = _FROZEN
+
+    na: float | None = None
+    k: float | None = None
+    cl: float | None = None
+    creatinine: float | None = None
+    ph: float | None = None
+    osm: float | None = None
+    calcium: float | None = None
+    taken_at: datetime | None = None
+
+
+class BloodPressure(BaseModel):
+    model_config = _FROZEN
+
+    systolic: int
+    diastolic: int
+
+
+class Medication(BaseModel):
+    """A medication as written, with the classes the vocabulary maps it to."""
+
+    model_config = _FROZEN
+
+    name: str  # as written by the user
+    generic: str | None = None  # the vocabulary's generic name; None when unrecognised
+    classes: tuple[str, ...] = ()  # e.g. ("loop_diuretic",); empty when unrecognised
+    last_dose_hours: float | None = None  # hours since the last dose, when known
+
+    @property
+    def recognised(self) -> bool:
+        return self.generic is not None
+
+
+class Context(BaseModel):
+    model_config = _FROZEN
+
+    bp: BloodPressure | None = None
+    volume: Volume = "unknown"
+    meds: tuple[Medication, ...] = ()
+    findings: tuple[str, ...] = ()  # canonical finding ids, e.g. "vomiting"
+
+
+class Case(BaseModel):
+    """A validated case. Sections hold the latest complete set when results are serial."""
+
+    model_config = _FROZEN
+
+    label: str | None = None
+    units: UnitSystem = "conventional"
+    patient: Patient = Patient()
+    gas: Gas = Gas()
+    chem: Chem = Chem()
+    urine: Urine = Urine()
+    context: Context = Context()
+    measurements: tuple[Measurement, ...] = ()
+    # Earlier results, oldest first, when the case holds serial samples.
+    earlier_gas: tuple[Gas, ...] = ()
+    earlier_chem: tuple[Chem, ...] = ()
+    earlier_urine: tuple[Urine, ...] = ()
+    # What was given but not used, and why (unrecognised medications or findings, stale values ...).
+    notices: tuple[str, ...] = ()

@@ -1,0 +1,126 @@
+"""The one exception tree of notegen.
+
+    NotegenError                 exit 1: anything we did not foresee
+     ├── InputError              exit 2: the user's input cannot be used
+     │    ├── CaseFileError      the case file cannot be read or parsed (file, line, column)
+     │    ├── CaseValueError     a field has a wrong type, unit or implausible value (field path)
+     │    └── PasteError         a pasted lab block cannot be used (line)
+     ├── UsageError              exit 2: the command line itself is wrong
+     ├── RulePackError           exit 2: a rule pack fails its load-time checks (file, line, rule id)
+     └── TemplateError           exit 2: a note template fails to compile or render (template, line)
+
+Every error carries where it happened, so the message can say what to fix.
+"""
+
+from __future__ import annotations
+
+
+class NotegenError(Exception):
+    """Base of every error notegen raises on purpose."""
+
+    exit_code = 1
+
+    def __init__(self, message: str) -> None:
+        super().__init__(message)
+        self.message = message
+
+    def __str__(self) -> str:
+        return self.message
+
+
+class InputError(NotegenError):
+    """The input (case file, paste, FHIR bundle, --set value) cannot be used."""
+
+    exit_code = 2
+
+
+class CaseFileError(InputError):
+    """A case file cannot be read or parsed."""
+
+    def __init__(
+        self,
+        message: str,
+        *,
+        filename: str | None = None,
+        line: int | None = None,
+        column: int | None = None,
+    ) -> None:
+        self.filename = filename
+        self.line = line
+        self.column = column
+        where = filename or "<input>"
+        if line is not None:
+            where += f", line {line}"
+            if column is not None:
+                where += f", column {column}"
+        super().__init__(f"{where}: {message}")
+
+
+class CaseValueError(InputError):
+    """One or more fields of a case hold unusable values.
+
+    `problems` holds one `(field_path, message)` pair per bad field, so a user
+    fixing a file sees every problem at once rather than one per run.
+    """
+
+    def __init__(self, problems: list[tuple[str, str]], *, filename: str | None = None) -> None:
+        self.problems = problems
+        self.filename = filename
+        head = f"{filename}: " if filename else ""
+        if len(problems) == 1:
+            path, text = problems[0]
+            message = f"{head}field `{path}`: {text}"
+        else:
+            lines = [f"{head}{len(problems)} fields cannot be used:"]
+            lines += [f"  - field `{path}`: {text}" for path, text in problems]
+            message = "\n".join(lines)
+        super().__init__(message)
+
+
+class PasteError(InputError):
+    """A pasted lab block cannot be used."""
+
+    def __init__(self, message: str, *, line: int | None = None, source: str | None = None) -> None:
+        self.line = line
+        self.source = source
+        where = source or "paste"
+        if line is not None:
+            where += f", line {line}"
+        super().__init__(f"{where}: {message}")
+
+
+class UsageError(NotegenError):
+    """The command line is wrong (conflicting or missing options)."""
+
+    exit_code = 2
+
+
+class RulePackError(NotegenError):
+    """A rule pack fails to load or fails a load-time check.
+
+    `problems` lists `(filename, line, message)`; every one is reported.
+    """
+
+    exit_code = 2
+
+    def __init__(self, problems: list[tuple[str, int | None, str]]) -> None:
+        self.problems = problems
+        lines = []
+        for filename, line, text in problems:
+            where = filename if line is None else f"{filename}:{line}"
+            lines.append(f"{where}: {text}")
+        super().__init__("\n".join(lines))
+
+
+class TemplateError(NotegenError):
+    """A note template fails to compile or to render."""
+
+    exit_code = 2
+
+    def __init__(self, message: str, *, template: str | None = None, line: int | None = None) -> None:
+        self.template = template
+        self.line = line
+        where = template or "<template>"
+        if line is not None:
+            where += f", line {line}"
+        super().__init__(f"{where}: {message}")

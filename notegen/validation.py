@@ -1,0 +1,518 @@
+"""Plain case data (from a case file, a paste, FHIR or --set) -> the validated `Case`.
+
+Every problem is collected with its field path and reported at once. A value is never
+converted from a unit that was not stated or implied by the case's unit system, and a
+value that fits another unit better is refused with the suggestion, never converted.
+"""
+
+from __future__ import annotations
+
+import difflib
+import re
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from datetime import datetime, timedelta
+from typing import Any
+
+from . import units as u
+from . import vocabulary as vocab
+from .case import (
+    BloodPressure,
+    Case,
+    Chem,
+    Context,
+    Gas,
+    Measurement,
+    Medication,
+    Patient,
+    Urine,
+)
+from .errors import CaseFileError, CaseValueError
+
+TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
+LAB_SECTIONS: dict[str, tuple[str, ...]] = {
+    "gas": ("ph", "pco2", "hco3", "po2"),
+    "chem": (
+        "na", "k", "cl", "tco2", "bun", "creatinine", "glucose", "albumin",
+        "ca", "ionized_ca", "mg", "phos", "lactate", "osm",
+    ),
+    "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium"),
+}
+PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
+CONTEXT_KEYS = ("bp", "volume", "meds", "findings")
+MAX_TEXT = 500
+MAX_MEDICATIONS = 200
+DEFAULT_WINDOW_HOURS = 24.0
+
+_SEX = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
+_VOLUME = {
+    "low": "low", "hypovolemic": "low", "depleted": "low", "contracted": "low",
+    "normal": "normal", "euvolemic": "normal",
+    "high": "high", "hypervolemic": "high", "overloaded": "high",
+    "unknown": "unknown",
+}
+_VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
+
+
+def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:
+    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+    hint = f"; did you mean `{close[0]}`?" if close else ""
+    return f"not a known key{hint} (known: {', '.join(choices)})"
+
+
+def _fmt(value: float) -> str:
+    return f"{value:.4g}"
+
+
+@dataclass
+class _Collector:
+    system: str
+    filename: str | None
+    provenance: Mapping[str, str]
+    default_source: str
+    problems: list[tuple[str, str]] = field(default_factory=list)
+    measurements: list[Measurement] = field(default_factory=list)
+    notices: list[str] = field(default_factory=list)
+
+    def problem(self, path: str, text: str) -> None:
+        self.problems.append((path, text))
+
+    def source(self, path: str) -> str:
+        return self.provenance.get(path, self.default_source)
+
+
+def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> tuple[float, str, str | None] | None:
+    """Return (number, canonical unit spelling, qualifier) or record a problem."""
+    qualifier: str | None = None
+    unit_text: str | None = None
+    if isinstance(raw, bool) or raw is None:
+        col.problem(path, f"expected a number, got {raw!r}")
+        return None
+    if isinstance(raw, int | float):
+        number = float(raw)
+    elif isinstance(raw, str):
+        match = _VALUE_TEXT.match(raw)
+        if not match:
+            col.problem(path, f"{raw[:60]!r} is not a number with an optional unit (e.g. \"6.2 kPa\")")
+            return None
+        number, unit_text, qualifier = float(match["num"]), match["unit"], match["q"]
+    elif isinstance(raw, Mapping):
+        extra = set(raw) - {"value", "unit", "qualifier"}
+        if extra or "value" not in raw:
+            col.problem(path, "a value mapping takes `value`, and optionally `unit` and `qualifier` (< or >)")
+            return None
+        inner = raw["value"]
+        if isinstance(inner, bool) or not isinstance(inner, int | float):
+            col.problem(path, f"`value` must be a number, got {inner!r}")
+            return None
+        number = float(inner)
+        unit_text = raw.get("unit")
+        qualifier = raw.get("qualifier")
+        if qualifier not in (None, "<", ">"):
+            col.problem(path, f"`qualifier` must be < or >, got {qualifier!r}")
+            return None
+        if unit_text is not None and not isinstance(unit_text, str):
+            col.problem(path, f"`unit` must be text, got {unit_text!r}")
+            return None
+    else:
+        col.problem(path, f"expected a number, a text such as \"6.2 kPa\" or a mapping {{value, unit}}, got a {type(raw).__name__}")
+        return None
+    if number != number or number in (float("inf"), float("-inf")):
+        col.problem(path, "is not a finite number")
+        return None
+    accepted = u.accepted_units(field_name)
+    if not unit_text:
+        unit = u.default_unit(field_name, col.system)
+    else:
+        normal = u.normalise_unit(unit_text)
+        if normal is None or normal not in accepted:
+            shown = ", ".join(a or "(no unit)" for a in accepted)
+            col.problem(path, f"unit {unit_text!r} is not accepted here (accepted: {shown})")
+            return None
+        unit = normal
+    return number, unit, qualifier
+
+
+def _check_plausible(number: float, unit: str, path: str, field_name: str, col: _Collector) -> float | None:
+    info = vocab.fields()[field_name]
+    canonical = u.to_canonical(field_name, number, unit)
+    if info.low <= canonical <= info.high:
+        return canonical
+    canon_unit = u.FIELD_UNITS[field_name].canonical
+    shown = f"{_fmt(number)} {unit}".strip()
+    expected = f"expected {_fmt(info.low)} to {_fmt(info.high)} {canon_unit}".rstrip()
+    for other in u.accepted_units(field_name):
+        if other == unit:
+            continue
+        alternative = u.to_canonical(field_name, number, other)
+        if info.low <= alternative <= info.high and abs(alternative - canonical) > 1e-9:
+            col.problem(
+                path,
+                f"{shown} is not a plausible {info.label} ({expected}); did you mean "
+                f"{_fmt(number)} {other} ({_fmt(alternative)} {canon_unit})? Give the unit explicitly.",
+            )
+            return None
+    col.problem(path, f"{shown} is not a plausible {info.label} ({expected})")
+    return None
+
+
+def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
+    if raw is None:
+        return None
+    if isinstance(raw, datetime):
+        return raw
+    if isinstance(raw, str):
+        try:
+            return datetime.fromisoformat(raw.strip().replace("Z", "+00:00"))
+        except ValueError:
+            pass
+    col.problem(path, f"{str(raw)[:60]!r} is not an ISO date-time such as 2026-03-14T06:30")
+    return None
+
+
+def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:
+    if not isinstance(raw, Mapping):
+        col.problem(path, f"expected a mapping of values, got a {type(raw).__name__}")
+        return None
+    names = LAB_SECTIONS[section]
+    allowed = (*names, "taken_at") + (("sample",) if section == "gas" else ()) + (
+        ("urea",) if section == "chem" else ()
+    )
+    values: dict[str, Any] = {}
+    for key, item in raw.items():
+        key_path = f"{path}.{key}"
+        if key not in allowed:
+            col.problem(key_path, _did_you_mean(str(key), list(allowed)))
+            continue
+        if item is None:
+            continue
+        if key == "taken_at":
+            values["taken_at"] = _parse_time(item, key_path, col)
+        elif key == "sample":
+            sample = str(item).strip().lower()
+            if sample not in ("arterial", "venous"):
+                col.problem(key_path, f"{item!r} is not arterial or venous")
+            else:
+                values["sample"] = sample
+        else:
+            values[key] = item
+    if section == "chem" and "urea" in values and "bun" in values:
+        col.problem(f"{path}.urea", "give either `bun` or `urea`, not both")
+        return None
+    taken_at = values.get("taken_at")
+    out: dict[str, Any] = {k: v for k, v in values.items() if k in ("taken_at", "sample")}
+    for key in [k for k in values if k not in ("taken_at", "sample")]:
+        field_name = f"{section}.bun" if key == "urea" else f"{section}.{key}"
+        key_path = f"{path}.{key}"
+        parsed = _parse_lab_value(values[key], key_path, field_name, col)
+        if parsed is None:
+            continue
+        number, unit, qualifier = parsed
+        reported_unit = unit
+        if key == "urea":
+            reported_unit = f"{unit} urea"
+            if unit == "mg/dL":  # urea mass, not urea nitrogen
+                number_bun = number * u.UREA_MG_DL_TO_BUN_MG_DL
+                canonical = _check_plausible(number_bun, "mg/dL", key_path, field_name, col)
+            else:
+                canonical = _check_plausible(number, unit, key_path, field_name, col)
+        else:
+            canonical = _check_plausible(number, unit, key_path, field_name, col)
+        if canonical is None:
+            continue
+        out["bun" if key == "urea" else key] = canonical
+        col.measurements.append(
+            Measurement(
+                field=field_name,
+                value=canonical,
+                unit=u.FIELD_UNITS[field_name].canonical,
+                reported_value=number,
+                reported_unit=reported_unit,
+                qualifier=qualifier,  # type: ignore[arg-type]
+                taken_at=taken_at,
+                source=col.source(key_path),
+            )
+        )
+    return out
+
+
+_MODELS: dict[str, type[Gas] | type[Chem] | type[Urine]] = {"gas": Gas, "chem": Chem, "urine": Urine}
+
+
+def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, list[dict[str, Any]]]) -> None:
+    if isinstance(raw, list):
+        if not raw:
+            return
+        parsed = [_lab_entry(section, item, f"{section}[{i}]", col) for i, item in enumerate(raw)]
+        good = [p for p in parsed if p is not None]
+        if len(good) > 1 and any(p.get("taken_at") is None for p in good):
+            col.problem(section, "serial results need `taken_at` on every entry, so the latest can be told apart")
+            return
+        by_time: dict[datetime, dict[str, Any]] = {}
+        for p in good:
+            when = p["taken_at"]
+            if when in by_time:
+                earlier = by_time[when]
+                for key, value in p.items():
+                    if key != "taken_at" and key in earlier and abs(earlier[key] - value) > 1e-9:
+                        col.problem(
+                            f"{section}.{key}",
+                            f"two different values ({_fmt(earlier[key])} and {_fmt(value)}) at the same time "
+                            f"{when.isoformat()}; keep the one that is right",
+                        )
+                earlier.update(p)
+            else:
+                by_time[when] = dict(p)
+        entries[section] = [by_time[k] for k in sorted(by_time, key=_sort_key)]
+    elif raw is not None:
+        entry = _lab_entry(section, raw, section, col)
+        if entry is not None:
+            entries[section] = [entry]
+
+
+def _sort_key(when: datetime) -> float:
+    return when.timestamp() if when.tzinfo else when.replace(tzinfo=None).timestamp()
+
+
+def _choose_current(
+    entries: dict[str, list[dict[str, Any]]], window_hours: float, col: _Collector
+) -> tuple[dict[str, dict[str, Any]], dict[str, list[dict[str, Any]]]]:
+    current: dict[str, dict[str, Any]] = {}
+    earlier: dict[str, list[dict[str, Any]]] = {}
+    for section, items in entries.items():
+        chosen = len(items) - 1
+        if section == "gas":
+            complete = [i for i, e in enumerate(items) if "ph" in e and "pco2" in e]
+            if complete:
+                chosen = complete[-1]
+        current[section] = items[chosen]
+        earlier[section] = [e for i, e in enumerate(items) if i != chosen]
+        if len(items) > 1 and items[chosen].get("taken_at"):
+            col.notices.append(
+                f"{section}: {len(items)} results given; the latest complete one "
+                f"({items[chosen]['taken_at'].isoformat(timespec='minutes')}) is read, earlier ones feed the trend"
+            )
+    times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
+    if len(times) > 1:
+        try:
+            newest = max(times, key=_sort_key)
+            for section in list(current):
+                when = current[section].get("taken_at")
+                if when is not None and newest - when > timedelta(hours=window_hours):
+                    col.notices.append(
+                        f"{section} results from {when.isoformat(timespec='minutes')} are more than "
+                        f"{_fmt(window_hours)} hours older than the newest results and were not combined with them"
+                    )
+                    earlier[section].append(current.pop(section))
+        except TypeError:
+            col.problem("taken_at", "mixes times with and without a time zone; give all times the same way")
+    return current, earlier
+
+
+def _patient(raw: Any, col: _Collector) -> Patient:
+    if raw is None:
+        return Patient()
+    if not isinstance(raw, Mapping):
+        col.problem("patient", f"expected a mapping, got a {type(raw).__name__}")
+        return Patient()
+    values: dict[str, Any] = {}
+    bounds = {"age": (0, 120, "years"), "weight_kg": (1, 400, "kg"), "height_cm": (30, 260, "cm")}
+    for key, item in raw.items():
+        path = f"patient.{key}"
+        if key not in PATIENT_KEYS:
+            col.problem(path, _did_you_mean(str(key), PATIENT_KEYS))
+        elif item is None:
+            continue
+        elif key == "sex":
+            sex = _SEX.get(str(item).strip().lower())
+            if sex is None:
+                col.problem(path, f"{item!r} is not female or male")
+            values["sex"] = sex
+        elif isinstance(item, bool) or not isinstance(item, int | float):
+            col.problem(path, f"expected a number, got {item!r}")
+        else:
+            low, high, unit = bounds[key]
+            if not low <= item <= high:
+                col.problem(path, f"{item} {unit} is not plausible (expected {low} to {high})")
+            else:
+                values[key] = float(item)
+    age = values.get("age")
+    if age is not None and age < 18:
+        col.notices.append(f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind")
+    return Patient(**values)
+
+
+def _blood_pressure(raw: Any, col: _Collector) -> BloodPressure | None:
+    systolic = diastolic = None
+    if isinstance(raw, str):
+        match = re.fullmatch(r"\s*(\d{2,3})\s*/\s*(\d{2,3})\s*(mm ?hg)?\s*", raw, re.IGNORECASE)
+        if match:
+            systolic, diastolic = int(match[1]), int(match[2])
+    elif isinstance(raw, Mapping) and set(raw) == {"systolic", "diastolic"}:
+        if all(isinstance(v, int | float) and not isinstance(v, bool) for v in raw.values()):
+            systolic, diastolic = int(raw["systolic"]), int(raw["diastolic"])
+    if systolic is None or diastolic is None:
+        col.problem("context.bp", f"{str(raw)[:40]!r} is not a blood pressure such as \"168/98\" or {{systolic, diastolic}}")
+        return None
+    if not (40 <= systolic <= 300 and 20 <= diastolic <= 200 and diastolic < systolic):
+        col.problem("context.bp", f"{systolic}/{diastolic} mmHg is not a plausible blood pressure")
+        return None
+    return BloodPressure(systolic=systolic, diastolic=diastolic)
+
+
+def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
+    hours: float | None = None
+    if isinstance(raw, Mapping):
+        extra = set(raw) - {"name", "last_dose_hours"}
+        if extra or not isinstance(raw.get("name"), str):
+            col.problem(path, "a medication is a name, or a mapping {name, last_dose_hours}")
+            return None
+        name = raw["name"]
+        hours_raw = raw.get("last_dose_hours")
+        if hours_raw is not None:
+            if isinstance(hours_raw, bool) or not isinstance(hours_raw, int | float) or not 0 <= hours_raw <= 24 * 365:
+                col.problem(f"{path}.last_dose_hours", f"{hours_raw!r} is not a number of hours since the last dose")
+                return None
+            hours = float(hours_raw)
+    elif isinstance(raw, str):
+        name = raw
+    else:
+        col.problem(path, f"expected a medication name, got {raw!r}")
+        return None
+    name = name.strip()
+    if not name or len(name) > MAX_TEXT:
+        col.problem(path, "a medication name must be 1 to 500 characters")
+        return None
+    info = _lookup_drug(name)
+    if info is None:
+        col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
+        return Medication(name=name, last_dose_hours=hours)
+    return Medication(name=name, generic=info.generic, classes=info.classes, last_dose_hours=hours)
+
+
+def _lookup_drug(name: str) -> vocab.DrugInfo | None:
+    table = vocab.medications()
+    words = vocab.fold(name).split(" ")
+    # "furosemide 40 mg IV twice daily" -> the longest leading run of words that names a drug
+    for end in range(min(len(words), 4), 0, -1):
+        info = table.get(" ".join(words[:end]))
+        if info is not None:
+            return info
+    return None
+
+
+def _context(raw: Any, col: _Collector) -> Context:
+    if raw is None:
+        return Context()
+    if not isinstance(raw, Mapping):
+        col.problem("context", f"expected a mapping, got a {type(raw).__name__}")
+        return Context()
+    values: dict[str, Any] = {}
+    for key, item in raw.items():
+        path = f"context.{key}"
+        if key not in CONTEXT_KEYS:
+            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS))
+        elif item is None:
+            continue
+        elif key == "bp":
+            values["bp"] = _blood_pressure(item, col)
+        elif key == "volume":
+            volume = _VOLUME.get(str(item).strip().lower())
+            if volume is None:
+                col.problem(path, f"{item!r} is not one of low, normal, high, unknown")
+            else:
+                values["volume"] = volume
+        elif key == "meds":
+            items = [m.strip() for m in item.split(",")] if isinstance(item, str) else item
+            if not isinstance(items, list):
+                col.problem(path, "expected a list of medications")
+                continue
+            if len(items) > MAX_MEDICATIONS:
+                col.problem(path, f"{len(items)} medications is more than the {MAX_MEDICATIONS} notegen reads")
+                continue
+            meds = [_medication(m, f"{path}[{i}]", col) for i, m in enumerate(items)]
+            values["meds"] = tuple(m for m in meds if m is not None)
+        elif key == "findings":
+            items = [f.strip() for f in item.split(",")] if isinstance(item, str) else item
+            if not isinstance(items, list):
+                col.problem(path, "expected a list of findings")
+                continue
+            found: list[str] = []
+            table = vocab.findings()
+            for i, text in enumerate(items):
+                if not isinstance(text, str) or not text.strip() or len(text) > MAX_TEXT:
+                    col.problem(f"{path}[{i}]", "a finding must be a short text such as vomiting")
+                    continue
+                info = table.get(vocab.fold(text))
+                if info is None:
+                    col.notices.append(f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with")
+                elif info.id not in found:
+                    found.append(info.id)
+            values["findings"] = tuple(found)
+    return Context(**values)
+
+
+def validate_case(
+    data: Any,
+    *,
+    filename: str | None = None,
+    provenance: Mapping[str, str] | None = None,
+    default_source: str = "case file",
+    window_hours: float = DEFAULT_WINDOW_HOURS,
+) -> Case:
+    """Validate plain case data into a `Case`, or raise with every problem found."""
+    if data is None:
+        raise CaseFileError("the file is empty", filename=filename)
+    if not isinstance(data, Mapping):
+        kind = "a list" if isinstance(data, list) else f"a single {type(data).__name__} value"
+        raise CaseFileError(
+            f"a case file is a mapping of sections ({', '.join(TOP_KEYS)}), but this one holds {kind}",
+            filename=filename,
+        )
+    system = data.get("units", "conventional")
+    col = _Collector(
+        system="si" if system == "si" else "conventional",
+        filename=filename,
+        provenance=provenance or {},
+        default_source=default_source,
+    )
+    for key in data:
+        if key not in TOP_KEYS:
+            col.problem(str(key), _did_you_mean(str(key), TOP_KEYS))
+    if system not in ("conventional", "si"):
+        col.problem("units", f"{system!r} is not conventional or si")
+    label = data.get("case")
+    if label is not None:
+        if not isinstance(label, str | int | float) or isinstance(label, bool) or len(str(label)) > MAX_TEXT:
+            col.problem("case", "the case label must be a short text (at most 500 characters)")
+            label = None
+        else:
+            label = str(label)
+    entries: dict[str, list[dict[str, Any]]] = {}
+    for section in LAB_SECTIONS:
+        _lab_section(section, data.get(section), col, entries)
+    patient = _patient(data.get("patient"), col)
+    context = _context(data.get("context"), col)
+    if col.problems:
+        raise CaseValueError(col.problems, filename=filename)
+    current, earlier = _choose_current(entries, window_hours, col)
+    if col.problems:
+        raise CaseValueError(col.problems, filename=filename)
+
+    def build(section: str, values: dict[str, Any]) -> Any:
+        return _MODELS[section](**values)
+
+    return Case(
+        label=label,
+        units=col.system,  # type: ignore[arg-type]
+        patient=patient,
+        gas=build("gas", current.get("gas", {})),
+        chem=build("chem", current.get("chem", {})),
+        urine=build("urine", current.get("urine", {})),
+        context=context,
+        measurements=tuple(col.measurements),
+        earlier_gas=tuple(build("gas", e) for e in earlier.get("gas", [])),
+        earlier_chem=tuple(build("chem", e) for e in earlier.get("chem", [])),
+        earlier_urine=tuple(build("urine", e) for e in earlier.get("urine", [])),
+        notices=tuple(col.notices),
+    )
