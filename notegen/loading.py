@@ -23,9 +23,12 @@ MAX_DEPTH = 12
 class _CaseLoader(yaml.SafeLoader):
     """SafeLoader without aliases or duplicate keys, with a depth limit."""
 
-    def compose_node(self, parent: yaml.Node | None, index: object) -> yaml.Node | None:
+    _filename: str = "<input>"
+    _depth: int = 0
+
+    def compose_node(self, parent: yaml.Node | None, index: int) -> yaml.Node | None:
         if self.check_event(yaml.AliasEvent):
-            event = self.peek_event()
+            event = self.peek_event()  # type: ignore[no-untyped-call]
             raise CaseFileError(
                 "YAML aliases (*name) are not allowed in a case file; write the value out",
                 filename=self._filename,
@@ -34,7 +37,7 @@ class _CaseLoader(yaml.SafeLoader):
             )
         self._depth += 1
         if self._depth > MAX_DEPTH:
-            mark = self.peek_event().start_mark
+            mark = self.peek_event()  # type: ignore[no-untyped-call].start_mark
             raise CaseFileError(
                 f"nested more than {MAX_DEPTH} levels deep; a case file is at most a few levels",
                 filename=self._filename,
@@ -42,14 +45,14 @@ class _CaseLoader(yaml.SafeLoader):
                 column=mark.column + 1,
             )
         try:
-            return super().compose_node(parent, index)  # type: ignore[no-any-return]
+            return super().compose_node(parent, index)
         finally:
             self._depth -= 1
 
     def construct_mapping(self, node: yaml.MappingNode, deep: bool = False) -> dict[Any, Any]:
         seen: dict[Any, yaml.Node] = {}
         for key_node, _ in node.value:
-            key = self.construct_object(key_node, deep=deep)  # type: ignore[no-untyped-call]
+            key = self.construct_object(key_node, deep=deep)
             if not isinstance(key, str | int | float | bool) and key is not None:
                 raise CaseFileError(
                     "a mapping key must be a plain word",
@@ -71,8 +74,8 @@ class _CaseLoader(yaml.SafeLoader):
 
 def _make_loader(text: str, filename: str) -> _CaseLoader:
     loader = _CaseLoader(text)
-    loader._filename = filename  # type: ignore[attr-defined]
-    loader._depth = 0  # type: ignore[attr-defined]
+    loader._filename = filename
+    loader._depth = 0
     return loader
 
 
@@ -135,7 +138,9 @@ def parse_json(text: str, filename: str, *, max_depth: int = MAX_DEPTH) -> Any:
     try:
         return json.loads(text, object_pairs_hook=_refuse_duplicates)
     except json.JSONDecodeError as exc:
-        raise CaseFileError(f"not valid JSON: {exc.msg}", filename=filename, line=exc.lineno, column=exc.colno) from None
+        raise CaseFileError(
+            f"not valid JSON: {exc.msg}", filename=filename, line=exc.lineno, column=exc.colno
+        ) from None
     except ValueError as exc:
         raise CaseFileError(f"not valid JSON: {exc}", filename=filename) from None
 

@@ -33,8 +33,20 @@ TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
 LAB_SECTIONS: dict[str, tuple[str, ...]] = {
     "gas": ("ph", "pco2", "hco3", "po2"),
     "chem": (
-        "na", "k", "cl", "tco2", "bun", "creatinine", "glucose", "albumin",
-        "ca", "ionized_ca", "mg", "phos", "lactate", "osm",
+        "na",
+        "k",
+        "cl",
+        "tco2",
+        "bun",
+        "creatinine",
+        "glucose",
+        "albumin",
+        "ca",
+        "ionized_ca",
+        "mg",
+        "phos",
+        "lactate",
+        "osm",
     ),
     "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium"),
 }
@@ -46,9 +58,15 @@ DEFAULT_WINDOW_HOURS = 24.0
 
 _SEX = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
 _VOLUME = {
-    "low": "low", "hypovolemic": "low", "depleted": "low", "contracted": "low",
-    "normal": "normal", "euvolemic": "normal",
-    "high": "high", "hypervolemic": "high", "overloaded": "high",
+    "low": "low",
+    "hypovolemic": "low",
+    "depleted": "low",
+    "contracted": "low",
+    "normal": "normal",
+    "euvolemic": "normal",
+    "high": "high",
+    "hypervolemic": "high",
+    "overloaded": "high",
     "unknown": "unknown",
 }
 _VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
@@ -93,7 +111,7 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
     elif isinstance(raw, str):
         match = _VALUE_TEXT.match(raw)
         if not match:
-            col.problem(path, f"{raw[:60]!r} is not a number with an optional unit (e.g. \"6.2 kPa\")")
+            col.problem(path, f'{raw[:60]!r} is not a number with an optional unit (e.g. "6.2 kPa")')
             return None
         number, unit_text, qualifier = float(match["num"]), match["unit"], match["q"]
     elif isinstance(raw, Mapping):
@@ -115,7 +133,10 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
             col.problem(path, f"`unit` must be text, got {unit_text!r}")
             return None
     else:
-        col.problem(path, f"expected a number, a text such as \"6.2 kPa\" or a mapping {{value, unit}}, got a {type(raw).__name__}")
+        col.problem(
+            path,
+            f'expected a number, a text such as "6.2 kPa" or a mapping {{value, unit}}, got a {type(raw).__name__}',
+        )
         return None
     if number != number or number in (float("inf"), float("-inf")):
         col.problem(path, "is not a finite number")
@@ -175,8 +196,8 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         col.problem(path, f"expected a mapping of values, got a {type(raw).__name__}")
         return None
     names = LAB_SECTIONS[section]
-    allowed = (*names, "taken_at") + (("sample",) if section == "gas" else ()) + (
-        ("urea",) if section == "chem" else ()
+    allowed = (
+        (*names, "taken_at") + (("sample",) if section == "gas" else ()) + (("urea",) if section == "chem" else ())
     )
     values: dict[str, Any] = {}
     for key, item in raw.items():
@@ -338,7 +359,9 @@ def _patient(raw: Any, col: _Collector) -> Patient:
                 values[key] = float(item)
     age = values.get("age")
     if age is not None and age < 18:
-        col.notices.append(f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind")
+        col.notices.append(
+            f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind"
+        )
     return Patient(**values)
 
 
@@ -352,7 +375,9 @@ def _blood_pressure(raw: Any, col: _Collector) -> BloodPressure | None:
         if all(isinstance(v, int | float) and not isinstance(v, bool) for v in raw.values()):
             systolic, diastolic = int(raw["systolic"]), int(raw["diastolic"])
     if systolic is None or diastolic is None:
-        col.problem("context.bp", f"{str(raw)[:40]!r} is not a blood pressure such as \"168/98\" or {{systolic, diastolic}}")
+        col.problem(
+            "context.bp", f'{str(raw)[:40]!r} is not a blood pressure such as "168/98" or {{systolic, diastolic}}'
+        )
         return None
     if not (40 <= systolic <= 300 and 20 <= diastolic <= 200 and diastolic < systolic):
         col.problem("context.bp", f"{systolic}/{diastolic} mmHg is not a plausible blood pressure")
@@ -445,7 +470,9 @@ def _context(raw: Any, col: _Collector) -> Context:
                     continue
                 info = table.get(vocab.fold(text))
                 if info is None:
-                    col.notices.append(f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with")
+                    col.notices.append(
+                        f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with"
+                    )
                 elif info.id not in found:
                     found.append(info.id)
             values["findings"] = tuple(found)

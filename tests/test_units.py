@@ -79,9 +79,18 @@ def test_urea_mass_to_urea_nitrogen() -> None:
 @pytest.mark.parametrize(
     ("spelling", "canonical"),
     [
-        ("mm[Hg]", "mmHg"), ("mmHg", "mmHg"), ("umol/L", "µmol/L"), ("µmol/L", "µmol/L"),
-        ("μmol/L", "µmol/L"), ("meq/L", "mEq/L"), ("mEq/L", "mEq/L"), ("MG/DL", "mg/dL"),
-        ("kPa", "kPa"), ("g/L", "g/L"), ("mosm/kg{H2O}", "mOsm/kg"), ("[pH]", ""),
+        ("mm[Hg]", "mmHg"),
+        ("mmHg", "mmHg"),
+        ("umol/L", "µmol/L"),
+        ("µmol/L", "µmol/L"),
+        ("μmol/L", "µmol/L"),
+        ("meq/L", "mEq/L"),
+        ("mEq/L", "mEq/L"),
+        ("MG/DL", "mg/dL"),
+        ("kPa", "kPa"),
+        ("g/L", "g/L"),
+        ("mosm/kg{H2O}", "mOsm/kg"),
+        ("[pH]", ""),
     ],
 )
 def test_ucum_and_printed_spellings(spelling: str, canonical: str) -> None:

@@ -1,0 +1,273 @@
+"""Acid-base thresholds and constants, loaded from `rules/acid_base.yaml`.
+
+Every threshold the calculation core and the acid-base reading use is a `Setting`
+carrying its value, unit and source, so the output can say which figure it used and why.
+A service folder holding its own `acid_base.yaml` overrides keys of the shipped file;
+an unknown key, a wrong type or a changed unit is rejected with the file and line.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+import yaml
+from pydantic import BaseModel, ConfigDict
+
+from notegen.errors import RulePackError
+from notegen.resources import rules_dir
+
+SETTINGS_FILE = "acid_base.yaml"
+# Shipped values say where they came from without a machine-specific path, so output is reproducible.
+SHIPPED_ORIGIN = "rules/acid_base.yaml"
+
+_FROZEN = ConfigDict(frozen=True, extra="forbid")
+
+
+class Setting(BaseModel):
+    """One threshold or constant: its value, unit, published source and the file it came from."""
+
+    model_config = _FROZEN
+
+    value: float
+    unit: str
+    source: str
+    origin: str = SHIPPED_ORIGIN
+
+
+class AcidBaseSettings(BaseModel):
+    """All acid-base settings; field names match the keys of `rules/acid_base.yaml`."""
+
+    model_config = _FROZEN
+
+    ph_low: Setting
+    ph_high: Setting
+    ph_normal: Setting
+    pco2_low: Setting
+    pco2_high: Setting
+    pco2_normal: Setting
+    hco3_low: Setting
+    hco3_high: Setting
+    hco3_normal: Setting
+    pk_carbonic: Setting
+    co2_solubility: Setting
+    consistency_ph_tolerance: Setting
+    consistency_tco2_tolerance: Setting
+    anion_gap_low: Setting
+    anion_gap_high: Setting
+    anion_gap_normal: Setting
+    normal_albumin: Setting
+    albumin_gap_factor: Setting
+    delta_ratio_low: Setting
+    delta_ratio_pure: Setting
+    delta_ratio_high: Setting
+    osmolal_gap_high: Setting
+    winters_tolerance: Setting
+    alkalosis_pco2_slope: Setting
+    alkalosis_pco2_tolerance: Setting
+    alkalosis_pco2_ceiling: Setting
+    resp_acidosis_acute_slope: Setting
+    resp_acidosis_chronic_slope: Setting
+    resp_alkalosis_acute_slope: Setting
+    resp_alkalosis_chronic_slope: Setting
+    resp_hco3_tolerance: Setting
+    venous_pco2_screen: Setting
+    alkalemia_warning: Setting
+    alkalemia_critical: Setting
+    acidemia_warning: Setting
+    acidemia_critical: Setting
+    potassium_low_warning: Setting
+    potassium_low_critical: Setting
+    potassium_high_warning: Setting
+    potassium_high_critical: Setting
+    bicarbonate_very_high: Setting
+    hypoventilation_pco2: Setting
+    ionized_ca_low_warning: Setting
+    ionized_ca_low_critical: Setting
+    magnesium_low: Setting
+    magnesium_low_warning: Setting
+    chloride_target: Setting
+    chloride_distribution: Setting
+    calcium_albumin_factor: Setting
+
+
+SETTING_NAMES: tuple[str, ...] = tuple(AcidBaseSettings.model_fields)
+
+# Pairs (lower, upper) that must stay strictly ordered after any override.
+_ORDERED: tuple[tuple[str, str], ...] = (
+    ("ph_low", "ph_normal"),
+    ("ph_normal", "ph_high"),
+    ("pco2_low", "pco2_normal"),
+    ("pco2_normal", "pco2_high"),
+    ("hco3_low", "hco3_normal"),
+    ("hco3_normal", "hco3_high"),
+    ("anion_gap_low", "anion_gap_high"),
+    ("delta_ratio_low", "delta_ratio_pure"),
+    ("delta_ratio_pure", "delta_ratio_high"),
+    ("resp_acidosis_acute_slope", "resp_acidosis_chronic_slope"),
+    ("resp_alkalosis_acute_slope", "resp_alkalosis_chronic_slope"),
+    ("acidemia_critical", "acidemia_warning"),
+    ("alkalemia_warning", "alkalemia_critical"),
+    ("potassium_low_critical", "potassium_low_warning"),
+    ("potassium_high_warning", "potassium_high_critical"),
+    ("ionized_ca_low_critical", "ionized_ca_low_warning"),
+    ("magnesium_low_warning", "magnesium_low"),
+)
+_POSITIVE: tuple[str, ...] = (
+    "co2_solubility",
+    "consistency_ph_tolerance",
+    "consistency_tco2_tolerance",
+    "normal_albumin",
+    "winters_tolerance",
+    "alkalosis_pco2_tolerance",
+    "resp_hco3_tolerance",
+    "chloride_distribution",
+)
+
+Problems = list[tuple[str, int | None, str]]
+
+
+def _key_lines(text: str) -> dict[str, int]:
+    """Line (1-based) of each top-level key, for error messages; composing builds no objects."""
+    try:
+        node = yaml.compose(text, Loader=yaml.SafeLoader)
+    except yaml.YAMLError:
+        return {}
+    if not isinstance(node, yaml.MappingNode):
+        return {}
+    return {
+        str(key.value): key.start_mark.line + 1 for key, _ in node.value if isinstance(key, yaml.ScalarNode)
+    }
+
+
+def _read(path: Path, problems: Problems) -> tuple[dict[str, Any], dict[str, int]]:
+    name = str(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except OSError as exc:
+        problems.append((name, None, f"cannot be read ({exc.strerror or exc})"))
+        return {}, {}
+    try:
+        data = yaml.safe_load(text)
+    except yaml.YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        line = mark.line + 1 if mark is not None else None
+        problems.append((name, line, f"is not valid YAML: {getattr(exc, 'problem', exc)}"))
+        return {}, {}
+    if data is None:
+        return {}, {}
+    if not isinstance(data, dict):
+        problems.append((name, 1, "must be a mapping of setting names to entries"))
+        return {}, {}
+    return data, _key_lines(text)
+
+
+def _is_number(value: object) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool)
+
+
+def _parse_entries(
+    path: Path,
+    data: dict[str, Any],
+    lines: dict[str, int],
+    shipped: dict[str, Setting] | None,
+    problems: Problems,
+    origin: str,
+) -> dict[str, Setting]:
+    """Check one file's entries; `shipped` is None for the shipped file, else the entries it overrides."""
+    name = str(path)
+    allowed_keys = {"value", "unit", "source"}
+    out: dict[str, Setting] = {}
+    for key, entry in data.items():
+        line = lines.get(str(key))
+        if key not in SETTING_NAMES:
+            problems.append((name, line, f"unknown setting `{key}` (known: {', '.join(SETTING_NAMES)})"))
+            continue
+        if not isinstance(entry, dict):
+            problems.append((name, line, f"setting `{key}` must be a mapping with value, unit and source"))
+            continue
+        extra = sorted(set(entry) - allowed_keys)
+        if extra:
+            problems.append((name, line, f"setting `{key}` has unknown field(s) {', '.join(map(str, extra))}"))
+            continue
+        value = entry.get("value")
+        source = entry.get("source")
+        unit = entry.get("unit")
+        if not _is_number(value):
+            problems.append((name, line, f"setting `{key}`: value must be a number, got {value!r}"))
+            continue
+        if not isinstance(source, str) or not source.strip():
+            problems.append((name, line, f"setting `{key}`: source must name where the figure comes from"))
+            continue
+        if shipped is None:
+            if not isinstance(unit, str):
+                problems.append((name, line, f"setting `{key}`: unit must be a string (\"\" for none)"))
+                continue
+        else:
+            expected_unit = shipped[key].unit
+            if unit is None:
+                unit = expected_unit
+            elif unit != expected_unit:
+                problems.append(
+                    (name, line, f"setting `{key}`: unit {unit!r} differs from the shipped unit {expected_unit!r}")
+                )
+                continue
+        assert isinstance(value, int | float)
+        out[key] = Setting(value=float(value), unit=str(unit), source=source.strip(), origin=origin)
+    return out
+
+
+def _check_order(settings: dict[str, Setting], problems: Problems) -> None:
+    for low, high in _ORDERED:
+        if settings[low].value >= settings[high].value:
+            problems.append(
+                (
+                    settings[high].origin,
+                    None,
+                    f"`{low}` ({settings[low].value:g}) must be below `{high}` ({settings[high].value:g})",
+                )
+            )
+    for key in _POSITIVE:
+        if settings[key].value <= 0:
+            problems.append((settings[key].origin, None, f"`{key}` must be above zero"))
+
+
+def load_acid_base_settings(extra_dirs: Sequence[Path] = ()) -> AcidBaseSettings:
+    """Load the shipped settings, then apply each folder's `acid_base.yaml` in order (later wins).
+
+    A folder without an `acid_base.yaml` is skipped; every problem in every file is reported
+    together in one `RulePackError`.
+    """
+    problems: Problems = []
+    shipped_path = rules_dir() / SETTINGS_FILE
+    data, lines = _read(shipped_path, problems)
+    merged = _parse_entries(shipped_path, data, lines, None, problems, SHIPPED_ORIGIN)
+    if not problems:
+        missing = [key for key in SETTING_NAMES if key not in merged]
+        if missing:
+            problems.append((str(shipped_path), None, f"missing setting(s): {', '.join(missing)}"))
+    if problems:
+        raise RulePackError(problems)
+    for folder in extra_dirs:
+        folder = Path(folder)
+        if not folder.is_dir():
+            problems.append((str(folder), None, "is not a folder"))
+            continue
+        path = folder / SETTINGS_FILE
+        if not path.is_file():
+            continue
+        data, lines = _read(path, problems)
+        merged.update(_parse_entries(path, data, lines, merged, problems, str(path)))
+    if not problems:
+        _check_order(merged, problems)
+    if problems:
+        raise RulePackError(problems)
+    return AcidBaseSettings(**merged)
+
+
+@lru_cache(maxsize=1)
+def default_acid_base_settings() -> AcidBaseSettings:
+    """The shipped settings, read once per process."""
+    return load_acid_base_settings()
