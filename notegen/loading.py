@@ -37,7 +37,7 @@ class _CaseLoader(yaml.SafeLoader):
             )
         self._depth += 1
         if self._depth > MAX_DEPTH:
-            mark = self.peek_event()  # type: ignore[no-untyped-call].start_mark
+            mark = self.peek_event().start_mark  # type: ignore[no-untyped-call]
             raise CaseFileError(
                 f"nested more than {MAX_DEPTH} levels deep; a case file is at most a few levels",
                 filename=self._filename,
