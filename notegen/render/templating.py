@@ -1,0 +1,154 @@
+"""Jinja2 environments for the note templates, and rendering with errors that name the line.
+
+Templates produce Markdown, so Jinja's HTML autoescaping is off; user text is
+escaped for Markdown by the `md` filter instead. Case values reach a template
+only as context values, never as template source, so text such as
+`{{ 7*7 }}` in a label is printed, not evaluated.
+
+A service's own template runs in Jinja's immutable sandbox: it can read the
+context but not reach Python internals or change the values it is given.
+"""
+
+from __future__ import annotations
+
+import functools
+from collections.abc import Mapping, Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from notegen.errors import TemplateError
+from notegen.render.filters import format_number, join_words
+from notegen.render.markdown_escape import escape_markdown
+
+if TYPE_CHECKING:
+    import jinja2
+
+# Errors a template's own expressions can raise (a filter given text where it
+# needs a number, an index out of range); they are the template's fault.
+_EXPRESSION_ERRORS = (TypeError, ValueError, ArithmeticError, LookupError, AttributeError)
+
+
+def make_environment(template_dirs: Sequence[Path], *, sandboxed: bool) -> jinja2.Environment:
+    """Return the environment for `template_dirs`, searched in order; built once per folder list.
+
+    Strict about undefined names; `None` cannot be printed by accident.
+    """
+    folders = tuple(Path(folder).resolve() for folder in template_dirs)
+    for folder in folders:
+        if not folder.is_dir():
+            raise TemplateError("template folder does not exist", template=str(folder))
+    return _build_environment(folders, sandboxed)
+
+
+@functools.lru_cache(maxsize=16)
+def _build_environment(folders: tuple[Path, ...], sandboxed: bool) -> jinja2.Environment:
+    import jinja2
+
+    environment_class: type[jinja2.Environment] = jinja2.Environment
+    if sandboxed:
+        from jinja2.sandbox import ImmutableSandboxedEnvironment
+
+        environment_class = ImmutableSandboxedEnvironment
+    environment = environment_class(
+        loader=jinja2.FileSystemLoader([str(folder) for folder in folders]),
+        undefined=jinja2.StrictUndefined,
+        autoescape=False,
+        trim_blocks=True,
+        lstrip_blocks=True,
+        keep_trailing_newline=True,
+        auto_reload=False,
+        finalize=_refuse_none,
+    )
+    environment.filters["md"] = escape_markdown
+    environment.filters["fmt"] = format_number
+    environment.filters["join_words"] = join_words
+    return environment
+
+
+def _refuse_none(value: object) -> object:
+    if value is None:
+        import jinja2
+
+        raise jinja2.TemplateRuntimeError(
+            "a printed value is missing (None); test for it with `is none` before printing"
+        )
+    return value
+
+
+def render_template(
+    env: jinja2.Environment, name_or_path: str | Path, context: Mapping[str, object]
+) -> str:
+    """Render a template by name, or by a path inside one of `env`'s folders.
+
+    Raises `TemplateError` naming the template file and line for syntax errors,
+    undefined names, sandbox refusals and failing expressions.
+    """
+    import jinja2
+    from jinja2.exceptions import SecurityError
+
+    name = _template_name(env, name_or_path)
+    try:
+        return env.get_template(name).render(dict(context))
+    except jinja2.TemplateSyntaxError as error:  # in the template or in one it includes
+        raise TemplateError(
+            f"syntax error: {_message(error)}", template=error.filename or error.name or name, line=error.lineno
+        ) from None
+    except jinja2.TemplateNotFound as error:
+        raise _located(f"template {error.name!r} not found in {_folders_text(env)}", env, error, name) from None
+    except SecurityError as error:
+        raise _located(f"refused by the sandbox: {_message(error)}", env, error, name) from None
+    except jinja2.UndefinedError as error:
+        raise _located(f"undefined value: {_message(error)}", env, error, name) from None
+    except jinja2.TemplateError as error:
+        raise _located(f"cannot render: {_message(error)}", env, error, name) from None
+    except _EXPRESSION_ERRORS as error:
+        raise _located(f"cannot render: {type(error).__name__}: {error}", env, error, name) from None
+
+
+def _template_name(env: jinja2.Environment, name_or_path: str | Path) -> str:
+    if isinstance(name_or_path, str):
+        return name_or_path
+    path = name_or_path.resolve()
+    for folder in _search_folders(env):
+        if path.is_relative_to(folder):
+            return path.relative_to(folder).as_posix()
+    raise TemplateError(
+        f"template file is outside the template folders ({_folders_text(env)})", template=str(name_or_path)
+    )
+
+
+def _search_folders(env: jinja2.Environment) -> list[Path]:
+    import jinja2
+
+    loader = env.loader
+    if isinstance(loader, jinja2.FileSystemLoader):
+        return [Path(folder) for folder in loader.searchpath]
+    return []
+
+
+def _folders_text(env: jinja2.Environment) -> str:
+    return ", ".join(str(folder) for folder in _search_folders(env)) or "no folders"
+
+
+def _located(message: str, env: jinja2.Environment, error: BaseException, name: str) -> TemplateError:
+    """A `TemplateError` at the template file and line of the innermost template frame of `error`.
+
+    Jinja rewrites tracebacks so that frames of compiled templates carry the
+    template's file name and source line. Those files lie in the environment's
+    folders, which tells them apart from Python frames; the innermost one is
+    the template that failed, even when another template included it.
+    """
+    folders = _search_folders(env)
+    template: str = name
+    line: int | None = None
+    trace = error.__traceback__
+    while trace is not None:
+        frame_file = trace.tb_frame.f_code.co_filename
+        if any(Path(frame_file).is_relative_to(folder) for folder in folders):
+            template, line = frame_file, trace.tb_lineno
+        trace = trace.tb_next
+    return TemplateError(message, template=template, line=line)
+
+
+def _message(error: jinja2.TemplateError) -> str:
+    return error.message or type(error).__name__
