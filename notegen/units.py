@@ -125,7 +125,8 @@ FIELD_UNITS: dict[str, FieldUnits] = {
     "urine.na": _ELECTROLYTE,
     "urine.k": _ELECTROLYTE,
     "urine.cl": _ELECTROLYTE,
-    "urine.creatinine": _CREATININE,
+    # Urine creatinine is reported in mmol/L where SI units are used, not µmol/L.
+    "urine.creatinine": FieldUnits("mg/dL", "mg/dL", "mmol/L", _mass(CREATININE_G_PER_MOL)),
     "urine.ph": _UNITLESS,
     "urine.osm": _OSMOLALITY,
     "urine.calcium": _CALCIUM,

@@ -162,17 +162,19 @@ def _check_plausible(number: float, unit: str, path: str, field_name: str, col: 
     canon_unit = u.FIELD_UNITS[field_name].canonical
     shown = f"{_fmt(number)} {unit}".strip()
     expected = f"expected {_fmt(info.low)} to {_fmt(info.high)} {canon_unit}".rstrip()
+    suggestions = []
     for other in u.accepted_units(field_name):
-        if other == unit:
-            continue
         alternative = u.to_canonical(field_name, number, other)
-        if info.low <= alternative <= info.high and abs(alternative - canonical) > 1e-9:
-            col.problem(
-                path,
-                f"{shown} is not a plausible {info.label} ({expected}); did you mean "
-                f"{_fmt(number)} {other} ({_fmt(alternative)} {canon_unit})? Give the unit explicitly.",
-            )
-            return None
+        if other != unit and info.low <= alternative <= info.high and abs(alternative - canonical) > 1e-9:
+            converted = "" if other == canon_unit else f" ({_fmt(alternative)} {canon_unit})"
+            suggestions.append(f"{_fmt(number)} {other}{converted}")
+    if suggestions:
+        col.problem(
+            path,
+            f"{shown} is not a plausible {info.label} ({expected}); did you mean {' or '.join(suggestions)}? "
+            "Give the unit explicitly.",
+        )
+        return None
     col.problem(path, f"{shown} is not a plausible {info.label} ({expected})")
     return None
 
