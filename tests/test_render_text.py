@@ -127,7 +127,8 @@ def test_centred_column() -> None:
 def test_table_wider_than_width_wraps_cells_and_parts_rows() -> None:
     source = (
         "| Finding | For | Against |\n|---|---|---|\n"
-        "| Vomiting or gastric drainage | urine chloride below 20 mmol/L | no history of vomiting reported |\n"
+        "| Vomiting or gastric drainage | urine chloride below 20 mmol/L "
+        "| no history of vomiting reported |\n"
         "| Diuretic use | thiazide listed | urine chloride high |\n"
     )
     out = markdown_to_text(source, width=40)
@@ -171,7 +172,8 @@ def test_table_too_wide_for_any_layout_overflows_rather_than_losing_text() -> No
 def test_blockquote_code_and_thematic_break() -> None:
     source = (
         "Before\n\n> quoted text that is long enough to need wrapping at forty chars\n\n---\n\n"
-        "After `code span` here\n\n```\nraw   code line that is much longer than forty characters and stays\n```\n"
+        "After `code span` here\n\n"
+        "```\nraw   code line that is much longer than forty characters and stays\n```\n"
     )
     assert markdown_to_text(source, width=40) == (
         "Before\n"
@@ -255,7 +257,8 @@ def collapse(text: str) -> str:
 @given(printable_text)
 def test_escaped_user_text_prints_literally_in_a_paragraph(raw: str) -> None:
     expected = collapse(raw)
-    assert markdown_to_text("Label: " + escape_markdown(raw), width=1000) == f"Label: {expected}".rstrip() + "\n"
+    out = markdown_to_text("Label: " + escape_markdown(raw), width=1000)
+    assert out == f"Label: {expected}".rstrip() + "\n"
 
 
 @given(printable_text)
@@ -274,6 +277,9 @@ def test_escaped_user_text_stays_in_its_table_cell(raw: str) -> None:
 
 
 def test_importing_the_package_loads_no_parser_or_template_engine() -> None:
-    code = "import sys, notegen.render; print(sorted(m for m in sys.modules if m.startswith(('markdown_it', 'jinja2'))))"
+    code = (
+        "import sys, notegen.render; "
+        "print(sorted(m for m in sys.modules if m.startswith(('markdown_it', 'jinja2'))))"
+    )
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert result.stdout.strip() == "[]"

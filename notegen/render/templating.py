@@ -90,11 +90,11 @@ def render_template(
     try:
         return env.get_template(name).render(dict(context))
     except jinja2.TemplateSyntaxError as error:  # in the template or in one it includes
-        raise TemplateError(
-            f"syntax error: {_message(error)}", template=error.filename or error.name or name, line=error.lineno
-        ) from None
+        where = error.filename or error.name or name
+        raise TemplateError(f"syntax error: {_message(error)}", template=where, line=error.lineno) from None
     except jinja2.TemplateNotFound as error:
-        raise _located(f"template {error.name!r} not found in {_folders_text(env)}", env, error, name) from None
+        message = f"template {error.name!r} not found in {_folders_text(env)}"
+        raise _located(message, env, error, name) from None
     except SecurityError as error:
         raise _located(f"refused by the sandbox: {_message(error)}", env, error, name) from None
     except jinja2.UndefinedError as error:
