@@ -190,7 +190,9 @@ def _parse_entries(
             continue
         extra = sorted(set(entry) - allowed_keys)
         if extra:
-            problems.append((name, line, f"setting `{key}` has unknown field(s) {', '.join(map(str, extra))}"))
+            problems.append(
+                (name, line, f"setting `{key}` has unknown field(s) {', '.join(map(str, extra))}")
+            )
             continue
         value = entry.get("value")
         source = entry.get("source")
@@ -203,7 +205,7 @@ def _parse_entries(
             continue
         if shipped is None:
             if not isinstance(unit, str):
-                problems.append((name, line, f"setting `{key}`: unit must be a string (\"\" for none)"))
+                problems.append((name, line, f'setting `{key}`: unit must be a string ("" for none)'))
                 continue
         else:
             expected_unit = shipped[key].unit
@@ -211,7 +213,11 @@ def _parse_entries(
                 unit = expected_unit
             elif unit != expected_unit:
                 problems.append(
-                    (name, line, f"setting `{key}`: unit {unit!r} differs from the shipped unit {expected_unit!r}")
+                    (
+                        name,
+                        line,
+                        f"setting `{key}`: unit {unit!r} differs from the shipped unit {expected_unit!r}",
+                    )
                 )
                 continue
         assert isinstance(value, int | float)

@@ -79,7 +79,10 @@ def _expected_hco3_respiratory(
 
 
 def expected_hco3_acute_respiratory_acidosis(
-    pco2: float, slope_per_10: float = 1.0, tolerance: float = 2.0, normal_pco2: float = 40.0,
+    pco2: float,
+    slope_per_10: float = 1.0,
+    tolerance: float = 2.0,
+    normal_pco2: float = 40.0,
     normal_hco3: float = 24.0,
 ) -> Estimate:
     """HCO3 rises 1 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980; Berend et al., NEJM 2014)."""
@@ -87,7 +90,10 @@ def expected_hco3_acute_respiratory_acidosis(
 
 
 def expected_hco3_chronic_respiratory_acidosis(
-    pco2: float, slope_per_10: float = 3.5, tolerance: float = 2.0, normal_pco2: float = 40.0,
+    pco2: float,
+    slope_per_10: float = 3.5,
+    tolerance: float = 2.0,
+    normal_pco2: float = 40.0,
     normal_hco3: float = 24.0,
 ) -> Estimate:
     """HCO3 rises 3.5 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980; Berend et al., NEJM 2014)."""
@@ -95,7 +101,10 @@ def expected_hco3_chronic_respiratory_acidosis(
 
 
 def expected_hco3_acute_respiratory_alkalosis(
-    pco2: float, slope_per_10: float = 2.0, tolerance: float = 2.0, normal_pco2: float = 40.0,
+    pco2: float,
+    slope_per_10: float = 2.0,
+    tolerance: float = 2.0,
+    normal_pco2: float = 40.0,
     normal_hco3: float = 24.0,
 ) -> Estimate:
     """HCO3 falls 2 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980)."""
@@ -103,7 +112,10 @@ def expected_hco3_acute_respiratory_alkalosis(
 
 
 def expected_hco3_chronic_respiratory_alkalosis(
-    pco2: float, slope_per_10: float = 4.0, tolerance: float = 2.0, normal_pco2: float = 40.0,
+    pco2: float,
+    slope_per_10: float = 4.0,
+    tolerance: float = 2.0,
+    normal_pco2: float = 40.0,
     normal_hco3: float = 24.0,
 ) -> Estimate:
     """HCO3 falls 4 mmol/L per 10 mmHg PaCO2 (Narins & Emmett 1980; Krapf et al., NEJM 1991: 0.41/mmHg)."""
@@ -139,7 +151,7 @@ def delta_ratio(anion_gap: float, hco3: float, normal_gap: float = 12.0, normal_
 
 
 def calculated_osmolality(na: float, glucose: float, bun: float) -> float:
-    """2 x Na + glucose/18 + BUN/2.8, glucose and BUN in mg/dL (Hoffman et al., J Toxicol Clin Toxicol 1993)."""
+    """2 x Na + glucose/18 + BUN/2.8, in mg/dL (Hoffman et al., J Toxicol Clin Toxicol 1993)."""
     return 2 * na + glucose / 18.0 + bun / 2.8
 
 
@@ -250,8 +262,14 @@ def _round(value: float) -> float:
 
 
 def _calc(
-    name: str, value: float, unit: str, formula: str, inputs: dict[str, str], source: str,
-    note: str | None = None, estimate: Estimate | None = None,
+    name: str,
+    value: float,
+    unit: str,
+    formula: str,
+    inputs: dict[str, str],
+    source: str,
+    note: str | None = None,
+    estimate: Estimate | None = None,
 ) -> Calculation:
     return Calculation(
         name=name,
@@ -274,12 +292,20 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
         assert gas.pco2 is not None and gas.hco3 is not None
         inputs = {"PaCO2": format_value(gas.pco2, "mmHg"), "HCO3 (gas)": format_value(gas.hco3, "mmol/L")}
         out["calculated_ph"] = _calc(
-            "calculated_ph", henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol), "",
-            f"{pk:g} + log10(HCO3 / ({sol:g} x PaCO2))", inputs, hh_source,
+            "calculated_ph",
+            henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol),
+            "",
+            f"{pk:g} + log10(HCO3 / ({sol:g} x PaCO2))",
+            inputs,
+            hh_source,
         )
         out["expected_total_co2"] = _calc(
-            "expected_total_co2", expected_total_co2(gas.hco3, gas.pco2, sol), "mmol/L",
-            f"HCO3 + {sol:g} x PaCO2", inputs, hh_source,
+            "expected_total_co2",
+            expected_total_co2(gas.hco3, gas.pco2, sol),
+            "mmol/L",
+            f"HCO3 + {sol:g} x PaCO2",
+            inputs,
+            hh_source,
             note="the panel total CO2 should come close to this when drawn at the same time",
         )
     if usable(gas.pco2):
@@ -302,9 +328,14 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
         for name, slope, label in rules:
             est = _expected_hco3_respiratory(pco2, slope.value, tol, n_p, n_h)
             out[name] = _calc(
-                name, est.value, "mmol/L",
+                name,
+                est.value,
+                "mmol/L",
                 f"{n_h:g} {sign} {slope.value:g} x |PaCO2 - {n_p:g}| / 10, +/- {tol:g}",
-                inputs, slope.source, note=f"expected for {label}", estimate=est,
+                inputs,
+                slope.source,
+                note=f"expected for {label}",
+                estimate=est,
             )
 
 
@@ -317,11 +348,19 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
     hco3_note = f"bicarbonate taken from the {hco3_label}"
     if usable(chem.na) and usable(chem.cl):
         assert chem.na is not None and chem.cl is not None
-        inputs = {"Na": format_value(chem.na, "mmol/L"), "Cl": format_value(chem.cl, "mmol/L"),
-                  f"HCO3 ({hco3_label})": format_value(hco3, "mmol/L")}
+        inputs = {
+            "Na": format_value(chem.na, "mmol/L"),
+            "Cl": format_value(chem.cl, "mmol/L"),
+            f"HCO3 ({hco3_label})": format_value(hco3, "mmol/L"),
+        }
         gap = anion_gap(chem.na, chem.cl, hco3)
         out["anion_gap"] = _calc(
-            "anion_gap", gap, "mmol/L", "Na - (Cl + HCO3)", inputs, s.anion_gap_high.source,
+            "anion_gap",
+            gap,
+            "mmol/L",
+            "Na - (Cl + HCO3)",
+            inputs,
+            s.anion_gap_high.source,
             note=f"{hco3_note}; reference {format_value(s.anion_gap_low.value)}-"
             f"{format_value(s.anion_gap_high.value, 'mmol/L')} (analyser-dependent)",
         )
@@ -331,21 +370,34 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
             n_alb, factor = s.normal_albumin.value, s.albumin_gap_factor.value
             gap_used = corrected_anion_gap(gap, chem.albumin, n_alb, factor)
             out["anion_gap_corrected"] = _calc(
-                "anion_gap_corrected", gap_used, "mmol/L", f"AG + {factor:g} x ({n_alb:g} - albumin)",
+                "anion_gap_corrected",
+                gap_used,
+                "mmol/L",
+                f"AG + {factor:g} x ({n_alb:g} - albumin)",
                 {"anion gap": format_value(gap, "mmol/L"), "albumin": format_value(chem.albumin, "g/dL")},
-                s.albumin_gap_factor.source, note=f"normal albumin taken as {format_value(n_alb, 'g/dL')}",
+                s.albumin_gap_factor.source,
+                note=f"normal albumin taken as {format_value(n_alb, 'g/dL')}",
             )
         which = "albumin-corrected anion gap" if "anion_gap_corrected" in out else "anion gap (uncorrected)"
         n_gap, n_hco3 = s.anion_gap_normal.value, s.hco3_normal.value
         out["delta_gap"] = _calc(
-            "delta_gap", delta_gap(gap_used, n_gap), "mmol/L", f"AG - {n_gap:g}",
-            {which: format_value(gap_used, "mmol/L")}, s.anion_gap_normal.source,
+            "delta_gap",
+            delta_gap(gap_used, n_gap),
+            "mmol/L",
+            f"AG - {n_gap:g}",
+            {which: format_value(gap_used, "mmol/L")},
+            s.anion_gap_normal.source,
         )
         if hco3 < n_hco3:
             out["delta_ratio"] = _calc(
-                "delta_ratio", delta_ratio(gap_used, hco3, n_gap, n_hco3), "",
+                "delta_ratio",
+                delta_ratio(gap_used, hco3, n_gap, n_hco3),
+                "",
                 f"(AG - {n_gap:g}) / ({n_hco3:g} - HCO3)",
-                {which: format_value(gap_used, "mmol/L"), f"HCO3 ({hco3_label})": format_value(hco3, "mmol/L")},
+                {
+                    which: format_value(gap_used, "mmol/L"),
+                    f"HCO3 ({hco3_label})": format_value(hco3, "mmol/L"),
+                },
                 s.delta_ratio_high.source,
                 note=f"{hco3_note}; unstable when the bicarbonate has fallen by only 1-2 mmol/L",
             )
@@ -354,17 +406,25 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
     if hco3 < n_hco3:
         est = expected_pco2_metabolic_acidosis(hco3, s.winters_tolerance.value)
         out["expected_pco2"] = _calc(
-            "expected_pco2", est.value, "mmHg", f"1.5 x HCO3 + 8, +/- {s.winters_tolerance.value:g}",
-            inputs_h, s.winters_tolerance.source,
-            note=f"Winter's formula, if the low bicarbonate is a metabolic acidosis; {hco3_note}", estimate=est,
+            "expected_pco2",
+            est.value,
+            "mmHg",
+            f"1.5 x HCO3 + 8, +/- {s.winters_tolerance.value:g}",
+            inputs_h,
+            s.winters_tolerance.source,
+            note=f"Winter's formula, if the low bicarbonate is a metabolic acidosis; {hco3_note}",
+            estimate=est,
         )
     elif hco3 > n_hco3:
         slope, tol = s.alkalosis_pco2_slope.value, s.alkalosis_pco2_tolerance.value
         est = expected_pco2_metabolic_alkalosis(hco3, slope, tol, s.pco2_normal.value, n_hco3)
         out["expected_pco2"] = _calc(
-            "expected_pco2", est.value, "mmHg",
+            "expected_pco2",
+            est.value,
+            "mmHg",
             f"{s.pco2_normal.value:g} + {slope:g} x (HCO3 - {n_hco3:g}), +/- {tol:g}",
-            inputs_h, s.alkalosis_pco2_slope.source,
+            inputs_h,
+            s.alkalosis_pco2_slope.source,
             note=f"0.7 rule, if the high bicarbonate is a metabolic alkalosis; compensation above about "
             f"{s.alkalosis_pco2_ceiling.value:g} mmHg is uncommon; {hco3_note}",
             estimate=est,
@@ -377,10 +437,15 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
         assert chem.creatinine is not None
         if patient.age >= EGFR_MIN_AGE:
             out["egfr"] = _calc(
-                "egfr", egfr_ckd_epi_2021(chem.creatinine, patient.age, patient.sex), "mL/min/1.73 m2",
+                "egfr",
+                egfr_ckd_epi_2021(chem.creatinine, patient.age, patient.sex),
+                "mL/min/1.73 m2",
                 "142 x min(Scr/k, 1)^a x max(Scr/k, 1)^-1.200 x 0.9938^age (x 1.012 if female)",
-                {"creatinine": format_value(chem.creatinine, "mg/dL"), "age": format_value(patient.age, "years"),
-                 "sex": patient.sex},
+                {
+                    "creatinine": format_value(chem.creatinine, "mg/dL"),
+                    "age": format_value(patient.age, "years"),
+                    "sex": patient.sex,
+                },
                 "Inker et al., NEJM 2021 (CKD-EPI 2021, no race term)",
                 note="assumes creatinine is in a steady state; not valid while it is rising or falling",
             )
@@ -388,32 +453,51 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
         assert chem.osm is not None and chem.na is not None and chem.glucose is not None
         assert chem.bun is not None
         out["osmolal_gap"] = _calc(
-            "osmolal_gap", osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun), "mOsm/kg",
+            "osmolal_gap",
+            osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun),
+            "mOsm/kg",
             "measured - (2 x Na + glucose/18 + BUN/2.8)",
-            {"measured osmolality": format_value(chem.osm, "mOsm/kg"), "Na": format_value(chem.na, "mmol/L"),
-             "glucose": format_value(chem.glucose, "mg/dL"), "BUN": format_value(chem.bun, "mg/dL")},
+            {
+                "measured osmolality": format_value(chem.osm, "mOsm/kg"),
+                "Na": format_value(chem.na, "mmol/L"),
+                "glucose": format_value(chem.glucose, "mg/dL"),
+                "BUN": format_value(chem.bun, "mg/dL"),
+            },
             s.osmolal_gap_high.source,
         )
     if usable(urine.k) and usable(urine.creatinine):
         assert urine.k is not None and urine.creatinine is not None
         out["urine_k_creatinine"] = _calc(
-            "urine_k_creatinine", urine_potassium_creatinine_ratio(urine.k, urine.creatinine), "mmol/mmol",
+            "urine_k_creatinine",
+            urine_potassium_creatinine_ratio(urine.k, urine.creatinine),
+            "mmol/mmol",
             f"urine K / (urine creatinine x 10 / {CREATININE_MOLAR_MASS:g})",
-            {"urine K": format_value(urine.k, "mmol/L"), "urine creatinine": format_value(urine.creatinine, "mg/dL")},
+            {
+                "urine K": format_value(urine.k, "mmol/L"),
+                "urine creatinine": format_value(urine.creatinine, "mg/dL"),
+            },
             "Assadi, Iran J Kidney Dis 2008",
             note="about 1.5 mmol/mmol or more points to renal potassium loss",
         )
     if usable(chem.creatinine) and usable(urine.creatinine):
         assert chem.creatinine is not None and urine.creatinine is not None
-        for name, label, u_val, p_val in (("fe_na", "Na", urine.na, chem.na), ("fe_cl", "Cl", urine.cl, chem.cl)):
+        for name, label, u_val, p_val in (
+            ("fe_na", "Na", urine.na, chem.na),
+            ("fe_cl", "Cl", urine.cl, chem.cl),
+        ):
             if usable(u_val) and usable(p_val):
                 assert u_val is not None and p_val is not None
                 out[name] = _calc(
-                    name, fractional_excretion(u_val, p_val, urine.creatinine, chem.creatinine), "%",
+                    name,
+                    fractional_excretion(u_val, p_val, urine.creatinine, chem.creatinine),
+                    "%",
                     f"(urine {label} x plasma creatinine) / (plasma {label} x urine creatinine) x 100",
-                    {f"urine {label}": format_value(u_val, "mmol/L"), f"plasma {label}": format_value(p_val, "mmol/L"),
-                     "urine creatinine": format_value(urine.creatinine, "mg/dL"),
-                     "plasma creatinine": format_value(chem.creatinine, "mg/dL")},
+                    {
+                        f"urine {label}": format_value(u_val, "mmol/L"),
+                        f"plasma {label}": format_value(p_val, "mmol/L"),
+                        "urine creatinine": format_value(urine.creatinine, "mg/dL"),
+                        "plasma creatinine": format_value(chem.creatinine, "mg/dL"),
+                    },
                     "clearance ratio (common practice)",
                 )
     target, dist = s.chloride_target.value, s.chloride_distribution.value
@@ -421,16 +505,21 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
         assert patient.weight_kg is not None and chem.cl is not None
         if chem.cl < target:
             out["chloride_deficit"] = _calc(
-                "chloride_deficit", chloride_deficit(patient.weight_kg, chem.cl, target, dist), "mmol",
+                "chloride_deficit",
+                chloride_deficit(patient.weight_kg, chem.cl, target, dist),
+                "mmol",
                 f"{dist:g} x weight x ({target:g} - Cl)",
                 {"weight": format_value(patient.weight_kg, "kg"), "Cl": format_value(chem.cl, "mmol/L")},
-                s.chloride_distribution.source, note=f"target chloride {format_value(target, 'mmol/L')}",
+                s.chloride_distribution.source,
+                note=f"target chloride {format_value(target, 'mmol/L')}",
             )
     if usable(chem.ca) and usable(chem.albumin):
         assert chem.ca is not None and chem.albumin is not None
         n_alb, factor = s.normal_albumin.value, s.calcium_albumin_factor.value
         out["corrected_calcium"] = _calc(
-            "corrected_calcium", corrected_calcium(chem.ca, chem.albumin, n_alb, factor), "mg/dL",
+            "corrected_calcium",
+            corrected_calcium(chem.ca, chem.albumin, n_alb, factor),
+            "mg/dL",
             f"Ca + {factor:g} x ({n_alb:g} - albumin)",
             {"calcium": format_value(chem.ca, "mg/dL"), "albumin": format_value(chem.albumin, "g/dL")},
             s.calcium_albumin_factor.source,
