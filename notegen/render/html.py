@@ -89,7 +89,9 @@ def _mark_critical_banners(tokens: list[Token]) -> None:
         # blockquote_open, paragraph_open, inline: the banner's first words.
         if index + 2 >= len(tokens) or tokens[index + 2].type != "inline":
             continue
-        children = tokens[index + 2].children or []
+        # The inline parser may leave an empty text token before the bold run.
+        inline = tokens[index + 2].children or []
+        children = [child for child in inline if child.type != "text" or child.content]
         if len(children) < 2 or children[0].type != "strong_open":
             continue
         lead = children[1].content.strip().casefold()
