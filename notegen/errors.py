@@ -14,6 +14,8 @@ Every error carries where it happened, so the message can say what to fix.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
+
 
 class NotegenError(Exception):
     """Base of every error notegen raises on purpose."""
@@ -63,16 +65,29 @@ class CaseValueError(InputError):
     fixing a file sees every problem at once rather than one per run.
     """
 
-    def __init__(self, problems: list[tuple[str, str]], *, filename: str | None = None) -> None:
+    def __init__(
+        self,
+        problems: list[tuple[str, str]],
+        *,
+        filename: str | None = None,
+        origins: Mapping[str, str] | None = None,
+    ) -> None:
         self.problems = problems
         self.filename = filename
+        origins = origins or {}
+
+        def where(path: str) -> str:
+            # a value taken from a paste or a FHIR resource also names that line or resource
+            origin = origins.get(path)
+            return f"field `{path}` ({origin})" if origin else f"field `{path}`"
+
         head = f"{filename}: " if filename else ""
         if len(problems) == 1:
             path, text = problems[0]
-            message = f"{head}field `{path}`: {text}"
+            message = f"{head}{where(path)}: {text}"
         else:
             lines = [f"{head}{len(problems)} fields cannot be used:"]
-            lines += [f"  - field `{path}`: {text}" for path, text in problems]
+            lines += [f"  - {where(path)}: {text}" for path, text in problems]
             message = "\n".join(lines)
         super().__init__(message)
 

@@ -60,7 +60,7 @@ def read_case(
     data: dict[str, Any] = {}
     provenance: dict[str, str] = {}
     unused: list[str] = []
-    filename = "<command line>"
+    filename = "--set"
     if source is not None:
         text, filename = read_source(source, stdin)
         parsed = parse_text(text, filename, max_depth=FHIR_MAX_DEPTH)
@@ -81,15 +81,16 @@ def read_case(
         else:
             paste_text, paste_name = read_source(paste)
         result = parse_paste(paste_text, source=paste_name)
+        if source is None:
+            filename = paste_name
         data = _merge_labs(data, result.data, paste_name)
         provenance.update(result.provenance)
         unused.extend(result.unused)
     if overrides:
-        from .inputs.overrides import apply_overrides
+        from .inputs.overrides import apply_overrides, override_provenance
 
         data = apply_overrides(data, list(overrides))
-        for assignment in overrides:
-            provenance.setdefault(assignment.split("=", 1)[0].strip(), "--set")
+        provenance.update(override_provenance(list(overrides)))
     if source is None and paste is None and not overrides:
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
     case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)

@@ -271,9 +271,10 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
         if len(good) > 1 and any(p.get("taken_at") is None for p in good):
             col.problem(section, "serial results need `taken_at` on every entry, so the latest can be told apart")
             return
-        by_time: dict[datetime, dict[str, Any]] = {}
+        by_time: dict[tuple[datetime, str], dict[str, Any]] = {}
         for p in good:
-            when = p["taken_at"]
+            # an arterial and a venous gas drawn together are two results, not one
+            when = (p["taken_at"], p.get("sample", ""))
             if when in by_time:
                 earlier = by_time[when]
                 for key, value in p.items():
@@ -281,12 +282,13 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
                         col.problem(
                             f"{section}.{key}",
                             f"two different values ({_fmt(earlier[key])} and {_fmt(value)}) at the same time "
-                            f"{when.isoformat()}; keep the one that is right",
+                            f"{when[0].isoformat()}; keep the one that is right",
                         )
                 earlier.update(p)
             else:
                 by_time[when] = dict(p)
-        entries[section] = [by_time[k] for k in sorted(by_time, key=_sort_key)]
+        # oldest first; at the same time a venous gas sorts before an arterial one, so arterial is read
+        entries[section] = [by_time[k] for k in sorted(by_time, key=lambda k: (_sort_key(k[0]), k[1] == "arterial"))]
     elif raw is not None:
         entry = _lab_entry(section, raw, section, col)
         if entry is not None:
@@ -523,10 +525,10 @@ def validate_case(
     patient = _patient(data.get("patient"), col)
     context = _context(data.get("context"), col)
     if col.problems:
-        raise CaseValueError(col.problems, filename=filename)
+        raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
     current, earlier = _choose_current(entries, window_hours, col)
     if col.problems:
-        raise CaseValueError(col.problems, filename=filename)
+        raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
 
     def build(section: str, values: dict[str, Any]) -> Any:
         return _MODELS[section](**values)
