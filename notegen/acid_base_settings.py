@@ -228,13 +228,12 @@ def _parse_entries(
 def _check_order(settings: dict[str, Setting], problems: Problems) -> None:
     for low, high in _ORDERED:
         if settings[low].value >= settings[high].value:
-            problems.append(
-                (
-                    settings[high].origin,
-                    None,
-                    f"`{low}` ({settings[low].value:g}) must be below `{high}` ({settings[high].value:g})",
-                )
-            )
+            # Blame the override, not the shipped file, when one side came from a service folder.
+            origin = settings[low].origin
+            if origin == SHIPPED_ORIGIN:
+                origin = settings[high].origin
+            message = f"`{low}` ({settings[low].value:g}) must be below `{high}` ({settings[high].value:g})"
+            problems.append((origin, None, message))
     for key in _POSITIVE:
         if settings[key].value <= 0:
             problems.append((settings[key].origin, None, f"`{key}` must be above zero"))

@@ -46,6 +46,7 @@ from notegen.calculations import (
     henderson_hasselbalch_hco3,
     henderson_hasselbalch_ph,
     usable,
+    usable_ph,
 )
 from notegen.case import Case
 
@@ -55,7 +56,9 @@ __all__ = ["AcidBaseReading", "read_acid_base"]
 def _gas_values(case: Case, w: ReadingDraft) -> GasValues:
     s, gas = w.s, case.gas
     pk, sol = s.pk_carbonic.value, s.co2_solubility.value
-    ph = gas.ph if usable(gas.ph) else None
+    ph = gas.ph if usable_ph(gas.ph) else None
+    if gas.ph is not None and ph is None:
+        w.missing.append(f"pH: {gas.ph!r} cannot be a blood pH and was set aside.")
     pco2 = gas.pco2 if usable(gas.pco2) else None
     hco3 = gas.hco3 if usable(gas.hco3) else None
     ph_source: ValueSource | None = "measured" if ph is not None else None
@@ -80,7 +83,7 @@ def _gas_values(case: Case, w: ReadingDraft) -> GasValues:
 def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency, float | None]:
     s, gas = w.s, case.gas
     pk, sol = s.pk_carbonic.value, s.co2_solubility.value
-    if not (usable(gas.ph) and usable(gas.pco2) and usable(gas.hco3)):
+    if not (usable_ph(gas.ph) and usable(gas.pco2) and usable(gas.hco3)):
         w.missing.append("Consistency check: needs pH, PaCO2 and bicarbonate from the same gas.")
         return "not_checked", None
     assert gas.ph is not None and gas.pco2 is not None and gas.hco3 is not None

@@ -314,7 +314,7 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
             f"Bicarbonate {mmol(hco3)} has not fallen below {mmol(n_hco3)} although the gap "
             f"is high: {out.interpretation} (Rastegar 2007)."
         )
-        _add_gap_alkalosis(w, resp_acidosis, "a high anion gap without a fall in bicarbonate")
+        _add_gap_alkalosis(w, "a high anion gap without a fall in bicarbonate")
         return out
     out.delta_ratio = delta_ratio(used, hco3, n_gap, n_hco3)
     r = out.delta_ratio
@@ -329,7 +329,7 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
         out.interpretation = "a concurrent metabolic alkalosis" + (
             " or the compensation of a respiratory acidosis" if resp_acidosis else ""
         )
-        _add_gap_alkalosis(w, resp_acidosis, f"delta ratio {r:.1f}, above {format_value(hi)}")
+        _add_gap_alkalosis(w, f"delta ratio {r:.1f}, above {format_value(hi)}")
     w.findings.append(
         f"Delta ratio {r:.1f} ((gap - {format_value(n_gap)}) / ({format_value(n_hco3)} - "
         f"bicarbonate)): {out.interpretation} (Rastegar 2007)."
@@ -339,7 +339,9 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     return out
 
 
-def _add_gap_alkalosis(w: ReadingDraft, resp_acidosis: bool, why: str) -> None:
-    # Rastegar 2007: a high ratio also follows a compensated respiratory acidosis, so with one present
-    # the alkalosis is only possible.
-    w.add("metabolic_alkalosis", why, "possible" if resp_acidosis else "established")
+def _add_gap_alkalosis(w: ReadingDraft, why: str) -> None:
+    # Rastegar 2007: a high ratio also follows a compensated respiratory acidosis. When that acidosis is
+    # the primary disorder, its compensation is the likelier source of the bicarbonate, so the alkalosis
+    # is only possible; when it is merely a failed compensation of the metabolic acidosis, it is listed.
+    resp_primary = bool(w.bases) and w.bases[0].disorder == "respiratory_acidosis"
+    w.add("metabolic_alkalosis", why, "possible" if resp_primary else "established")

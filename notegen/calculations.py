@@ -241,9 +241,20 @@ def format_value(value: float, unit: str = "") -> str:
     return f"{text} {unit}".strip()
 
 
+# Bounds far outside survival: they only keep the arithmetic finite should an unvalidated case arrive.
+_ARITHMETIC_FLOOR = 1e-6
+_ARITHMETIC_LIMIT = 1e6
+PH_READABLE = (6.0, 8.5)
+
+
 def usable(value: float | None) -> bool:
-    """A value the arithmetic can use: present, finite and above zero."""
-    return value is not None and math.isfinite(value) and value > 0
+    """A value the arithmetic can use: present, finite, and neither vanishingly small nor absurdly large."""
+    return value is not None and math.isfinite(value) and _ARITHMETIC_FLOOR < value < _ARITHMETIC_LIMIT
+
+
+def usable_ph(value: float | None) -> bool:
+    """A pH the arithmetic can use: within 6.0-8.5, far beyond any survivable value."""
+    return value is not None and math.isfinite(value) and PH_READABLE[0] <= value <= PH_READABLE[1]
 
 
 def gap_bicarbonate(case: Case) -> tuple[float, str] | None:
