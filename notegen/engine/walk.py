@@ -1,0 +1,488 @@
+"""Walking a compiled pack over a case's facts.
+
+1. Trees, in pack order. Each node gets a reach value: the start is reached (true); a branch whose
+   condition is true/false/unknown sends its own reach value down `if_true`/`if_false`/`if_unknown`,
+   and the exits not taken are "possibly reached" (unknown) when the condition was unknown.
+   Exactly one leaf is reached for certain: its outcome is the tree's outcome.
+2. Evidence items of every cause; an item counts only when its condition is true.
+3. Tiers. Points per item: strong 3, moderate 2, weak 1 (`scoring.weights`); net = for - against.
+   `likely` when net >= likely_from (3); `possible` when net >= possible_from (1), or when the points
+   for reach keep_in_view_from (3) however much speaks against (strong support is not dropped);
+   otherwise `unlikely` (also when nothing points either way).
+   Order: tier, then net points, then points for, then the order of the causes in the pack.
+4. Factors whose condition is true (present) or unknown (undetermined).
+5. Next tests. A test is suggested when a fact it provides is missing, that absence left a condition
+   unknown, and some value of the fact (one per distinct answer pattern of the pack's thresholds)
+   would change a tree's outcome or a cause's tier. Tests that change a tree's outcome come first,
+   then the pack's order. Its `why` names what it would decide.
+"""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+from notegen.engine.conditions import FALSE, TRUE, UNKNOWN, Env, truth_of
+from notegen.engine.facts import (
+    Fact,
+    FactInput,
+    MissingFact,
+    NumberFact,
+    TextFact,
+    Value,
+    as_fact,
+    display_fact,
+    fact_value,
+    plain_value,
+)
+from notegen.engine.program import CompiledTest, CompiledTree, RulePack
+from notegen.engine.results import (
+    TIERS,
+    CauseResult,
+    Decision,
+    EvidenceResult,
+    FactorResult,
+    JsonValue,
+    OpenEvidence,
+    Suggestion,
+    Tier,
+    TraceStep,
+    TreeOutcome,
+)
+from notegen.engine.wording import Template
+from notegen.errors import NotegenError
+
+_MISSING = MissingFact()
+
+
+@dataclass(frozen=True, slots=True)
+class _TreeState:
+    reach: tuple[int, ...]
+    answers: tuple[int | None, ...]
+    leaf: int
+
+
+@dataclass(frozen=True)
+class WalkResult:
+    """Everything one walk found; `trace()` explains it step by step."""
+
+    pack: RulePack
+    facts: Mapping[str, Fact]
+    outcomes: tuple[TreeOutcome, ...]
+    causes: tuple[CauseResult, ...]
+    factors: tuple[FactorResult, ...]
+    suggestions: tuple[Suggestion, ...]
+    _states: tuple[_TreeState, ...]
+    _evidence: tuple[int, ...]
+    _factors: tuple[int, ...]
+    _env: Env
+
+    def outcome(self, tree: str) -> TreeOutcome:
+        for result in self.outcomes:
+            if result.tree == tree:
+                return result
+        raise KeyError(tree)
+
+    def cause(self, cause: str) -> CauseResult:
+        for result in self.causes:
+            if result.id == cause:
+                return result
+        raise KeyError(cause)
+
+    def trace(self) -> tuple[TraceStep, ...]:
+        """Each node on the walk's path, then every evidence item and factor, with values seen."""
+        pack = self.pack
+        steps: list[TraceStep] = []
+        for tree, state in zip(pack.trees, self._states, strict=True):
+            for index in tree.order:
+                if state.reach[index] != TRUE:
+                    continue
+                node = tree.nodes[index]
+                if node.test is None:
+                    steps.append(TraceStep("leaf", node.id, "", (), node.outcome or "", None, node.source))
+                    continue
+                answer = state.answers[index]
+                assert answer is not None and node.exit_ids is not None
+                goes_to = node.exit_ids[(TRUE, FALSE, UNKNOWN).index(answer)]
+                values = self._values(node.reads)
+                steps.append(
+                    TraceStep("node", node.id, node.condition_text, values, truth_of(answer), goes_to, node.source)
+                )
+        for item in pack.evidence:
+            cause = pack.causes[item.cause].id
+            steps.append(
+                TraceStep(
+                    "evidence",
+                    f"{cause}.{item.id}",
+                    item.condition_text,
+                    self._values(item.reads),
+                    truth_of(self._evidence[item.index]),
+                    None,
+                    item.source,
+                )
+            )
+        for factor, answer in zip(pack.factors, self._factors, strict=True):
+            steps.append(
+                TraceStep(
+                    "factor",
+                    factor.id,
+                    factor.condition_text,
+                    self._values(factor.reads),
+                    truth_of(answer),
+                    None,
+                    factor.source,
+                )
+            )
+        return tuple(steps)
+
+    def _values(self, names: tuple[str, ...]) -> tuple[tuple[str, str], ...]:
+        shown: list[tuple[str, str]] = []
+        for name in names:
+            if name in self.pack.facts:
+                spec = self.pack.facts[name]
+                shown.append((name, display_fact(self.facts.get(name, _MISSING), spec.decimals)))
+            else:
+                shown.append((name, self.outcome(name).outcome))
+        return tuple(shown)
+
+
+def prepare_facts(pack: RulePack, raw: Mapping[str, FactInput]) -> tuple[dict[str, Fact], Env]:
+    """Check facts against the catalogue (name, kind, unit, allowed word); never coerce silently."""
+    facts: dict[str, Fact] = {}
+    env: Env = {}
+    for name, given in raw.items():
+        spec = pack.facts.get(name)
+        if spec is None:
+            raise NotegenError(f"fact `{name}` is not in the catalogue of pack `{pack.id}`")
+        fact = as_fact(given)
+        if (
+            isinstance(fact, NumberFact)
+            and fact.unit is None
+            and spec.unit is not None
+            and isinstance(given, int | float)
+        ):
+            raise NotegenError(f"fact `{name}`: a bare number; give it as NumberFact(value, {spec.unit!r})")
+        kind = {NumberFact: "number", TextFact: "text"}.get(type(fact), "boolean")
+        if not isinstance(fact, MissingFact):
+            expected = "text" if spec.kind == "enum" else spec.kind
+            if kind != expected:
+                raise NotegenError(f"fact `{name}` should be a {spec.kind}, not {fact!r}")
+            if isinstance(fact, NumberFact) and (fact.unit or None) != (spec.unit or None):
+                raise NotegenError(f"fact `{name}` is in {fact.unit or 'no unit'}; the pack expects {spec.unit}")
+            if isinstance(fact, TextFact) and spec.kind == "enum" and fact.value not in spec.values:
+                raise NotegenError(f"fact `{name}`: `{fact.value}` is not one of {list(spec.values)}")
+            env[name] = fact_value(fact)
+        facts[name] = fact
+    return facts, env
+
+
+def _walk_tree(tree: CompiledTree, env: Env) -> _TreeState:
+    reach = [FALSE] * len(tree.nodes)
+    answers: list[int | None] = [None] * len(tree.nodes)
+    reach[tree.start] = TRUE
+    for key in tree.outcome_keys:
+        env[key] = FALSE
+    leaf = tree.start
+    for index in tree.order:
+        status = reach[index]
+        node = tree.nodes[index]
+        env[node.key] = status
+        if status == FALSE:
+            continue
+        if node.test is None:
+            assert node.outcome_key is not None
+            if status > env[node.outcome_key]:  # type: ignore[operator]
+                env[node.outcome_key] = status
+            if status == TRUE:
+                leaf = index
+            continue
+        answer = node.test(env)
+        answers[index] = answer
+        assert node.exits is not None
+        on_true, on_false, on_unknown = node.exits
+        taken = min(status, answer)
+        if taken > reach[on_true]:
+            reach[on_true] = taken
+        taken = min(status, TRUE - answer)
+        if taken > reach[on_false]:
+            reach[on_false] = taken
+        taken = status if answer == UNKNOWN else FALSE
+        if taken > reach[on_unknown]:
+            reach[on_unknown] = taken
+    return _TreeState(tuple(reach), tuple(answers), leaf)
+
+
+def _tier(points_for: int, points_against: int, pack: RulePack) -> Tier:
+    scoring = pack.scoring
+    net = points_for - points_against
+    if net >= scoring.likely_from:
+        return "likely"
+    if net >= scoring.possible_from or points_for >= scoring.keep_in_view_from:
+        return "possible"
+    return "unlikely"
+
+
+def _points(pack: RulePack, truths: list[int] | tuple[int, ...], cause: int) -> tuple[int, int]:
+    points_for = points_against = 0
+    for index in pack.causes[cause].evidence:
+        if truths[index] == TRUE:
+            item = pack.evidence[index]
+            if item.supporting:
+                points_for += item.weight
+            else:
+                points_against += item.weight
+    return points_for, points_against
+
+
+def walk(pack: RulePack, raw_facts: Mapping[str, FactInput]) -> WalkResult:
+    """Walk the pack over the facts (name -> fact); facts not given are missing."""
+    facts, env = prepare_facts(pack, raw_facts)
+    states = tuple(_walk_tree(tree, env) for tree in pack.trees)
+    truths = tuple(item.test(env) for item in pack.evidence)
+    tiers: list[Tier] = []
+    causes: list[tuple[tuple[int, int, int, int], CauseResult]] = []
+    for cause in pack.causes:
+        points_for, points_against = _points(pack, truths, cause.index)
+        tier = _tier(points_for, points_against, pack)
+        tiers.append(tier)
+        supporting: list[EvidenceResult] = []
+        opposing: list[EvidenceResult] = []
+        still_open: list[OpenEvidence] = []
+        for index in cause.evidence:
+            item = pack.evidence[index]
+            if truths[index] == TRUE:
+                found = EvidenceResult(
+                    item.id,
+                    item.strength,
+                    _fill(pack, item.says.names, item.says, facts, states),
+                    _used(pack, item.reads, facts, states),
+                    item.source,
+                )
+                (supporting if item.supporting else opposing).append(found)
+            elif truths[index] == UNKNOWN:
+                missing = tuple(n for n in item.reads if n in pack.facts and n not in env) or tuple(
+                    n for n in item.reads if n not in pack.facts
+                )
+                still_open.append(OpenEvidence(item.id, item.supporting, item.strength, item.condition_text, missing))
+        rank = (TIERS.index(tier), points_against - points_for, -points_for, cause.index)
+        causes.append(
+            (
+                rank,
+                CauseResult(
+                    cause.id,
+                    cause.label,
+                    tier,
+                    points_for,
+                    points_against,
+                    tuple(supporting),
+                    tuple(opposing),
+                    tuple(still_open),
+                ),
+            )
+        )
+    causes.sort(key=lambda pair: pair[0])
+
+    factor_answers = tuple(factor.test(env) for factor in pack.factors)
+    factors: list[FactorResult] = []
+    for factor, answer in zip(pack.factors, factor_answers, strict=True):
+        if answer == FALSE:
+            continue
+        used = _used(pack, factor.reads, facts, states)
+        if answer == TRUE:
+            text = _fill(pack, factor.says.names, factor.says, facts, states)
+            factors.append(
+                FactorResult(factor.id, factor.group, factor.label, "present", text, used, (), factor.source)
+            )
+        else:
+            missing = tuple(n for n in factor.reads if n in pack.facts and n not in env)
+            names = ", ".join(pack.facts[n].display_label for n in missing) or "the data"
+            text = f"{factor.label}: cannot tell; {names} not given."
+            factors.append(
+                FactorResult(factor.id, factor.group, factor.label, "undetermined", text, used, missing, factor.source)
+            )
+
+    outcomes = tuple(
+        _outcome(pack, tree, state, facts, env, states) for tree, state in zip(pack.trees, states, strict=True)
+    )
+    suggestions = _suggest(pack, env, states, truths, tiers, outcomes)
+    return WalkResult(
+        pack=pack,
+        facts=facts,
+        outcomes=outcomes,
+        causes=tuple(result for _, result in causes),
+        factors=tuple(factors),
+        suggestions=suggestions,
+        _states=states,
+        _evidence=truths,
+        _factors=factor_answers,
+        _env=env,
+    )
+
+
+def _tree_value(pack: RulePack, name: str, states: tuple[_TreeState, ...]) -> str:
+    for tree, state in zip(pack.trees, states, strict=True):
+        if tree.id == name:
+            return tree.nodes[state.leaf].outcome or ""
+    raise KeyError(name)
+
+
+def _fill(
+    pack: RulePack,
+    names: tuple[str, ...],
+    template: Template,
+    facts: Mapping[str, Fact],
+    states: tuple[_TreeState, ...],
+) -> str:
+    values: dict[str, str] = {}
+    for name in names:
+        if name in pack.facts:
+            values[name] = display_fact(facts.get(name, _MISSING), pack.facts[name].decimals)
+        elif name in pack.setting_text:
+            values[name] = pack.setting_text[name]
+        else:
+            values[name] = _tree_value(pack, name, states)
+    return template.fill(values)
+
+
+def _used(
+    pack: RulePack, names: tuple[str, ...], facts: Mapping[str, Fact], states: tuple[_TreeState, ...]
+) -> tuple[tuple[str, JsonValue], ...]:
+    return tuple(
+        (name, plain_value(facts.get(name, _MISSING)) if name in pack.facts else _tree_value(pack, name, states))
+        for name in names
+    )
+
+
+def _outcome(
+    pack: RulePack,
+    tree: CompiledTree,
+    state: _TreeState,
+    facts: Mapping[str, Fact],
+    env: Env,
+    states: tuple[_TreeState, ...],
+) -> TreeOutcome:
+    path = [i for i in tree.order if state.reach[i] == TRUE]
+    notes: list[str] = []
+    consider: list[str] = []
+    undecided: list[str] = []
+    for index in path:
+        node = tree.nodes[index]
+        if node.says is not None:
+            notes.append(_fill(pack, node.says.names, node.says, facts, states))
+        consider.extend(c for c in node.consider if c not in consider)
+        if state.answers[index] == UNKNOWN:
+            undecided.extend(n for n in node.reads if n in pack.facts and n not in env and n not in undecided)
+    leaf = tree.nodes[state.leaf]
+    return TreeOutcome(
+        tree.id,
+        tree.title,
+        leaf.outcome or "",
+        leaf.id,
+        tuple(tree.nodes[i].id for i in path),
+        tuple(notes),
+        tuple(consider),
+        tuple(undecided),
+    )
+
+
+def _suggest(
+    pack: RulePack,
+    env: Env,
+    states: tuple[_TreeState, ...],
+    truths: tuple[int, ...],
+    tiers: list[Tier],
+    outcomes: tuple[TreeOutcome, ...],
+) -> tuple[Suggestion, ...]:
+    found: list[tuple[tuple[int, int], Suggestion]] = []
+    for test in pack.tests:
+        missing = tuple(name for name in test.provides if name not in env)
+        if not missing or not _left_open(pack, missing, states, truths):
+            continue
+        decisions = _what_if(pack, test, missing, env, truths, tiers, outcomes)
+        if not decisions:
+            continue
+        first_tree = min((i for i, d in enumerate(decisions) if d.kind == "tree"), default=None)
+        rank = (0 if first_tree is not None else 1, test.index)
+        found.append(
+            (
+                rank,
+                Suggestion(test.id, test.label, missing, decisions, _why(pack, test, missing, decisions), test.source),
+            )
+        )
+    found.sort(key=lambda pair: pair[0])
+    return tuple(s for _, s in found)
+
+
+def _left_open(
+    pack: RulePack, missing: tuple[str, ...], states: tuple[_TreeState, ...], truths: tuple[int, ...]
+) -> bool:
+    """Did the absence of these facts leave some condition unknown (or a `known` test relevant)?"""
+    for name in missing:
+        for tree_index, node_index in pack.node_readers.get(name, ()):
+            if states[tree_index].reach[node_index] != FALSE:
+                return True
+        known = pack.known_readers.get(name, frozenset())
+        for index in pack.evidence_readers.get(name, ()):
+            if truths[index] == UNKNOWN or index in known:
+                return True
+    return False
+
+
+def _what_if(
+    pack: RulePack,
+    test: CompiledTest,
+    missing: tuple[str, ...],
+    env: Env,
+    truths: tuple[int, ...],
+    tiers: list[Tier],
+    outcomes: tuple[TreeOutcome, ...],
+) -> tuple[Decision, ...]:
+    tree_alternatives: dict[int, set[str]] = {i: set() for i in test.trees}
+    tier_alternatives: dict[int, set[str]] = {i: set() for i in test.causes}
+    options: list[tuple[Value, ...]] = [pack.candidates[name] for name in missing]
+    trial_truths = list(truths)
+    for combination in itertools.product(*options):
+        trial: Env = dict(env)
+        for name, value in zip(missing, combination, strict=True):
+            trial[name] = value
+        for tree_index in test.trees:
+            tree = pack.trees[tree_index]
+            state = _walk_tree(tree, trial)
+            outcome = tree.nodes[state.leaf].outcome or ""
+            if outcome != outcomes[tree_index].outcome:
+                tree_alternatives[tree_index].add(outcome)
+        for index in test.evidence:
+            trial_truths[index] = pack.evidence[index].test(trial)
+        for cause_index in test.causes:
+            tier = _tier(*_points(pack, trial_truths, cause_index), pack)
+            if tier != tiers[cause_index]:
+                tier_alternatives[cause_index].add(tier)
+    decisions: list[Decision] = []
+    for tree_index, alternatives in tree_alternatives.items():
+        if alternatives:
+            tree = pack.trees[tree_index]
+            ordered = tuple(o for o in tree.outcomes if o in alternatives)
+            decisions.append(Decision("tree", tree.id, tree.title, outcomes[tree_index].outcome, ordered))
+    for cause_index, alternatives in tier_alternatives.items():
+        if alternatives:
+            cause = pack.causes[cause_index]
+            ordered = tuple(t for t in TIERS if t in alternatives)
+            decisions.append(Decision("cause", cause.id, cause.label, tiers[cause_index], ordered))
+    return tuple(decisions)
+
+
+def _or(words: tuple[str, ...]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " or " + words[-1]
+
+
+def _why(pack: RulePack, test: CompiledTest, missing: tuple[str, ...], decisions: tuple[Decision, ...]) -> str:
+    names = ", ".join(pack.facts[name].display_label for name in missing)
+    parts = []
+    for decision in decisions:
+        if decision.kind == "tree":
+            parts.append(f"{decision.label} (now {decision.now}; could be {_or(decision.could_be)})")
+        else:
+            parts.append(f"{decision.label} (now {decision.now}; could become {_or(decision.could_be)})")
+    text = f"{names[:1].upper()}{names[1:]} not given; the result would decide: {'; '.join(parts)}."
+    return f"{test.purpose.strip()} {text}" if test.purpose.strip() else text
