@@ -272,7 +272,7 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     out.value = anion_gap(chem.na, chem.cl, hco3)
     used = out.value
     low, high = s.anion_gap_low.value, s.anion_gap_high.value
-    text = f"Anion gap {mmol(out.value)} (bicarbonate from the {label})"
+    text = f"Anion gap {mmol(out.value)} (using the {label})"
     if usable(chem.albumin):
         assert chem.albumin is not None
         out.corrected = corrected_anion_gap(
