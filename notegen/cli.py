@@ -15,7 +15,7 @@ from typing import Annotated
 
 import typer
 
-from .errors import NotegenError
+from .errors import NotegenError, UsageError
 
 app = typer.Typer(
     name="notegen",
@@ -125,7 +125,7 @@ def draft(
             from .batch import run_batch
 
             if paste is not None or assignments:
-                raise NotegenError("--paste and --set apply to a single case, not to a batch")
+                raise UsageError("--paste and --set apply to a single case, not to a batch")
             code = run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
             raise typer.Exit(code)
         from .intake import read_case
@@ -168,7 +168,7 @@ def new_case(
 
         text = (templates_dir() / "new_case.yaml").read_text(encoding="utf-8")
         if output is not None and output.exists():
-            raise NotegenError(f"{output} exists already; choose another name")
+            raise UsageError(f"{output} exists already; choose another name")
         _write_output(text, output)
 
 
