@@ -1,0 +1,490 @@
+"""The assessment paragraph: the acid-base reading and the alkalosis work-up as clinical prose.
+
+`draft_paragraph` reads only the `Assessment`. It returns plain text, not Markdown: the note
+templates escape it with the `md` filter, and the JSON output carries it as written. Every
+sentence is built for the combination at hand (one cause or several, none, missing gas or
+urine, a venous sample, values that do not agree), so no clause is left dangling.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Sequence
+
+from notegen.acidbase_model import AcidBaseReading, Disorder, ExpectedRange
+from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
+from notegen.render.filters import format_number, join_words
+
+__all__ = ["draft_paragraph"]
+
+WORDS: dict[str, str] = {
+    "metabolic_alkalosis": "metabolic alkalosis",
+    "metabolic_acidosis": "metabolic acidosis",
+    "respiratory_acidosis": "respiratory acidosis",
+    "respiratory_alkalosis": "respiratory alkalosis",
+}
+_STRENGTH_ORDER = {"strong": 0, "moderate": 1, "weak": 2}
+_COUNT_WORDS = {2: "Two", 3: "Three", 4: "Four", 5: "Five", 6: "Six"}
+# Eponyms keep their capital when a finding or label moves into the middle of a sentence.
+_KEEP_CAPITAL = frozenset({"Addison", "Bartter", "Conn", "Cushing", "Gitelman", "Henderson", "Liddle", "Winter"})
+_FIRST_WORD = re.compile(r"[A-Za-z]+")
+FINDINGS_PER_CAUSE = 3
+AGAINST_CAUSES = 2
+POSSIBLE_CAUSES_NAMED = 3
+
+
+def draft_paragraph(assessment: Assessment) -> str:
+    """The assessment paragraph, as plain text in one paragraph."""
+    reading = assessment.acid_base
+    said: set[str] = set()  # disorders already named, so none is announced twice
+    sentences: list[str] = []
+    sentences += _consistency(reading)
+    primary, gap_said = _primary(reading, said)
+    sentences += primary
+    sentences += _anion_gap(reading, said, gap_said)
+    sentences += _other_disorders(reading, said)
+    sentences += _alkalosis(assessment)
+    sentences += _next_tests(assessment)
+    return " ".join(sentence for sentence in sentences if sentence)
+
+
+# Numbers ---------------------------------------------------------------------------------------
+
+
+def _num(value: float, digits: int = 1) -> str:
+    # Half away from zero on the printed digits (8.25 -> 8.3), trailing zeros dropped, never "-0".
+    text = format_number(value, digits)
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text == "-0" else text
+
+
+def _ph(value: float) -> str:
+    # Two decimals as analysers print pH; a third only when the value carries one.
+    return f"{value:.2f}" if round(value, 2) == round(value, 3) else f"{value:.3f}"
+
+
+def _mmhg(value: float) -> str:
+    return f"{_num(value)} mmHg"
+
+
+def _mmol(value: float) -> str:
+    return f"{_num(value)} mmol/L"
+
+
+def _span(low: float, high: float, unit: str) -> str:
+    return f"{_num(low)}\u2013{_num(high)} {unit}"
+
+
+def _range(expected: ExpectedRange) -> str:
+    return _span(expected.low, expected.high, expected.unit)
+
+
+def _by_rule(rule: str) -> str:
+    return rule if rule.startswith("Winter") else f"the {rule}"
+
+
+# Words -----------------------------------------------------------------------------------------
+
+
+def _inline(text: str) -> str:
+    """Text placed mid-sentence: an ordinary capitalised first word loses its capital."""
+    text = text.strip()
+    match = _FIRST_WORD.match(text)
+    if match and match.start() == 0:
+        word = match.group()
+        if len(word) >= 3 and word[0].isupper() and word[1:].islower() and word not in _KEEP_CAPITAL:
+            return text[0].lower() + text[1:]
+    return text
+
+
+def _clause(text: str) -> str:
+    """A sentence turned into a clause for a parenthesis or a list."""
+    return _inline(text).rstrip().rstrip(".").rstrip()
+
+
+def _cap(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
+def _sentence(text: str) -> str:
+    text = text.strip()
+    if not text:
+        return ""
+    text = _cap(text)
+    return text if text[-1] in ".!?" else text + "."
+
+
+def _article(word: str) -> str:
+    return "an" if word[:1].lower() in "aeiou" else "a"
+
+
+# The gas ---------------------------------------------------------------------------------------
+
+
+def _pco2_name(reading: AcidBaseReading) -> str:
+    return "venous PCO2" if reading.sample == "venous" else "PaCO2"
+
+
+def _gas_values(reading: AcidBaseReading) -> str:
+    parts: list[str] = []
+    if reading.ph is not None:
+        parts.append(f"pH {_ph(reading.ph)}" + (" (calculated)" if reading.ph_source == "calculated" else ""))
+    if reading.pco2 is not None:
+        parts.append(f"{'PCO2' if reading.sample == 'venous' else 'PaCO2'} {_mmhg(reading.pco2)}")
+    if reading.hco3 is not None:
+        note = {"calculated": " (calculated)", "panel": " (panel total CO2)"}.get(reading.hco3_source or "", "")
+        parts.append(f"HCO3 {_mmol(reading.hco3)}{note}")
+    return ", ".join(parts)
+
+
+def _gas(reading: AcidBaseReading) -> str:
+    values = _gas_values(reading)
+    if reading.sample == "venous":
+        return f"The venous gas ({values})"
+    if reading.sample == "unstated":
+        return f"The gas ({values}; sample type not stated, so read as arterial)"
+    return f"The arterial gas ({values})"
+
+
+def _consistency(reading: AcidBaseReading) -> list[str]:
+    if reading.consistency != "inconsistent" or reading.ph is None or reading.calculated_ph is None:
+        return []
+    return [
+        f"Of note, the reported pH of {_ph(reading.ph)} does not agree with the PaCO2 and HCO3, which give "
+        f"{_ph(reading.calculated_ph)}; the values should be rechecked, or the gas repeated, before the "
+        "reading below is relied on."
+    ]
+
+
+def _added(reading: AcidBaseReading, candidates: Sequence[Disorder]) -> Disorder | None:
+    for disorder in (*reading.disorders, *reading.possible_disorders):
+        if disorder in candidates and disorder != reading.primary:
+            return disorder
+    return None
+
+
+def _primary(reading: AcidBaseReading, said: set[str]) -> tuple[list[str], bool]:
+    """Sentences naming the primary disorder and its compensation; True when the gap was stated."""
+    primary = reading.primary
+    if reading.ph is None or reading.pco2 is None:
+        text = "There is no blood gas with a pH and PaCO2, so the primary disorder cannot be determined"
+        _, _, tail = reading.primary_reason.partition("; ")
+        return [_sentence(f"{text}; {tail}" if tail else text)], False
+    gas = _gas(reading)
+    if primary == "none":
+        return [f"{gas} lies within the reference ranges, with no acid-base disorder on these values."], False
+    if primary == "undetermined":
+        return [f"{gas} does not show a clear primary disorder; {_clause(reading.primary_reason)}."], False
+    said.add(primary)
+    if primary in ("metabolic_alkalosis", "metabolic_acidosis"):
+        return _metabolic_primary(reading, gas, said)
+    return _respiratory_primary(reading, gas, said), False
+
+
+def _metabolic_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> tuple[list[str], bool]:
+    word = WORDS[reading.primary]
+    expected = reading.expected
+    if expected is None or reading.compensation == "not_applicable":
+        used, adjective = _gap_used(reading)
+        if reading.anion_gap_status == "high" and used is not None:
+            reference = _span(*reading.anion_gap_reference, "mmol/L")
+            return [
+                f"{gas} looks close to normal, but the {adjective}anion gap of {_mmol(used)} (reference "
+                f"{reference}) shows a high anion gap {word}."
+            ], True
+        return [f"{gas} shows a primary {word}."], False
+    assert reading.pco2 is not None
+    rule, span = _by_rule(expected.rule), _range(expected)
+    pco2 = f"{_pco2_name(reading)} of {_mmhg(reading.pco2)}"
+    side = "above" if reading.pco2 > expected.high else "below"
+    added = _added(reading, ("respiratory_acidosis", "respiratory_alkalosis"))
+    if reading.compensation == "appropriate":
+        return [
+            f"{gas} shows a primary {word} with appropriate respiratory compensation (expected PaCO2 {span} by {rule})."
+        ], False
+    if reading.compensation == "inappropriate" and added is not None:
+        said.add(added)
+        return [
+            f"{gas} shows a primary {word} with an added {WORDS[added]}: the {pco2} is {side} the {span} "
+            f"that {rule} predicts."
+        ], False
+    if reading.sample == "venous":
+        if added is not None and not expected.low <= reading.pco2 <= expected.high:
+            said.add(added)
+            return [
+                f"{gas} shows a primary {word}.",
+                f"The {pco2} is {side} the {span} that {rule} predicts, which suggests an added "
+                f"{WORDS[added]} but cannot establish one from a venous sample.",
+            ], False
+        return [
+            f"{gas} shows a primary {word}.",
+            f"The {pco2} would fit the {span} that {rule} predicts, but a venous PCO2 cannot confirm "
+            "compensation; an arterial gas would settle it if that matters.",
+        ], False
+    if added is not None:
+        said.add(added)
+        return [
+            f"{gas} shows a primary {word}; the {pco2} lies within the {span} that {rule} predicts, "
+            f"but respiratory compensation this high is uncommon, so an added {WORDS[added]} is possible."
+        ], False
+    return [f"{gas} shows a primary {word}; whether compensation fits cannot be judged."], False
+
+
+def _respiratory_ranges(reading: AcidBaseReading) -> tuple[ExpectedRange | None, ExpectedRange | None]:
+    acute = next((e for e in reading.expected_alternatives if e.rule.startswith("acute")), None)
+    chronic = next((e for e in reading.expected_alternatives if e.rule.startswith("chronic")), None)
+    return acute, chronic
+
+
+def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> list[str]:
+    word = WORDS[reading.primary]
+    expected = reading.expected
+    acute, chronic = _respiratory_ranges(reading)
+    if expected is None or acute is None or chronic is None or reading.hco3 is None:
+        return [f"{gas} shows a primary {word}."]
+    both = f"the acute ({_range(acute)}) and chronic ({_range(chronic)}) ranges"
+    hco3 = _mmol(reading.hco3)
+    outside = not (min(acute.low, chronic.low) <= reading.hco3 <= max(acute.high, chronic.high))
+    added = _added(reading, ("metabolic_alkalosis", "metabolic_acidosis"))
+    if outside and added is not None:
+        said.add(added)
+        side = "above" if reading.hco3 > max(acute.high, chronic.high) else "below"
+        if reading.compensation == "inappropriate":
+            return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
+        return [
+            f"{gas} shows a primary {word}; the HCO3 of {hco3} is {side} {both}, which suggests an added "
+            f"{WORDS[added]} but cannot establish one from a venous sample."
+        ]
+    fits = {
+        "chronic": f"with appropriate renal compensation for a chronic process (expected HCO3 {_range(chronic)} "
+        f"by {_by_rule(chronic.rule)})",
+        "acute": f"whose bicarbonate fits an acute process (expected HCO3 {_range(acute)} by {_by_rule(acute.rule)})",
+        "indeterminate": f"whose bicarbonate fits both {both}, which overlap at this PaCO2, so its duration "
+        "cannot be read from the gas",
+        "between": f"whose bicarbonate of {hco3} lies between {both}, as in a process some days old or an "
+        "acute rise on a chronic one",
+    }
+    text = f"{gas} shows a primary {word} {fits[reading.chronicity or 'indeterminate']}"
+    if reading.compensation == "uncertain":
+        text += "; with a venous sample this reading is provisional"
+    return [text + "."]
+
+
+# The anion gap ---------------------------------------------------------------------------------
+
+
+def _gap_used(reading: AcidBaseReading) -> tuple[float | None, str]:
+    if reading.anion_gap_corrected is not None:
+        return reading.anion_gap_corrected, "albumin-corrected "
+    return reading.anion_gap, ""
+
+
+def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list[str]:
+    metabolic = {"metabolic_alkalosis", "metabolic_acidosis"}
+    relevant = bool(metabolic & {*reading.disorders, *reading.possible_disorders, reading.primary})
+    used, adjective = _gap_used(reading)
+    sentences: list[str] = []
+    if used is None or reading.anion_gap_status is None:
+        if relevant:
+            sentences.append("The anion gap cannot be calculated without sodium, chloride and a bicarbonate.")
+        return sentences
+    reference = _span(*reading.anion_gap_reference, "mmol/L")
+    if reading.anion_gap_status == "high" and not gap_said:
+        text = f"The {adjective}anion gap is high at {_mmol(used)} (reference {reference})"
+        if reading.primary == "metabolic_acidosis":
+            text += ", so this is a high anion gap acidosis"
+        else:
+            said.add("metabolic_acidosis")
+            text += ", which adds a high anion gap metabolic acidosis"
+            if reading.ph_status == "alkalemia" and used <= reading.anion_gap_reference[1] + 4:
+                text += ", though alkalemia itself raises the gap by a few mmol/L"
+        sentences.append(text + ".")
+    elif reading.anion_gap_status == "normal":
+        if reading.primary == "metabolic_acidosis":
+            sentences.append(
+                f"The {adjective}anion gap is normal at {_mmol(used)}, so this is a normal anion gap "
+                "(hyperchloremic) acidosis."
+            )
+        elif relevant:
+            sentences.append(f"The {adjective}anion gap is normal at {_mmol(used)}.")
+    sentences += _delta_ratio(reading, said)
+    return sentences
+
+
+def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
+    meaning = reading.delta_ratio_interpretation
+    if meaning is None:
+        return []
+    ratio = reading.delta_ratio
+    shown = f"The delta ratio of {ratio:.1f}" if ratio is not None else ""
+    if "metabolic alkalosis" in meaning:
+        said.add("metabolic_alkalosis")
+        other = " or the compensation of a respiratory acidosis" if "compensation" in meaning else ""
+        if ratio is None:
+            return [
+                "The bicarbonate has not fallen although the gap is high, which points to a concurrent "
+                f"metabolic alkalosis{other}."
+            ]
+        return [
+            f"{shown} shows that the bicarbonate has fallen far less than the gap has risen, which points to "
+            f"a concurrent metabolic alkalosis{other}."
+        ]
+    if ratio is None:
+        return [_sentence(meaning)]
+    if "accompanies" in meaning:
+        return [f"{shown} points to a normal anion gap acidosis alongside it."]
+    if "mixed" in meaning:
+        return [f"{shown} leaves room for a normal anion gap component as well."]
+    if "alone" in meaning:
+        return [f"{shown} fits a high anion gap acidosis alone."]
+    return [f"{shown} suggests {_clause(meaning)}."]
+
+
+def _other_disorders(reading: AcidBaseReading, said: set[str]) -> list[str]:
+    sentences: list[str] = []
+    for basis in reading.disorder_basis:
+        if basis.disorder in said or basis.disorder == reading.primary:
+            continue
+        said.add(basis.disorder)
+        word = WORDS[basis.disorder]
+        if basis.certainty == "established":
+            sentences.append(f"There is also {_article(word)} {word} ({_clause(basis.basis)}).")
+        else:
+            sentences.append(f"{_cap(_article(word))} {word} may also be present ({_clause(basis.basis)}).")
+    return sentences
+
+
+# The alkalosis work-up -------------------------------------------------------------------------
+
+
+def _alkalosis(assessment: Assessment) -> list[str]:
+    reading = assessment.acid_base
+    if assessment.chloride_class is None:
+        if "metabolic_alkalosis" in reading.disorders:
+            return ["The causes of the alkalosis have not been weighed in this draft."]
+        if "metabolic_alkalosis" in reading.possible_disorders:
+            return [
+                "Whether a metabolic alkalosis is also present is uncertain on these values, so no "
+                "alkalosis differential was drawn."
+            ]
+        if reading.primary == "respiratory_acidosis" and reading.chronicity in ("chronic", "between"):
+            return [
+                "The raised bicarbonate is compensation rather than a metabolic alkalosis, so no alkalosis "
+                "differential applies."
+            ]
+        return ["There is no metabolic alkalosis, so no alkalosis differential applies."]
+    return [
+        *_chloride(assessment),
+        *_causes(assessment.differential),
+        *_against(assessment.differential),
+        *_maintenance(assessment.maintenance),
+    ]
+
+
+def _urine_chloride(assessment: Assessment) -> str | None:
+    value = assessment.case.urine.cl
+    if value is None:
+        return None
+    qualifier = None
+    for measurement in assessment.case.measurements:
+        if measurement.field == "urine.cl" and measurement.value == value:
+            qualifier = measurement.qualifier
+    if qualifier == "<":
+        return f"A urine chloride below {_mmol(value)}"
+    if qualifier == ">":
+        return f"A urine chloride above {_mmol(value)}"
+    return f"The urine chloride of {_mmol(value)}"
+
+
+def _chloride(assessment: Assessment) -> list[str]:
+    chloride = _urine_chloride(assessment)
+    notes = [_sentence(note) for note in assessment.chloride_notes]
+    cls = assessment.chloride_class
+    if chloride is None:
+        if cls in ("responsive", "resistant"):
+            head = f"The alkalosis reads as chloride-{cls}."
+        else:
+            head = "Without a urine chloride, the alkalosis cannot yet be classed as chloride-responsive or resistant."
+    elif cls in ("responsive", "resistant"):
+        verb = "would make" if notes else "makes"
+        head = f"{chloride} {verb} the alkalosis chloride-{cls}."
+    elif cls == "indeterminate":
+        head = f"{chloride} falls between the chloride-responsive and chloride-resistant ranges."
+    else:
+        head = f"{chloride} cannot be used to class the alkalosis."
+    return [head, *notes]
+
+
+def _strongest(evidence: Sequence[Evidence], limit: int) -> list[Evidence]:
+    return sorted(evidence, key=lambda item: _STRENGTH_ORDER.get(item.strength, 3))[:limit]
+
+
+def _findings(evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
+    return "; ".join(_clause(item.text) for item in _strongest(evidence, limit) if item.text.strip())
+
+
+def _with_findings(label: str, evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
+    findings = _findings(evidence, limit)
+    return f"{label} ({findings})" if findings else label
+
+
+def _causes(differential: Sequence[CauseEntry]) -> list[str]:
+    likely = [cause for cause in differential if cause.tier == "likely"]
+    possible = [cause for cause in differential if cause.tier == "possible"]
+    sentences: list[str] = []
+    if len(likely) == 1:
+        sentences.append(f"{_cap(_with_findings(_inline(likely[0].label), likely[0].supporting))} is the likely cause.")
+    elif likely:
+        count = _COUNT_WORDS.get(len(likely), str(len(likely)))
+        items = [_with_findings(_inline(cause.label), cause.supporting) for cause in likely]
+        sentences.append(f"{count} causes are likely and may be acting together: {join_words(items)}.")
+    named = possible[:POSSIBLE_CAUSES_NAMED]
+    rest = len(possible) - len(named)
+    if likely and possible:
+        labels = [_inline(cause.label) for cause in named]
+        if rest:
+            labels.append(f"{rest} other{'s' if rest > 1 else ''}")
+        verb = "is" if len(possible) == 1 else "are"
+        sentences.append(f"{_cap(join_words(labels))} {verb} also possible.")
+    elif possible:
+        items = [_with_findings(_inline(cause.label), cause.supporting, 2) for cause in named]
+        if rest:
+            items.append(f"{rest} other{'s' if rest > 1 else ''}")
+        verb = "remains" if len(possible) == 1 else "remain"
+        sentences.append(f"No cause is clearly supported; {join_words(items)} {verb} possible.")
+    elif not likely:
+        sentences.append("The findings do not yet point to any of the usual causes.")
+    return sentences
+
+
+def _against(differential: Sequence[CauseEntry]) -> list[str]:
+    unlikely = [cause for cause in differential if cause.tier == "unlikely" and cause.opposing][:AGAINST_CAUSES]
+    if not unlikely:
+        return []
+    items = [_with_findings(_inline(cause.label), cause.opposing, 2) for cause in unlikely]
+    verb = "is" if len(items) == 1 else "are"
+    return [f"{_cap(join_words(items))} {verb} unlikely."]
+
+
+def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
+    present = [_inline(factor.label) for factor in factors if factor.status == "present"]
+    open_ = [_inline(factor.label) for factor in factors if factor.status == "undetermined"]
+    if present and open_:
+        return [
+            f"The alkalosis is maintained by {join_words(present)}; whether {join_words(open_, 'or')} also "
+            "contributes cannot be judged from these values."
+        ]
+    if present:
+        return [f"The alkalosis is maintained by {join_words(present)}."]
+    if open_:
+        return [f"Whether {join_words(open_, 'or')} maintains the alkalosis cannot be judged from these values."]
+    return []
+
+
+def _next_tests(assessment: Assessment) -> list[str]:
+    labels = [_inline(test.label) for test in assessment.next_tests]
+    if not labels:
+        return []
+    noun = "test" if len(labels) == 1 else "tests"
+    return [f"Next {noun} to consider: {join_words(labels)}."]
