@@ -370,6 +370,10 @@ def _differential_note(assessment: Assessment) -> str:
         return "" if assessment.differential else "No cause could be weighed on these values."
     if "metabolic_alkalosis" in reading.disorders:
         return "The causes of the metabolic alkalosis have not been weighed in this draft."
+    if reading.ph is None or reading.pco2 is None:
+        return (
+            "Without a gas, a metabolic alkalosis can be neither confirmed nor excluded, so no differential was drawn."
+        )
     if "metabolic_alkalosis" in reading.possible_disorders:
         return "A metabolic alkalosis is possible but not established, so no differential was drawn."
     return "No metabolic alkalosis on these values, so no alkalosis differential applies."
@@ -381,7 +385,7 @@ def _trace_row(entry: dict[str, Any]) -> dict[str, str]:
         "kind": entry["kind"],
         "id": entry["id"],
         "condition": entry["condition"],
-        "values": values or "none",
+        "seen": values or "none",
         "outcome": entry["outcome"],
         "goes_to": entry["goes_to"] or "",
         "source": entry["source"],

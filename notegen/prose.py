@@ -28,6 +28,8 @@ _COUNT_WORDS = {2: "Two", 3: "Three", 4: "Four", 5: "Five", 6: "Six"}
 # Eponyms keep their capital when a finding or label moves into the middle of a sentence.
 _KEEP_CAPITAL = frozenset({"Addison", "Bartter", "Conn", "Cushing", "Gitelman", "Henderson", "Liddle", "Winter"})
 _FIRST_WORD = re.compile(r"[A-Za-z]+")
+# Two-letter words that are English, not element symbols such as Na, Mg or Cl.
+_SHORT_WORDS = frozenset({"An", "As", "At", "By", "If", "In", "Is", "It", "No", "Of", "On", "Or", "To", "Up"})
 FINDINGS_PER_CAUSE = 3
 AGAINST_CAUSES = 2
 POSSIBLE_CAUSES_NAMED = 3
@@ -93,7 +95,8 @@ def _inline(text: str) -> str:
     match = _FIRST_WORD.match(text)
     if match and match.start() == 0:
         word = match.group()
-        if len(word) >= 3 and word[0].isupper() and word[1:].islower() and word not in _KEEP_CAPITAL:
+        ordinary = (len(word) >= 3 and word[1:].islower()) or word in _SHORT_WORDS
+        if ordinary and word[0].isupper() and word not in _KEEP_CAPITAL:
             return text[0].lower() + text[1:]
     return text
 
@@ -129,12 +132,12 @@ def _pco2_name(reading: AcidBaseReading) -> str:
 def _gas_values(reading: AcidBaseReading) -> str:
     parts: list[str] = []
     if reading.ph is not None:
-        parts.append(f"pH {_ph(reading.ph)}" + (" (calculated)" if reading.ph_source == "calculated" else ""))
+        parts.append(("calculated pH " if reading.ph_source == "calculated" else "pH ") + _ph(reading.ph))
     if reading.pco2 is not None:
         parts.append(f"{'PCO2' if reading.sample == 'venous' else 'PaCO2'} {_mmhg(reading.pco2)}")
     if reading.hco3 is not None:
-        note = {"calculated": " (calculated)", "panel": " (panel total CO2)"}.get(reading.hco3_source or "", "")
-        parts.append(f"HCO3 {_mmol(reading.hco3)}{note}")
+        name = {"calculated": "calculated HCO3", "panel": "panel total CO2"}.get(reading.hco3_source or "", "HCO3")
+        parts.append(f"{name} {_mmol(reading.hco3)}")
     return ", ".join(parts)
 
 
@@ -152,8 +155,8 @@ def _consistency(reading: AcidBaseReading) -> list[str]:
         return []
     return [
         f"Of note, the reported pH of {_ph(reading.ph)} does not agree with the PaCO2 and HCO3, which give "
-        f"{_ph(reading.calculated_ph)}; the values should be rechecked, or the gas repeated, before the "
-        "reading below is relied on."
+        f"{reading.calculated_ph:.2f}; the values should be rechecked, or the gas repeated, before this "
+        "reading is relied on."
     ]
 
 
@@ -175,7 +178,15 @@ def _primary(reading: AcidBaseReading, said: set[str]) -> tuple[list[str], bool]
     if primary == "none":
         return [f"{gas} lies within the reference ranges, with no acid-base disorder on these values."], False
     if primary == "undetermined":
-        return [f"{gas} does not show a clear primary disorder; {_clause(reading.primary_reason)}."], False
+        if len(reading.disorders) >= 2 and "mixed" in reading.primary_reason:
+            # Two processes pulling the pH back to normal: name both rather than a primary.
+            said.update(reading.disorders)
+            words = join_words([WORDS[d] for d in reading.disorders])
+            return [
+                f"{gas} shows a mixed {words} that offset each other, leaving the pH within range; which came "
+                "first cannot be told from the gas."
+            ], False
+        return [f"{gas} does not show a clear primary disorder ({_clause(reading.primary_reason)})."], False
     said.add(primary)
     if primary in ("metabolic_alkalosis", "metabolic_acidosis"):
         return _metabolic_primary(reading, gas, said)
@@ -286,7 +297,9 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
     used, adjective = _gap_used(reading)
     sentences: list[str] = []
     if used is None or reading.anion_gap_status is None:
-        if relevant:
+        if relevant and reading.hco3 is not None:
+            sentences.append("The anion gap cannot be calculated without sodium and chloride.")
+        elif relevant:
             sentences.append("The anion gap cannot be calculated without sodium, chloride and a bicarbonate.")
         return sentences
     reference = _span(*reading.anion_gap_reference, "mmol/L")
@@ -368,11 +381,18 @@ def _alkalosis(assessment: Assessment) -> list[str]:
                 "Whether a metabolic alkalosis is also present is uncertain on these values, so no "
                 "alkalosis differential was drawn."
             ]
+        if reading.ph is None or reading.pco2 is None:
+            return [
+                "Without a gas, a metabolic alkalosis can be neither confirmed nor excluded, so no alkalosis "
+                "differential was drawn."
+            ]
         if reading.primary == "respiratory_acidosis" and reading.chronicity in ("chronic", "between"):
             return [
                 "The raised bicarbonate is compensation rather than a metabolic alkalosis, so no alkalosis "
                 "differential applies."
             ]
+        if reading.primary == "undetermined":
+            return ["No metabolic alkalosis is established on these values, so no alkalosis differential was drawn."]
         return ["There is no metabolic alkalosis, so no alkalosis differential applies."]
     return [
         *_chloride(assessment),

@@ -1,0 +1,430 @@
+"""The assessment paragraph: exact sentences for hand-built work-ups, and grammar across combinations.
+
+The differential, maintenance factors and tests below are invented by hand (as the rule walk
+would fill them) on top of real acid-base readings of the samples.
+"""
+
+from __future__ import annotations
+
+import re
+from functools import cache
+from pathlib import Path
+from typing import Any
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
+from notegen.assessment import TestEntry as SuggestedTest  # its own name would be collected by pytest
+from notegen.drafting import Drafter
+from notegen.intake import read_case
+from notegen.prose import draft_paragraph
+from notegen.validation import validate_case
+
+SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+
+
+@cache
+def _drafter() -> Drafter:
+    return Drafter()
+
+
+def sample(stem: str) -> Assessment:
+    return _drafter().assess(read_case(str(SAMPLES / f"{stem}.yaml")))
+
+
+def assess(data: dict[str, Any]) -> Assessment:
+    return _drafter().assess(validate_case(data))
+
+
+def ev(text: str, strength: str = "strong", source: str = "common practice") -> Evidence:
+    return Evidence(id=re.sub(r"\W+", "_", text.lower())[:30], strength=strength, text=text, facts={}, source=source)  # type: ignore[arg-type]
+
+
+def cause(
+    cause_id: str, label: str, tier: str, supporting: tuple[Evidence, ...] = (), opposing: tuple[Evidence, ...] = ()
+) -> CauseEntry:
+    return CauseEntry.model_validate(
+        {"cause": cause_id, "label": label, "tier": tier, "for": supporting, "against": opposing}
+    )
+
+
+def factor(factor_id: str, label: str, status: str = "present") -> FactorEntry:
+    return FactorEntry(factor=factor_id, label=label, status=status, text=f"{label}.", source="common practice")  # type: ignore[arg-type]
+
+
+def suggested(test_id: str, label: str) -> SuggestedTest:
+    return SuggestedTest(test=test_id, label=label, why="it would settle what is still open")
+
+
+def worked_up(assessment: Assessment, **fields: Any) -> Assessment:
+    return assessment.model_copy(update=fields)
+
+
+THIAZIDE_VOMITING_WORKUP: dict[str, Any] = {
+    "chloride_class": "responsive",
+    "differential": (
+        cause(
+            "gastric_loss",
+            "Gastric acid loss",
+            "likely",
+            (ev("Vomiting for three days."), ev("Urine chloride 14 mmol/L, below 20 mmol/L.")),
+        ),
+        cause(
+            "diuretic",
+            "Diuretic use",
+            "likely",
+            (
+                ev("Hydrochlorothiazide last taken 40 hours ago.", "moderate"),
+                ev("Urine potassium-to-creatinine ratio 3.7 mmol/mmol, a renal potassium loss.", "moderate"),
+            ),
+        ),
+        cause(
+            "mineralocorticoid_excess",
+            "Mineralocorticoid excess",
+            "unlikely",
+            opposing=(ev("Blood pressure 104/62 mmHg, not raised."), ev("Volume status low.", "moderate")),
+        ),
+        cause("alkali_load", "Alkali load", "unlikely", opposing=(ev("No alkali source among the medications."),)),
+        cause("reduced_gfr", "Reduced GFR", "unlikely", opposing=(ev("eGFR 43 mL/min/1.73 m2."),)),
+    ),
+    "maintenance": (
+        factor("volume_contraction", "Volume contraction"),
+        factor("hypokalemia", "Hypokalemia"),
+        factor("reduced_gfr", "Reduced GFR", "undetermined"),
+    ),
+    "next_tests": (suggested("urine_calcium_creatinine", "urine calcium-to-creatinine ratio"),),
+}
+
+
+# Exact paragraphs ------------------------------------------------------------------------------
+
+
+def test_thiazide_and_vomiting_two_likely_causes() -> None:
+    text = draft_paragraph(worked_up(sample("thiazide_and_vomiting"), **THIAZIDE_VOMITING_WORKUP))
+    assert text == (
+        "The arterial gas (pH 7.50, PaCO2 49 mmHg, HCO3 38 mmol/L) shows a primary metabolic alkalosis with "
+        "appropriate respiratory compensation (expected PaCO2 47.8–51.8 mmHg by the 0.7 rule). "
+        "The albumin-corrected anion gap is normal at 10 mmol/L. "
+        "The urine chloride of 14 mmol/L makes the alkalosis chloride-responsive. "
+        "Two causes are likely and may be acting together: gastric acid loss (vomiting for three days; urine "
+        "chloride 14 mmol/L, below 20 mmol/L) and diuretic use (hydrochlorothiazide last taken 40 hours ago; "
+        "urine potassium-to-creatinine ratio 3.7 mmol/mmol, a renal potassium loss). "
+        "Mineralocorticoid excess (blood pressure 104/62 mmHg, not raised; volume status low) and alkali load "
+        "(no alkali source among the medications) are unlikely. "
+        "The alkalosis is maintained by volume contraction and hypokalemia; whether reduced GFR also "
+        "contributes cannot be judged from these values. "
+        "Next test to consider: urine calcium-to-creatinine ratio."
+    )
+
+
+def test_loop_diuretic_high_urine_chloride_carries_the_caveat() -> None:
+    note = "Furosemide was given 4 hours ago, so a high urine chloride cannot be read as chloride resistance"
+    assessment = worked_up(
+        sample("loop_diuretic_heart_failure"),
+        chloride_class="resistant",
+        chloride_notes=(note,),
+        differential=(
+            cause("diuretic", "loop diuretic", "likely", (ev("Furosemide 4 hours before the urine sample."),)),
+            cause("mineralocorticoid_excess", "mineralocorticoid excess", "possible", (ev("Edema."),)),
+        ),
+        maintenance=(factor("volume_contraction", "effective volume contraction", "undetermined"),),
+    )
+    text = draft_paragraph(assessment)
+    assert (
+        "The urine chloride of 78 mmol/L would make the alkalosis chloride-resistant. Furosemide was given 4 "
+        "hours ago, so a high urine chloride cannot be read as chloride resistance. "
+        "Loop diuretic (furosemide 4 hours before the urine sample) is the likely cause. "
+        "Mineralocorticoid excess is also possible. "
+        "Whether effective volume contraction maintains the alkalosis cannot be judged from these values."
+    ) in text
+
+
+def test_without_urine_the_class_is_open_and_the_tests_say_so() -> None:
+    data = {
+        "case": "no urine",
+        "patient": {"age": 60, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
+        "chem": {"na": 137, "k": 3.2, "cl": 91, "albumin": 3.0},
+    }
+    assessment = worked_up(
+        assess(data),
+        chloride_class="unknown",
+        next_tests=(
+            suggested("urine_chloride", "spot urine chloride"),
+            suggested("urine_potassium_creatinine", "urine potassium-to-creatinine ratio"),
+            suggested("serum_magnesium", "serum magnesium"),
+        ),
+    )
+    text = draft_paragraph(assessment)
+    assert text.endswith(
+        "Without a urine chloride, the alkalosis cannot yet be classed as chloride-responsive or resistant. "
+        "The findings do not yet point to any of the usual causes. "
+        "Next tests to consider: spot urine chloride, urine potassium-to-creatinine ratio and serum magnesium."
+    )
+
+
+def test_below_the_assay_limit_is_read_as_below() -> None:
+    text = draft_paragraph(worked_up(sample("gastric_suction"), chloride_class="responsive"))
+    assert "A urine chloride below 10 mmol/L makes the alkalosis chloride-responsive." in text
+
+
+def test_chronic_co2_retention_is_not_called_a_metabolic_alkalosis() -> None:
+    # Chronic rule 3.5 mmol/L per 10 mmHg (Narins & Emmett, Medicine 1980): 24 + 3.5 x 2.2 = 31.7 +/- 2.
+    assert draft_paragraph(sample("chronic_co2_retention")) == (
+        "The arterial gas (pH 7.33, PaCO2 62 mmHg, HCO3 32 mmol/L) shows a primary respiratory acidosis with "
+        "appropriate renal compensation for a chronic process (expected HCO3 29.7–33.7 mmol/L by the chronic "
+        "respiratory acidosis rule). The raised bicarbonate is compensation rather than a metabolic alkalosis, "
+        "so no alkalosis differential applies."
+    )
+
+
+def test_ketoacidosis_hides_an_alkalosis() -> None:
+    # Delta ratio (28 - 12) / (24 - 22) = 8 (Rastegar, JASN 2007): above 2, a concurrent alkalosis.
+    assert draft_paragraph(sample("ketoacidosis_with_vomiting")) == (
+        "The arterial gas (pH 7.35, PaCO2 40 mmHg, HCO3 22 mmol/L) looks close to normal, but the "
+        "albumin-corrected anion gap of 28 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
+        "acidosis. The delta ratio of 8.0 shows that the bicarbonate has fallen far less than the gap has "
+        "risen, which points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been "
+        "weighed in this draft."
+    )
+
+
+def test_venous_gas_softens_the_compensation_verdict() -> None:
+    text = draft_paragraph(sample("venous_si_units"))
+    assert text.startswith(
+        "The venous gas (pH 7.46, PCO2 45.8 mmHg, HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
+        "The venous PCO2 of 45.8 mmHg would fit the 43.6–47.6 mmHg that the 0.7 rule predicts, but a venous "
+        "PCO2 cannot confirm compensation; an arterial gas would settle it if that matters."
+    )
+    assert "appropriate" not in text
+
+
+def test_inconsistent_gas_says_recheck_first() -> None:
+    text = draft_paragraph(
+        assess({"gas": {"sample": "arterial", "ph": 7.55, "pco2": 40, "hco3": 24}, "chem": {"na": 140, "cl": 104}})
+    )
+    # Henderson-Hasselbalch, pK 6.1 and S 0.0307 (CLSI C46-A): 6.1 + log10(24 / 1.228) = 7.39.
+    assert text.startswith(
+        "Of note, the reported pH of 7.55 does not agree with the PaCO2 and HCO3, which give 7.39; the values "
+        "should be rechecked, or the gas repeated, before this reading is relied on. "
+    )
+
+
+def test_missing_gas_neither_confirms_nor_excludes() -> None:
+    text = draft_paragraph(assess({"chem": {"na": 140, "k": 3.2, "cl": 95, "tco2": 34}}))
+    assert text == (
+        "There is no blood gas with a pH and PaCO2, so the primary disorder cannot be determined; the high total "
+        "CO2 fits a metabolic alkalosis or the compensation of a respiratory acidosis, which only a gas can tell "
+        "apart. Without a gas, a metabolic alkalosis can be neither confirmed nor excluded, so no alkalosis "
+        "differential was drawn."
+    )
+
+
+def test_normal_gas() -> None:
+    text = draft_paragraph(
+        assess({"gas": {"sample": "arterial", "ph": 7.4, "pco2": 40, "hco3": 24}, "chem": {"na": 140, "cl": 104}})
+    )
+    assert text == (
+        "The arterial gas (pH 7.40, PaCO2 40 mmHg, HCO3 24 mmol/L) lies within the reference ranges, with no "
+        "acid-base disorder on these values. There is no metabolic alkalosis, so no alkalosis differential applies."
+    )
+
+
+def test_offsetting_mixed_disorder_names_both() -> None:
+    text = draft_paragraph(assess({"gas": {"sample": "arterial", "ph": 7.40, "pco2": 60, "hco3": 36}}))
+    assert text.startswith(
+        "The arterial gas (pH 7.40, PaCO2 60 mmHg, HCO3 36 mmol/L) shows a mixed metabolic alkalosis and "
+        "respiratory acidosis that offset each other, leaving the pH within range; which came first cannot be "
+        "told from the gas."
+    )
+    assert "There is also" not in text
+
+
+def test_added_respiratory_acidosis_names_the_range() -> None:
+    # 0.7 rule (Berend, de Vries & Gans, NEJM 2014): 40 + 0.7 x 16 = 51.2 +/- 2.
+    text = draft_paragraph(
+        assess({"gas": {"sample": "arterial", "ph": 7.44, "pco2": 60, "hco3": 40}, "chem": {"na": 140, "cl": 90}})
+    )
+    assert text.startswith(
+        "The arterial gas (pH 7.44, PaCO2 60 mmHg, HCO3 40 mmol/L) shows a primary metabolic alkalosis with an "
+        "added respiratory acidosis: the PaCO2 of 60 mmHg is above the 49.2–53.2 mmHg that the 0.7 rule predicts."
+    )
+
+
+def test_triple_disorder_reads_all_three() -> None:
+    text = draft_paragraph(
+        assess({"gas": {"sample": "arterial", "ph": 7.50, "pco2": 30, "hco3": 23}, "chem": {"na": 145, "cl": 90}})
+    )
+    assert "primary respiratory alkalosis" in text
+    assert "adds a high anion gap metabolic acidosis" in text
+    assert "points to a concurrent metabolic alkalosis" in text
+
+
+def test_winters_formula_and_a_high_gap_acidosis_alone() -> None:
+    # Winter's formula (Albert, Dell & Winters 1967): 1.5 x 12 + 8 = 26 +/- 2. Delta ratio 14/12 = 1.2.
+    text = draft_paragraph(
+        assess(
+            {
+                "gas": {"sample": "arterial", "ph": 7.28, "pco2": 27, "hco3": 12},
+                "chem": {"na": 140, "cl": 102, "albumin": 4},
+            }
+        )
+    )
+    assert "(expected PaCO2 24–28 mmHg by Winter's formula)" in text
+    assert "The delta ratio of 1.2 fits a high anion gap acidosis alone." in text
+
+
+# Causes: every count reads --------------------------------------------------------------------
+
+
+BASE = sample("thiazide_and_vomiting")
+
+
+def _causes(likely: int, possible: int, unlikely: int) -> tuple[CauseEntry, ...]:
+    labels = ["gastric acid loss", "diuretic use", "alkali load", "mineralocorticoid excess", "reduced GFR"]
+    out: list[CauseEntry] = []
+    for tier, count in (("likely", likely), ("possible", possible), ("unlikely", unlikely)):
+        for _ in range(count):
+            label = labels[len(out) % len(labels)]
+            finding = (ev(f"Finding for {label}."),)
+            out.append(cause("gastric_loss", label, tier, finding, finding if tier == "unlikely" else ()))
+    return tuple(out)
+
+
+@pytest.mark.parametrize(
+    ("likely", "possible", "expected"),
+    [
+        (1, 0, "Gastric acid loss (finding for gastric acid loss) is the likely cause."),
+        (1, 1, "Diuretic use is also possible."),
+        (1, 2, "Diuretic use and alkali load are also possible."),
+        (2, 0, "Two causes are likely and may be acting together:"),
+        (3, 0, "Three causes are likely and may be acting together:"),
+        (0, 1, "No cause is clearly supported; gastric acid loss (finding for gastric acid loss) remains possible."),
+        (0, 2, "and diuretic use (finding for diuretic use) remain possible."),
+        (0, 5, "alkali load (finding for alkali load) and 2 others remain possible."),
+        (0, 0, "The findings do not yet point to any of the usual causes."),
+    ],
+    ids=lambda value: str(value)[:20],
+)
+def test_cause_sentences_agree_with_their_count(likely: int, possible: int, expected: str) -> None:
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=_causes(likely, possible, 0)))
+    assert expected in text
+    assert_well_formed(text)
+
+
+def test_one_unlikely_cause_reads_singular() -> None:
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=_causes(1, 0, 1)))
+    assert "Diuretic use (finding for diuretic use) is unlikely." in text
+
+
+def test_eponyms_keep_their_capital() -> None:
+    entry = cause("salt_wasting_tubulopathy", "Gitelman or Bartter syndrome", "likely", (ev("Urine calcium low."),))
+    text = draft_paragraph(worked_up(BASE, chloride_class="resistant", differential=(entry,)))
+    assert "Gitelman or Bartter syndrome (urine calcium low) is the likely cause." in text
+
+
+def test_text_from_the_case_is_kept_as_written() -> None:
+    # Escaping for Markdown belongs to the template, so the JSON paragraph stays plain text.
+    entry = cause("alkali_load", "alkali load", "likely", (ev("{{ 7*7 }} <b>antacid</b> taken daily."),))
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(entry,)))
+    assert "alkali load ({{ 7*7 }} <b>antacid</b> taken daily) is the likely cause." in text.lower()
+
+
+# Grammar across combinations -------------------------------------------------------------------
+
+_SENTENCE_END = re.compile(r"(?<=[.!?]) (?=\S)")
+_BAD = ("  ", " .", " ,", "..", ",.", ";.", "( ", " )", "()", "(;", "None", "nan", "[]", "{}", "_", "-0 ", "-0.")
+
+
+def assert_well_formed(text: str) -> None:
+    assert text and text[-1] == ".", text
+    for bad in _BAD:
+        assert bad not in text, (bad, text)
+    assert text.count("(") == text.count(")"), text
+    for sentence in _SENTENCE_END.split(text):
+        assert sentence[0].isupper() or sentence[0].isdigit(), (sentence, text)
+    assert not re.search(r"\d\.\d{4,}", text), text  # no 7.5000 or 45.753889
+
+
+evidence_lists = st.lists(
+    st.sampled_from(
+        [
+            ev("Vomiting for three days."),
+            ev("Urine chloride 14 mmol/L, below 20 mmol/L.", "moderate"),
+            ev("Blood pressure 104/62 mmHg.", "weak"),
+            ev("PaCO2 49 mmHg."),
+            ev("eGFR 43 mL/min/1.73 m2.", "moderate"),
+        ]
+    ),
+    max_size=4,
+)
+causes = st.builds(
+    lambda tier, label, supporting, opposing: cause("diuretic", label, tier, tuple(supporting), tuple(opposing)),
+    st.sampled_from(["likely", "possible", "unlikely"]),
+    st.sampled_from(["Diuretic use", "gastric acid loss", "Alkali load", "Liddle syndrome", "reduced GFR"]),
+    evidence_lists,
+    evidence_lists,
+)
+factors = st.builds(
+    factor,
+    st.just("hypokalemia"),
+    st.sampled_from(["Hypokalemia", "volume contraction", "Reduced GFR"]),
+    st.sampled_from(["present", "undetermined"]),
+)
+tests = st.builds(suggested, st.just("urine_chloride"), st.sampled_from(["spot urine chloride", "Serum magnesium"]))
+
+
+@settings(max_examples=300, deadline=None)
+@given(
+    stem=st.sampled_from(["thiazide_and_vomiting", "venous_si_units", "ketoacidosis_with_vomiting", "gastric_suction"]),
+    chloride_class=st.sampled_from(["responsive", "resistant", "indeterminate", "unknown", None]),
+    notes=st.lists(st.sampled_from(["A loop diuretic is acting", "Thiazide taken 6 hours ago."]), max_size=2),
+    differential=st.lists(causes, max_size=6),
+    maintenance=st.lists(factors, max_size=3),
+    next_tests=st.lists(tests, max_size=3),
+)
+def test_every_combination_reads_as_sentences(
+    stem: str,
+    chloride_class: str | None,
+    notes: list[str],
+    differential: list[CauseEntry],
+    maintenance: list[FactorEntry],
+    next_tests: list[SuggestedTest],
+) -> None:
+    assessment = worked_up(
+        sample_cached(stem),
+        chloride_class=chloride_class,
+        chloride_notes=tuple(notes),
+        differential=tuple(differential),
+        maintenance=tuple(maintenance),
+        next_tests=tuple(next_tests),
+    )
+    assert_well_formed(draft_paragraph(assessment))
+
+
+@cache
+def sample_cached(stem: str) -> Assessment:
+    return sample(stem)
+
+
+@settings(max_examples=200, deadline=None)
+@given(
+    ph=st.floats(6.9, 7.7),
+    pco2=st.floats(15, 110),
+    hco3=st.floats(4, 60),
+    sample_kind=st.sampled_from(["arterial", "venous", None]),
+    with_chem=st.booleans(),
+)
+def test_any_gas_reads_as_sentences_with_sensible_numbers(
+    ph: float, pco2: float, hco3: float, sample_kind: str | None, with_chem: bool
+) -> None:
+    data: dict[str, Any] = {"gas": {"ph": round(ph, 3), "pco2": pco2, "hco3": hco3}}
+    if sample_kind:
+        data["gas"]["sample"] = sample_kind
+    if with_chem:
+        data["chem"] = {"na": 140, "cl": 100, "albumin": 3.1}
+    text = draft_paragraph(assess(data))
+    assert_well_formed(text)
+    assert "pH " in text
