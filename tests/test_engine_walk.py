@@ -132,7 +132,7 @@ def test_first_suggestion_is_the_one_that_decides_the_tree() -> None:
     assert result.suggestions[0].test == "moisture_probe"
     why = result.suggestions[0].why
     assert why.startswith("Soil moisture not given; the result would decide: watering need (now unknown; ")
-    assert "could be water_now, hold_water or fine" in why
+    assert "could be water now, hold the water or fine" in why  # outcome_labels give the words
     assert "underwatering (now unlikely; could become likely)" in why
 
 
@@ -221,3 +221,34 @@ def test_engine_imports_nothing_clinical_or_cli() -> None:
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout
     assert out.strip() == "[]"
+
+
+def test_a_test_that_settles_a_later_tree_through_an_unwalked_node(tmp_path: Path) -> None:
+    # With p unknown, `first` ends in `open` and node `ask_q` is only possibly reached. Yet q = false
+    # rules out `yes_` whatever p is, which decides tree `second`: the test for q must be suggested.
+    (tmp_path / "p.yaml").write_text(
+        "pack: {id: chain, title: chain}\n"
+        "facts: [{id: p, kind: boolean}, {id: q, kind: boolean}]\n"
+        "trees:\n"
+        "  - id: first\n    title: first\n    outcomes: [yes_, no_, open]\n    start: ask_p\n    nodes:\n"
+        "      - {id: ask_p, ask: {fact: p, is: true}, if_true: ask_q, if_false: f_no, if_unknown: f_open,"
+        " source: common practice}\n"
+        "      - {id: ask_q, ask: {fact: q, is: true}, if_true: f_yes, if_false: f_no, if_unknown: f_open,"
+        " source: common practice}\n"
+        "      - {id: f_yes, outcome: yes_, source: common practice}\n"
+        "      - {id: f_no, outcome: no_, source: common practice}\n"
+        "      - {id: f_open, outcome: open, source: common practice}\n"
+        "  - id: second\n    title: second\n    outcomes: [b_yes, b_no, b_open]\n    start: ask_first\n    nodes:\n"
+        "      - {id: ask_first, ask: {fact: first, is: yes_}, if_true: s_yes, if_false: s_no, if_unknown: s_open,"
+        " source: common practice}\n"
+        "      - {id: s_yes, outcome: b_yes, source: common practice}\n"
+        "      - {id: s_no, outcome: b_no, source: common practice}\n"
+        "      - {id: s_open, outcome: b_open, source: common practice}\n"
+        "tests: [{id: q_test, label: q test, provides: [q], source: common practice}]\n"
+    )
+    pack = load_pack([tmp_path])
+    result = walk(pack, {})
+    assert result.outcome("second").outcome == "b_open"
+    [suggestion] = result.suggestions
+    assert suggestion.test == "q_test"
+    assert [(d.id, d.could_be) for d in suggestion.decides] == [("second", ("b_no",))]

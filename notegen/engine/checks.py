@@ -121,6 +121,11 @@ class _Checker:
     def _tree(self, tree: Tree, earlier_trees: set[str]) -> None:
         nodes = {n.id: n for n in tree.nodes}
         earlier_nodes = {n for n, t in self.node_tree.items() if t in earlier_trees}
+        for outcome in tree.outcome_labels:
+            if outcome not in tree.outcomes:
+                self.problems.append(
+                    _at(tree.where_of("outcome_labels"), f"tree `{tree.id}`: label for unknown outcome `{outcome}`")
+                )
         if tree.start not in nodes:
             self.problems.append(
                 _at(tree.where_of("start"), f"tree `{tree.id}`: start node `{tree.start}` is not in the tree")
@@ -240,6 +245,16 @@ class _Checker:
                     self.problems.append(
                         _at(test.where, f"unit `{threshold.unit}` differs from setting `{setting.id}` ({setting.unit})")
                     )
+                if setting.unit != fact.unit:
+                    # The setting is what to fix (often a service's overlay), so point at its unit.
+                    self.problems.append(
+                        _at(
+                            setting.where_of("unit"),
+                            f"setting `{setting.id}` is in {setting.unit or 'no unit'}; "
+                            f"fact `{fact.id}`, compared with it, is in {fact.unit or 'no unit'}",
+                        )
+                    )
+                    continue
                 unit = setting.unit
             else:
                 assert threshold.number is not None

@@ -312,11 +312,21 @@ def _compile_outcome_test(condition: FactTest, outcomes: tuple[str, ...]) -> Com
     else:
         raise AssertionError("checked packs compare tree outcomes only with is/in/known")
     keys = tuple(outcome_key(condition.fact, outcome) for outcome in wanted if outcome in outcomes)
+    if len(keys) == 1:
+        key = keys[0]
+        return lambda env: env[key]  # type: ignore[return-value]
 
-    def outcome_is(env: Env) -> int:
-        return max((env[key] for key in keys), default=FALSE)  # type: ignore[type-var, return-value]
+    def outcome_in(env: Env) -> int:
+        result = FALSE
+        for key in keys:
+            value: int = env[key]  # type: ignore[assignment]
+            if value == TRUE:
+                return TRUE
+            if value > result:
+                result = value
+        return result
 
-    return outcome_is
+    return outcome_in
 
 
 def _compile_compare(condition: Compare, values: tuple[float, ...]) -> Compiled:

@@ -148,6 +148,7 @@ class Tree(PackModel):
     id: Id
     title: Text
     outcomes: tuple[Id, ...] = Field(min_length=1)
+    outcome_labels: dict[str, str] = {}  # words for an outcome in reasons, e.g. "primary aldosteronism pattern"
     start: Id
     nodes: tuple[Node, ...] = Field(min_length=1)
 

@@ -14,12 +14,15 @@ from pathlib import Path
 
 from notegen.engine.checks import check_spec
 from notegen.engine.conditions import (
+    AllOf,
+    AnyOf,
     Compare,
     Compiled,
     Condition,
     Equals,
     Known,
     Limits,
+    Not,
     OneOf,
     Reached,
     compile_condition,
@@ -59,11 +62,13 @@ class CompiledTree:
     id: str
     title: str
     outcomes: tuple[str, ...]
+    outcome_labels: Mapping[str, str]
     outcome_keys: tuple[str, ...]
     nodes: tuple[CompiledNode, ...]
     order: tuple[int, ...]  # parents before children
     start: int
     reads_trees: frozenset[str]
+    reached_keys: tuple[tuple[int, str], ...]  # nodes some `reached:` condition reads
 
 
 @dataclass(frozen=True, slots=True)
@@ -112,8 +117,7 @@ class CompiledTest:
     purpose: str
     source: str
     trees: tuple[int, ...]  # trees its facts can change, in walking order
-    evidence: tuple[int, ...]  # evidence items its facts can change
-    causes: tuple[int, ...]
+    direct_evidence: tuple[int, ...]  # evidence items reading its facts
 
 
 @dataclass(frozen=True)
@@ -136,6 +140,11 @@ class RulePack:
     # fact -> (tree index, node index) of nodes reading it; evidence indices reading it.
     node_readers: Mapping[str, tuple[tuple[int, int], ...]] = field(default_factory=dict)
     evidence_readers: Mapping[str, tuple[int, ...]] = field(default_factory=dict)
+    tree_evidence: tuple[tuple[int, ...], ...] = ()  # per tree: evidence items reading its outcome or nodes
+    # True when some evidence negates a tree test: then even a node off the walk's path matters.
+    negates_trees: bool = True
+    # Per tree: does a later tree read its outcome or nodes? Then "possibly reached" nodes matter too.
+    feeds_trees: tuple[bool, ...] = ()
     known_readers: Mapping[str, frozenset[int]] = field(default_factory=dict)
 
     @property
@@ -186,6 +195,9 @@ def compile_pack(spec: PackSpec, dirs: Sequence[Path] = ()) -> RulePack:
         read_facts, read = _reads(condition, tree_ids)
         return read_facts, frozenset(node_tree.get(name, name) for name in read)
 
+    read_nodes = {
+        leaf.node for condition in _all_conditions(spec) for leaf in walk_tests(condition) if isinstance(leaf, Reached)
+    }
     trees: list[CompiledTree] = []
     for tree in spec.trees:
         order_ids = _order([n.id for n in tree.nodes], {n.id: n.exits for n in tree.nodes}, tree.start)
@@ -225,11 +237,13 @@ def compile_pack(spec: PackSpec, dirs: Sequence[Path] = ()) -> RulePack:
                 id=tree.id,
                 title=tree.title,
                 outcomes=tree.outcomes,
+                outcome_labels=dict(tree.outcome_labels),
                 outcome_keys=tuple(outcome_key(tree.id, o) for o in tree.outcomes),
                 nodes=tuple(nodes),
                 order=tuple(position[name] for name in order_ids),
                 start=position[tree.start],
                 reads_trees=frozenset(read_trees),
+                reached_keys=tuple((position[n.id], node_key(n.id)) for n in tree.nodes if n.id in read_nodes),
             )
         )
 
@@ -299,11 +313,7 @@ def compile_pack(spec: PackSpec, dirs: Sequence[Path] = ()) -> RulePack:
             if later.reads_trees & changed:
                 changed.add(later.id)
         tree_indices = tuple(i for i, later in enumerate(trees) if later.id in changed)
-        affected = tuple(
-            item.index
-            for item in evidence
-            if set(item.reads) & set(test.provides) or evidence_trees[item.index] & changed
-        )
+        direct = tuple(item.index for item in evidence if set(item.reads) & set(test.provides))
         tests.append(
             CompiledTest(
                 index=test_index,
@@ -313,8 +323,7 @@ def compile_pack(spec: PackSpec, dirs: Sequence[Path] = ()) -> RulePack:
                 purpose=test.purpose,
                 source=test.source,
                 trees=tree_indices,
-                evidence=affected,
-                causes=tuple(sorted({evidence[i].cause for i in affected})),
+                direct_evidence=direct,
             )
         )
 
@@ -335,14 +344,32 @@ def compile_pack(spec: PackSpec, dirs: Sequence[Path] = ()) -> RulePack:
         node_readers={k: tuple(v) for k, v in node_readers.items()},
         evidence_readers={k: tuple(v) for k, v in evidence_readers.items()},
         known_readers={k: frozenset(v) for k, v in known_readers.items()},
+        negates_trees=any(_negates_tree(e.condition, tree_ids) for e in evidence),
+        feeds_trees=tuple(any(tree.id in later.reads_trees for later in trees) for tree in trees),
+        tree_evidence=tuple(tuple(i for i, read in enumerate(evidence_trees) if tree.id in read) for tree in trees),
     )
 
 
 def _conditions(spec: PackSpec) -> list[Condition]:
+    """Conditions of nodes and evidence: the ones that decide outcomes and tiers."""
     found: list[Condition] = [n.ask for t in spec.trees for n in t.nodes if n.ask is not None]
     for cause in spec.causes:
         found += [e.when for e in (*cause.evidence.supporting, *cause.evidence.opposing)]
     return found
+
+
+def _negates_tree(condition: Condition, trees: set[str], negated: bool = False) -> bool:
+    if isinstance(condition, Not):
+        return _negates_tree(condition.item, trees, not negated)
+    if isinstance(condition, AllOf | AnyOf):
+        return any(_negates_tree(item, trees, negated) for item in condition.items)
+    if not negated:
+        return False
+    return isinstance(condition, Reached) or condition.fact in trees
+
+
+def _all_conditions(spec: PackSpec) -> list[Condition]:
+    return _conditions(spec) + [f.when for f in spec.factors]
 
 
 def _candidates(spec: PackSpec, limits: Limits) -> dict[str, tuple[Value, ...]]:

@@ -25,6 +25,8 @@ from dataclasses import dataclass
 
 from notegen.engine.conditions import FALSE, TRUE, UNKNOWN, Env, truth_of
 from notegen.engine.facts import (
+    BooleanFact,
+    Bound,
     Fact,
     FactInput,
     MissingFact,
@@ -33,7 +35,6 @@ from notegen.engine.facts import (
     Value,
     as_fact,
     display_fact,
-    fact_value,
     plain_value,
 )
 from notegen.engine.program import CompiledTest, CompiledTree, RulePack
@@ -54,6 +55,7 @@ from notegen.engine.wording import Template
 from notegen.errors import NotegenError
 
 _MISSING = MissingFact()
+_FACT_TYPES = (NumberFact, BooleanFact, TextFact, MissingFact)
 
 
 @dataclass(frozen=True, slots=True)
@@ -151,65 +153,77 @@ def prepare_facts(pack: RulePack, raw: Mapping[str, FactInput]) -> tuple[dict[st
     """Check facts against the catalogue (name, kind, unit, allowed word); never coerce silently."""
     facts: dict[str, Fact] = {}
     env: Env = {}
+    catalogue = pack.facts
     for name, given in raw.items():
-        spec = pack.facts.get(name)
+        spec = catalogue.get(name)
         if spec is None:
             raise NotegenError(f"fact `{name}` is not in the catalogue of pack `{pack.id}`")
-        fact = as_fact(given)
-        if (
-            isinstance(fact, NumberFact)
-            and fact.unit is None
-            and spec.unit is not None
-            and isinstance(given, int | float)
-        ):
-            raise NotegenError(f"fact `{name}`: a bare number; give it as NumberFact(value, {spec.unit!r})")
-        kind = {NumberFact: "number", TextFact: "text"}.get(type(fact), "boolean")
-        if not isinstance(fact, MissingFact):
-            expected = "text" if spec.kind == "enum" else spec.kind
-            if kind != expected:
+        fact = given if type(given) in _FACT_TYPES else as_fact(given)
+        facts[name] = fact  # type: ignore[assignment]
+        kind = type(fact)
+        if kind is MissingFact:
+            continue
+        if kind is NumberFact:
+            assert isinstance(fact, NumberFact)
+            if spec.kind != "number":
                 raise NotegenError(f"fact `{name}` should be a {spec.kind}, not {fact!r}")
-            if isinstance(fact, NumberFact) and (fact.unit or None) != (spec.unit or None):
+            if fact.unit != spec.unit:
+                if fact.unit is None and isinstance(given, int | float):
+                    raise NotegenError(f"fact `{name}`: a bare number; give it as NumberFact(value, {spec.unit!r})")
                 raise NotegenError(f"fact `{name}` is in {fact.unit or 'no unit'}; the pack expects {spec.unit}")
-            if isinstance(fact, TextFact) and spec.kind == "enum" and fact.value not in spec.values:
+            env[name] = float(fact.value) if fact.qualifier is None else Bound(float(fact.value), fact.qualifier)
+        elif kind is TextFact:
+            assert isinstance(fact, TextFact)
+            if spec.kind not in ("enum", "text"):
+                raise NotegenError(f"fact `{name}` should be a {spec.kind}, not {fact!r}")
+            if spec.kind == "enum" and fact.value not in spec.values:
                 raise NotegenError(f"fact `{name}`: `{fact.value}` is not one of {list(spec.values)}")
-            env[name] = fact_value(fact)
-        facts[name] = fact
+            env[name] = fact.value
+        else:
+            assert isinstance(fact, BooleanFact)
+            if spec.kind != "boolean":
+                raise NotegenError(f"fact `{name}` should be a {spec.kind}, not {fact!r}")
+            env[name] = fact.value
     return facts, env
 
 
 def _walk_tree(tree: CompiledTree, env: Env) -> _TreeState:
-    reach = [FALSE] * len(tree.nodes)
-    answers: list[int | None] = [None] * len(tree.nodes)
+    nodes = tree.nodes
+    reach = [FALSE] * len(nodes)
+    answers: list[int | None] = [None] * len(nodes)
     reach[tree.start] = TRUE
     for key in tree.outcome_keys:
         env[key] = FALSE
     leaf = tree.start
     for index in tree.order:
         status = reach[index]
-        node = tree.nodes[index]
-        env[node.key] = status
         if status == FALSE:
             continue
-        if node.test is None:
-            assert node.outcome_key is not None
-            if status > env[node.outcome_key]:  # type: ignore[operator]
-                env[node.outcome_key] = status
+        node = nodes[index]
+        test = node.test
+        if test is None:
+            outcome_at: str = node.outcome_key  # type: ignore[assignment]
+            if status > env[outcome_at]:  # type: ignore[operator]
+                env[outcome_at] = status
             if status == TRUE:
                 leaf = index
             continue
-        answer = node.test(env)
+        answer = test(env)
         answers[index] = answer
-        assert node.exits is not None
-        on_true, on_false, on_unknown = node.exits
-        taken = min(status, answer)
+        on_true, on_false, on_unknown = node.exits  # type: ignore[misc]
+        taken = status if answer > status else answer
         if taken > reach[on_true]:
             reach[on_true] = taken
-        taken = min(status, TRUE - answer)
+        taken = TRUE - answer
+        if taken > status:
+            taken = status
         if taken > reach[on_false]:
             reach[on_false] = taken
-        taken = status if answer == UNKNOWN else FALSE
-        if taken > reach[on_unknown]:
-            reach[on_unknown] = taken
+        if answer == UNKNOWN and status > reach[on_unknown]:
+            reach[on_unknown] = status
+    # Only nodes some `reached:` condition reads need their reach in the environment.
+    for index, key in tree.reached_keys:
+        env[key] = reach[index]
     return _TreeState(tuple(reach), tuple(answers), leaf)
 
 
@@ -399,7 +413,7 @@ def _suggest(
         missing = tuple(name for name in test.provides if name not in env)
         if not missing or not _left_open(pack, missing, states, truths):
             continue
-        decisions = _what_if(pack, test, missing, env, truths, tiers, outcomes)
+        decisions = _what_if(pack, test, missing, env, states, truths, tiers, outcomes)
         if not decisions:
             continue
         first_tree = min((i for i, d in enumerate(decisions) if d.kind == "tree"), default=None)
@@ -418,9 +432,12 @@ def _left_open(
     pack: RulePack, missing: tuple[str, ...], states: tuple[_TreeState, ...], truths: tuple[int, ...]
 ) -> bool:
     """Did the absence of these facts leave some condition unknown (or a `known` test relevant)?"""
+    # A node off the walk's path (reached only "possibly") cannot move that tree's path, and, unless
+    # evidence negates a tree test or a later tree reads this one, nothing else either.
     for name in missing:
         for tree_index, node_index in pack.node_readers.get(name, ()):
-            if states[tree_index].reach[node_index] != FALSE:
+            lowest = UNKNOWN if pack.negates_trees or pack.feeds_trees[tree_index] else TRUE
+            if states[tree_index].reach[node_index] >= lowest:
                 return True
         known = pack.known_readers.get(name, frozenset())
         for index in pack.evidence_readers.get(name, ()):
@@ -434,30 +451,41 @@ def _what_if(
     test: CompiledTest,
     missing: tuple[str, ...],
     env: Env,
+    states: tuple[_TreeState, ...],
     truths: tuple[int, ...],
     tiers: list[Tier],
     outcomes: tuple[TreeOutcome, ...],
 ) -> tuple[Decision, ...]:
     tree_alternatives: dict[int, set[str]] = {i: set() for i in test.trees}
-    tier_alternatives: dict[int, set[str]] = {i: set() for i in test.causes}
+    tier_alternatives: dict[int, set[str]] = {}
     options: list[tuple[Value, ...]] = [pack.candidates[name] for name in missing]
-    trial_truths = list(truths)
     for combination in itertools.product(*options):
         trial: Env = dict(env)
         for name, value in zip(missing, combination, strict=True):
             trial[name] = value
+        # Only evidence reading the facts, or a tree whose walk came out differently, can change.
+        recheck: set[int] = set(test.direct_evidence)
         for tree_index in test.trees:
             tree = pack.trees[tree_index]
             state = _walk_tree(tree, trial)
-            outcome = tree.nodes[state.leaf].outcome or ""
-            if outcome != outcomes[tree_index].outcome:
-                tree_alternatives[tree_index].add(outcome)
-        for index in test.evidence:
-            trial_truths[index] = pack.evidence[index].test(trial)
-        for cause_index in test.causes:
+            if state.reach != states[tree_index].reach:
+                recheck.update(pack.tree_evidence[tree_index])
+                outcome = tree.nodes[state.leaf].outcome or ""
+                if outcome != outcomes[tree_index].outcome:
+                    tree_alternatives[tree_index].add(outcome)
+        if not recheck:
+            continue
+        trial_truths = list(truths)
+        causes: set[int] = set()
+        for index in recheck:
+            answer = pack.evidence[index].test(trial)
+            if answer != truths[index]:
+                trial_truths[index] = answer
+                causes.add(pack.evidence[index].cause)
+        for cause_index in causes:
             tier = _tier(*_points(pack, trial_truths, cause_index), pack)
             if tier != tiers[cause_index]:
-                tier_alternatives[cause_index].add(tier)
+                tier_alternatives.setdefault(cause_index, set()).add(tier)
     decisions: list[Decision] = []
     for tree_index, alternatives in tree_alternatives.items():
         if alternatives:
@@ -481,7 +509,10 @@ def _why(pack: RulePack, test: CompiledTest, missing: tuple[str, ...], decisions
     parts = []
     for decision in decisions:
         if decision.kind == "tree":
-            parts.append(f"{decision.label} (now {decision.now}; could be {_or(decision.could_be)})")
+            words = next(t.outcome_labels for t in pack.trees if t.id == decision.id)
+            now = words.get(decision.now, decision.now)
+            could_be = tuple(words.get(o, o) for o in decision.could_be)
+            parts.append(f"{decision.label} (now {now}; could be {_or(could_be)})")
         else:
             parts.append(f"{decision.label} (now {decision.now}; could become {_or(decision.could_be)})")
     text = f"{names[:1].upper()}{names[1:]} not given; the result would decide: {'; '.join(parts)}."

@@ -1,0 +1,331 @@
+"""The metabolic-alkalosis pack on invented cases: causes, branches, next tests, overlay, JSON."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import pytest
+
+from notegen.acidbase import read_acid_base
+from notegen.calculations import compute_calculations
+from notegen.case import Case
+from notegen.differential import (
+    RuleResult,
+    check_alkalosis_pack,
+    default_alkalosis_pack,
+    evaluate_alkalosis,
+    load_alkalosis_pack,
+)
+from notegen.engine import FactInput, RulePack
+from tests.alkalosis_cases import alkalosis_case, med
+
+
+def evaluate(
+    case: Case, pack: RulePack | None = None, extra: dict[str, FactInput] | None = None, explain: bool = False
+) -> RuleResult:
+    return evaluate_alkalosis(
+        case, read_acid_base(case), pack, calculations=compute_calculations(case), extra_facts=extra, explain=explain
+    )
+
+
+def ranked(result: RuleResult) -> list[str]:
+    return [c.cause for c in result.differential]
+
+
+def tier(result: RuleResult, cause: str) -> str:
+    return next(c.tier for c in result.differential if c.cause == cause)
+
+
+def suggested_tests(result: RuleResult) -> list[str]:
+    return [t.test for t in result.next_tests]
+
+
+def test_shipped_pack_passes_its_checks() -> None:
+    assert check_alkalosis_pack() == []
+    pack = default_alkalosis_pack()
+    assert {c.id for c in pack.causes} == {
+        "gastric_loss", "diuretic", "mineralocorticoid_excess", "alkali_load", "reduced_gfr",
+        "post_hypercapnia", "salt_wasting_tubulopathy", "chloride_losing_diarrhea", "potassium_magnesium_depletion",
+    }  # fmt: skip
+    assert {"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"} <= {
+        f.id for f in pack.factors if f.group == "maintenance"
+    }
+    assert {
+        "urine_chloride", "urine_potassium_creatinine", "serum_magnesium", "renin_aldosterone",
+        "urine_diuretic_screen", "urine_calcium_creatinine", "cortisol_evaluation", "repeat_gas",
+    } <= {t.id for t in pack.tests}  # fmt: skip
+
+
+def test_every_item_names_its_provenance() -> None:
+    spec = default_alkalosis_pack().spec
+    sources = [s.source for s in spec.settings] + [t.source for t in spec.tests] + [f.source for f in spec.factors]
+    sources += [n.source for tree in spec.trees for n in tree.nodes]
+    sources += [e.source for c in spec.causes for e in (*c.evidence.supporting, *c.evidence.opposing)]
+    for source in sources:
+        assert (
+            "common practice" in source
+            or "review literature" in source
+            or any(str(year) in source for year in range(1960, 2030))
+        ), source
+
+
+# One invented case per cause, each expected first.
+CAUSE_CASES: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
+    ("gastric_loss", {"urine_cl": 8, "urine_na": 40, "findings": ("vomiting",), "k": 3.1, "volume": "low"}, None),
+    ("diuretic", {"urine_cl": 70, "meds": (med("hydrochlorothiazide", 5),)}, None),
+    ("mineralocorticoid_excess", {"urine_cl": 55, "bp": (168, 100), "k": 2.9}, None),
+    ("alkali_load", {"urine_cl": 30, "creatinine": 2.6, "meds": (med("sodium bicarbonate"),)}, None),
+    ("reduced_gfr", {"urine_cl": 30, "creatinine": 2.4}, None),
+    ("post_hypercapnia", {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "pco2": 44, "hco3": 33}, None),
+    (
+        "salt_wasting_tubulopathy",
+        {"urine_cl": 70, "bp": (104, 64), "k": 2.7, "mg": 1.3, "urine_calcium": 2, "urine_creatinine": 100},
+        None,
+    ),
+    ("chloride_losing_diarrhea", {"urine_cl": 9, "findings": ("diarrhea",), "meds": (med("senna"),)}, None),
+    ("potassium_magnesium_depletion", {"urine_cl": 50, "bp": (110, 70), "k": 1.8, "mg": 1.2}, None),
+    ("mineralocorticoid_excess", {"urine_cl": 55, "bp": (150, 95), "meds": (med("fludrocortisone"),)}, None),
+    ("mineralocorticoid_excess", {"urine_cl": 60, "bp": (160, 98)}, {"renin": "low", "aldosterone": "high"}),
+]
+
+
+@pytest.mark.parametrize(
+    ("cause", "values", "extra"), CAUSE_CASES, ids=[f"{c[0]}-{i}" for i, c in enumerate(CAUSE_CASES)]
+)
+def test_right_cause_comes_first(cause: str, values: dict[str, Any], extra: dict[str, FactInput] | None) -> None:
+    result = evaluate(alkalosis_case(**values), extra=extra)
+    assert result.applies and result.alkalosis == "established"
+    assert ranked(result)[0] == cause, [(c.cause, c.tier) for c in result.differential]
+    first = result.differential[0]
+    assert first.tier in ("likely", "possible") and first.supporting
+
+
+@pytest.mark.parametrize(
+    ("thiazide_hours", "urine_cl"),
+    [(5, 60), (40, 10), (None, 60)],
+    ids=["acting-high-urine-cl", "worn-off-low-urine-cl", "timing-unknown"],
+)
+def test_vomiting_on_a_thiazide_keeps_both_causes_above_the_rest(thiazide_hours: float | None, urine_cl: float) -> None:
+    case = alkalosis_case(urine_cl=urine_cl, findings=("vomiting",), meds=(med("hydrochlorothiazide", thiazide_hours),))
+    result = evaluate(case)
+    assert set(ranked(result)[:2]) == {"gastric_loss", "diuretic"}
+    top, rest = result.differential[:2], result.differential[2:]
+    order = {"likely": 0, "possible": 1, "unlikely": 2}
+    assert max(order[c.tier] for c in top) < min(order[c.tier] for c in rest)
+
+
+def test_no_metabolic_alkalosis_no_differential() -> None:
+    result = evaluate(alkalosis_case(ph=7.40, pco2=40, hco3=24, cl=104, urine_cl=30, findings=("vomiting",)))
+    assert not result.applies
+    assert result.chloride_class is None
+    assert result.differential == () and result.next_tests == () and result.maintenance == ()
+    assert result.json_ready()["chloride_class"] is None
+
+
+# Each outcome of the chloride branch (Luke & Galla, JASN 2012;23:204).
+CHLORIDE_CASES = [
+    ("responsive", {"urine_cl": 12}, "below 20 mmol/L: chloride-responsive"),
+    ("indeterminate", {"urine_cl": 30}, "lies between 20 mmol/L and"),
+    ("resistant", {"urine_cl": 60}, "with no loop or thiazide diuretic acting: chloride-resistant"),
+    ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide", 2),)}, "uninterpretable"),
+    ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide"),)}, "listed without a last-dose time"),
+    ("unknown", {}, "No urine chloride"),
+]
+
+
+@pytest.mark.parametrize(
+    ("outcome", "values", "words"),
+    CHLORIDE_CASES,
+    ids=["responsive", "between", "resistant", "diuretic-acting", "diuretic-timing-unknown", "no-urine-chloride"],
+)
+def test_chloride_branch(outcome: str, values: dict[str, Any], words: str) -> None:
+    result = evaluate(alkalosis_case(**values))
+    assert result.chloride_class == outcome
+    assert any(words in note for note in result.chloride_notes), result.chloride_notes
+
+
+def test_diuretic_acting_high_urine_chloride_is_weighed_for_the_diuretic() -> None:
+    result = evaluate(alkalosis_case(urine_cl=60, findings=("vomiting",), meds=(med("furosemide", 2),)))
+    diuretic = next(c for c in result.differential if c.cause == "diuretic")
+    assert {e.id for e in diuretic.supporting} >= {"diuretic_acting", "high_urine_cl_on_diuretic"}
+    gastric = next(c for c in result.differential if c.cause == "gastric_loss")
+    assert "chloride_resistant" not in {e.id for e in gastric.opposing}  # not read as resistant
+
+
+# Each outcome of the resistant split (by blood pressure, then renin and aldosterone, or urine calcium).
+PATTERN_CASES: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
+    ("not_resistant", {"urine_cl": 10}, None),
+    ("class_open", {}, None),
+    ("pressure_open", {"urine_cl": 60, "bp": None}, None),
+    ("tubular_open", {"urine_cl": 60, "bp": None, "volume": "low"}, None),
+    ("hypertensive_open", {"urine_cl": 60, "bp": (160, 95)}, None),
+    ("hypertensive_open", {"urine_cl": 60, "bp": None, "findings": ("hypertension",)}, None),
+    ("primary_aldosteronism_pattern", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "low", "aldosterone": "high"}),
+    ("high_renin_pattern", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "high", "aldosterone": "high"}),
+    ("low_renin_low_aldosterone", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "low", "aldosterone": "low"}),
+    (
+        "cortisol_excess_pattern",
+        {"urine_cl": 60, "bp": (160, 95)},
+        {"renin": "low", "aldosterone": "low", "cortisol_excess": True},
+    ),
+    (
+        "other_mineralocorticoid_pattern",
+        {"urine_cl": 60, "bp": (160, 95)},
+        {"renin": "low", "aldosterone": "low", "cortisol_excess": False},
+    ),
+    ("hypertensive_open", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "normal", "aldosterone": "normal"}),
+    ("diuretic_effect", {"urine_cl": 60, "meds": (med("furosemide", 30),)}, None),
+    ("thiazide_or_gitelman_pattern", {"urine_cl": 60, "urine_calcium": 2, "urine_creatinine": 100}, None),
+    ("loop_or_bartter_pattern", {"urine_cl": 60, "urine_calcium": 20, "urine_creatinine": 100}, None),
+    ("tubular_open", {"urine_cl": 60}, None),
+]
+
+
+@pytest.mark.parametrize(
+    ("pattern", "values", "extra"), PATTERN_CASES, ids=[f"{c[0]}-{i}" for i, c in enumerate(PATTERN_CASES)]
+)
+def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, FactInput] | None) -> None:
+    assert evaluate(alkalosis_case(**values), extra=extra).resistant_pattern == pattern
+
+
+@pytest.mark.parametrize(
+    ("values", "extra", "first_test", "absent"),
+    [
+        ({"findings": ("vomiting",)}, None, "urine_chloride", []),
+        ({"urine_cl": 10, "findings": ("vomiting",)}, None, None, ["urine_chloride"]),
+        ({"urine_cl": 60, "bp": (160, 95)}, None, "renin_aldosterone", ["cortisol_evaluation"]),
+        (
+            {"urine_cl": 60, "bp": (160, 95)},
+            {"renin": "low", "aldosterone": "low"},
+            "cortisol_evaluation",
+            ["renin_aldosterone"],
+        ),
+        ({"urine_cl": 60}, None, "urine_calcium_creatinine", []),
+        ({"urine_cl": 10, "k": 3.0}, None, "urine_potassium_creatinine", []),
+        (
+            {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50},
+            None,
+            "repeat_gas",
+            [],
+        ),
+        ({"urine_cl": 60, "bp": None}, None, None, ["renin_aldosterone"]),
+    ],
+    ids=[
+        "no-urine-cl",
+        "urine-cl-given",
+        "hypertensive",
+        "low-renin-low-aldo",
+        "normotensive-tubular",
+        "hypokalemia",
+        "venous-after-hypercapnia",
+        "no-blood-pressure",
+    ],  # fmt: skip
+)
+def test_next_tests_follow_the_tree(
+    values: dict[str, Any], extra: dict[str, FactInput] | None, first_test: str | None, absent: list[str]
+) -> None:
+    result = evaluate(alkalosis_case(**values), extra=extra)
+    suggested = suggested_tests(result)
+    if first_test is not None:
+        assert suggested[0] == first_test, suggested
+    for test in absent:
+        assert test not in suggested
+
+
+def test_normotensive_resistant_asks_for_the_diuretic_screen_and_says_why() -> None:
+    result = evaluate(alkalosis_case(urine_cl=60, k=2.8))
+    screen = next(t for t in result.next_tests if t.test == "urine_diuretic_screen")
+    assert "loop or thiazide diuretic (now unlikely; could become possible)" in screen.why
+    assert "salt-wasting tubulopathy" in screen.why
+    assert "serum_magnesium" in suggested_tests(result)
+
+
+def test_urine_chloride_reason_names_the_class() -> None:
+    why = evaluate(alkalosis_case(findings=("vomiting",))).next_tests[0].why
+    assert why.startswith("Spot urine chloride, ideally before chloride is given")
+    assert "chloride class (now unknown; could be responsive, resistant or indeterminate)" in why
+
+
+def test_missing_data_is_open_not_against() -> None:
+    result = evaluate(alkalosis_case(findings=("vomiting",), k=None))
+    k_mg = next(c for c in result.differential if c.cause == "potassium_magnesium_depletion")
+    assert k_mg.opposing == ()
+    assert any("potassium not known" in text for text in k_mg.undecided)
+
+
+def test_unrecognised_medication_leaves_diuretic_use_open() -> None:
+    result = evaluate(alkalosis_case(urine_cl=60, meds=(med("mystery pill"),)))
+    diuretic = next(c for c in result.differential if c.cause == "diuretic")
+    assert "no_diuretic_listed" not in {e.id for e in diuretic.opposing}
+    assert result.facts["loop_or_thiazide_listed"] is None
+
+
+def test_factors_generation_and_maintenance() -> None:
+    case = alkalosis_case(urine_cl=8, findings=("vomiting",), k=3.0, volume="low", creatinine=2.5)
+    result = evaluate(case)
+    maintenance = {f.factor: f for f in result.maintenance}
+    assert {"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"} <= set(maintenance)
+    assert maintenance["hypokalemia"].text.startswith("Potassium 3.0 mmol/L")
+    generation = {g.mechanism for g in result.generation}
+    assert {"acid_loss_stomach", "shift_into_cells"} <= generation
+    assert "alkali_gain" not in generation
+
+
+def test_json_shape() -> None:
+    result = evaluate(alkalosis_case(urine_cl=8, findings=("vomiting",)), explain=True)
+    data = result.json_ready()
+    assert data["chloride_class"] == "responsive"
+    first = data["differential"][0]
+    assert first["cause"] == "gastric_loss" and first["tier"] == "likely"
+    assert {"for", "against"} <= set(first)
+    assert first["for"][0]["facts"] == {"vomiting": True, "gastric_drainage": False}
+    assert all(set(t) == {"test", "label", "why"} for t in data["next_tests"])
+    assert {"factor", "label", "status", "text", "source"} <= set(data["maintenance"][0])
+    assert "generation" in data
+    trace_ids = [step["id"] for step in data["trace"] if step["kind"] in ("node", "leaf")]
+    assert trace_ids[:2] == ["bp_measured_high", "bp_history_when_normal"]
+    assert "urine_cl_low" in trace_ids and "chloride_responsive" in trace_ids
+    urine_node = next(s for s in data["trace"] if s["id"] == "urine_cl_low")
+    assert urine_node == {
+        "kind": "node",
+        "id": "urine_cl_low",
+        "condition": "urine chloride below 20 mmol/L (setting urine_cl_responsive_below)",
+        "values": {"urine_cl": "8 mmol/L"},
+        "outcome": "true",
+        "goes_to": "chloride_responsive",
+        "source": "Luke & Galla, JASN 2012;23:204",
+    }
+
+
+def test_service_overlay_changes_wording_and_a_threshold(tmp_path: Path) -> None:
+    folder = tmp_path / "our-rules" / "alkalosis"
+    folder.mkdir(parents=True)
+    (folder / "local.yaml").write_text(
+        "settings:\n"
+        "  - id: urine_cl_responsive_below\n"
+        "    value: 25\n"
+        "    unit: mmol/L\n"
+        "    source: our renal service (some texts use 25)\n"
+        "trees:\n"
+        "  - id: chloride_class\n"
+        "    nodes:\n"
+        "      - id: chloride_responsive\n"
+        "        says: 'Urine Cl {urine_cl} (< {urine_cl_responsive_below}): saline-responsive.'\n"
+    )
+    assert check_alkalosis_pack([tmp_path / "our-rules"]) == []
+    pack = load_alkalosis_pack([tmp_path / "our-rules"])
+    case = alkalosis_case(urine_cl=22)
+    assert evaluate(case).chloride_class == "indeterminate"
+    result = evaluate(case, pack)
+    assert result.chloride_class == "responsive"
+    assert result.chloride_notes[0] == "Urine Cl 22 mmol/L (< 25 mmol/L): saline-responsive."
+
+
+def test_broken_service_pack_is_reported_with_file_and_line(tmp_path: Path) -> None:
+    folder = tmp_path / "alkalosis"
+    folder.mkdir()
+    (folder / "bad.yaml").write_text("settings:\n  - id: egfr_maintenance_below\n    value: 30\n    unit: mL/min\n")
+    problems = check_alkalosis_pack([tmp_path])
+    assert any(p[0] == str(folder / "bad.yaml") and p[1] == 4 and "is in mL/min;" in p[2] for p in problems), problems
+    assert len(problems) == 1  # one problem, at the setting, not one per condition using it

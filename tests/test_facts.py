@@ -1,0 +1,88 @@
+"""Deriving the alkalosis pack's facts from a validated case and its reading."""
+
+from __future__ import annotations
+
+import pytest
+
+from notegen.acidbase import read_acid_base
+from notegen.calculations import compute_calculations
+from notegen.case import Case
+from notegen.differential import default_alkalosis_pack
+from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
+from notegen.facts import derive_facts, urine_calcium_creatinine_ratio
+from tests.alkalosis_cases import alkalosis_case, med
+
+PACK = default_alkalosis_pack()
+
+
+def facts_of(case: Case) -> dict[str, Fact]:
+    return derive_facts(case, read_acid_base(case), PACK, compute_calculations(case))
+
+
+def test_every_catalogue_fact_is_derived() -> None:
+    assert set(facts_of(alkalosis_case())) == set(PACK.facts)
+
+
+def test_urine_calcium_creatinine_from_molar_masses() -> None:
+    # 10 mg/dL calcium = 2.495 mmol/L; 100 mg/dL creatinine = 8.840 mmol/L (40.078 and 113.12 g/mol).
+    assert urine_calcium_creatinine_ratio(10, 100) == pytest.approx(0.2822, abs=1e-4)
+
+
+def test_values_units_and_bounds() -> None:
+    facts = facts_of(alkalosis_case(urine_cl=10, urine_cl_qualifier="<", k=3.1, creatinine=1.2))
+    assert facts["urine_cl"] == NumberFact(10, "mmol/L", "<")
+    assert facts["k"] == NumberFact(3.1, "mmol/L")
+    egfr = facts["egfr"]
+    # CKD-EPI 2021, male 58, creatinine 1.2 mg/dL (Inker et al., NEJM 2021): about 70.
+    assert isinstance(egfr, NumberFact) and egfr.unit == "mL/min/1.73 m2" and 65 < egfr.value < 75
+    assert facts["arterial_pco2"] == NumberFact(47, "mmHg")
+
+
+def test_what_the_case_does_not_hold_is_missing_with_a_reason() -> None:
+    facts = facts_of(alkalosis_case(sample="venous", bp=None))
+    assert facts["renin"] == MissingFact("not held by the case model")
+    assert facts["diuretic_screen_positive"] == MissingFact("not held by the case model")
+    assert facts["arterial_pco2"] == MissingFact("venous sample; its PCO2 is not converted")
+    assert facts["systolic_bp"] == MissingFact()
+    assert facts["volume"] == MissingFact()  # "unknown" in the case
+    assert facts["urine_cl"] == MissingFact()
+
+
+def test_findings_not_listed_are_not_reported() -> None:
+    facts = facts_of(alkalosis_case(findings=("vomiting",), volume="low"))
+    assert facts["vomiting"] == BooleanFact(True)
+    assert facts["diarrhea"] == BooleanFact(False)
+    assert facts["volume"] == TextFact("low")
+
+
+@pytest.mark.parametrize(
+    ("meds", "acting", "listed"),
+    [
+        ((), BooleanFact(False), BooleanFact(False)),
+        ((med("furosemide", 6),), BooleanFact(True), BooleanFact(True)),  # loop window 6 h, common practice
+        ((med("furosemide", 6.5),), BooleanFact(False), BooleanFact(True)),
+        ((med("hydrochlorothiazide", 24),), BooleanFact(True), BooleanFact(True)),  # thiazide 24 h, common practice
+        ((med("hydrochlorothiazide", 30),), BooleanFact(False), BooleanFact(True)),
+        ((med("furosemide"),), MissingFact("no last-dose time for furosemide"), BooleanFact(True)),
+        ((med("furosemide"), med("hydrochlorothiazide", 3)), BooleanFact(True), BooleanFact(True)),
+        (
+            (med("mystery pill"),),
+            MissingFact("unrecognised medication: mystery pill"),
+            MissingFact("unrecognised medication: mystery pill"),
+        ),
+    ],
+    ids=["none", "loop-6h", "loop-6.5h", "thiazide-24h", "thiazide-30h", "untimed", "one-acting", "unrecognised"],
+)
+def test_diuretic_action_window(meds: tuple[object, ...], acting: Fact, listed: Fact) -> None:
+    facts = facts_of(alkalosis_case(meds=meds))  # type: ignore[arg-type]
+    assert facts["loop_or_thiazide_acting"] == acting
+    assert facts["loop_or_thiazide_listed"] == listed
+
+
+def test_medication_names_for_sentences() -> None:
+    facts = facts_of(alkalosis_case(meds=(med("sodium bicarbonate"), med("licorice"), med("furosemide", 2))))
+    assert facts["alkali_names"] == TextFact("sodium bicarbonate")
+    assert facts["mineralocorticoid_names"] == TextFact("licorice")
+    assert facts["diuretic_names"] == TextFact("furosemide")
+    assert facts["loop_or_thiazide_hours"] == NumberFact(2, "h")
+    assert facts["glycyrrhizin_listed"] == BooleanFact(True)
