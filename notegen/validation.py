@@ -8,6 +8,7 @@ value that fits another unit better is refused with the suggestion, never conver
 from __future__ import annotations
 
 import difflib
+import math
 import re
 from collections.abc import Mapping
 from dataclasses import dataclass, field
@@ -55,6 +56,8 @@ CONTEXT_KEYS = ("bp", "volume", "meds", "findings")
 MAX_TEXT = 500
 MAX_MEDICATIONS = 200
 DEFAULT_WINDOW_HOURS = 24.0
+# A result time outside these years is a typing error; it also keeps time arithmetic in range.
+YEARS = (1900, 2199)
 
 _SEX = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
 _VOLUME = {
@@ -82,6 +85,27 @@ def _fmt(value: float) -> str:
     return f"{value:.4g}"
 
 
+def _shown(value: Any) -> str:
+    """A user's value echoed in a message, cut short: a 2 MB string must not become a 2 MB message."""
+    text = repr(value)
+    return text if len(text) <= 60 else f"{text[:57]}..."
+
+
+def _key(key: Any) -> str:
+    """A key as it appears in a field path, cut short like `_shown`."""
+    text = str(key)
+    return text if len(text) <= 60 else f"{text[:57]}..."
+
+
+def _finite(value: int | float) -> float | None:
+    """`value` as a float, or None when it is infinite, not a number, or too large for a float."""
+    try:
+        number = float(value)
+    except OverflowError:
+        return None
+    return number if math.isfinite(number) else None
+
+
 @dataclass
 class _Collector:
     system: str
@@ -104,9 +128,12 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
     qualifier: str | None = None
     unit_text: str | None = None
     if isinstance(raw, bool) or raw is None:
-        col.problem(path, f"expected a number, got {raw!r}")
+        col.problem(path, f"expected a number, got {_shown(raw)}")
         return None
     if isinstance(raw, int | float):
+        if _finite(raw) is None and isinstance(raw, int):
+            col.problem(path, "is too large to be a lab value")
+            return None
         number = float(raw)
     elif isinstance(raw, str):
         match = _VALUE_TEXT.match(raw)
@@ -121,16 +148,19 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
             return None
         inner = raw["value"]
         if isinstance(inner, bool) or not isinstance(inner, int | float):
-            col.problem(path, f"`value` must be a number, got {inner!r}")
+            col.problem(path, f"`value` must be a number, got {_shown(inner)}")
+            return None
+        if _finite(inner) is None and isinstance(inner, int):
+            col.problem(path, "is too large to be a lab value")
             return None
         number = float(inner)
         unit_text = raw.get("unit")
         qualifier = raw.get("qualifier")
         if qualifier not in (None, "<", ">"):
-            col.problem(path, f"`qualifier` must be < or >, got {qualifier!r}")
+            col.problem(path, f"`qualifier` must be < or >, got {_shown(qualifier)}")
             return None
         if unit_text is not None and not isinstance(unit_text, str):
-            col.problem(path, f"`unit` must be text, got {unit_text!r}")
+            col.problem(path, f"`unit` must be text, got {_shown(unit_text)}")
             return None
     else:
         col.problem(
@@ -148,7 +178,7 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
         normal = u.normalise_unit(unit_text)
         if normal is None or normal not in accepted:
             shown = ", ".join(a or "(no unit)" for a in accepted)
-            col.problem(path, f"unit {unit_text!r} is not accepted here (accepted: {shown})")
+            col.problem(path, f"unit {_shown(unit_text)} is not accepted here (accepted: {shown})")
             return None
         unit = normal
     return number, unit, qualifier
@@ -182,15 +212,18 @@ def _check_plausible(number: float, unit: str, path: str, field_name: str, col: 
 def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
     if raw is None:
         return None
-    if isinstance(raw, datetime):
-        return raw
+    when: datetime | None = raw if isinstance(raw, datetime) else None
     if isinstance(raw, str):
         try:
-            return datetime.fromisoformat(raw.strip().replace("Z", "+00:00"))
+            when = datetime.fromisoformat(raw.strip().replace("Z", "+00:00"))
         except ValueError:
             pass
-    col.problem(path, f"{str(raw)[:60]!r} is not an ISO date-time such as 2026-03-14T06:30")
-    return None
+    if when is None:
+        col.problem(path, f"{str(raw)[:60]!r} is not an ISO date-time such as 2026-03-14T06:30")
+    elif not YEARS[0] <= when.year <= YEARS[1]:
+        col.problem(path, f"{when.isoformat()} is not a plausible result time (year {when.year})")
+        when = None
+    return when
 
 
 def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:
@@ -202,8 +235,9 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         (*names, "taken_at") + (("sample",) if section == "gas" else ()) + (("urea",) if section == "chem" else ())
     )
     values: dict[str, Any] = {}
+    bad_time = False  # a time that cannot be read was reported; the entry is not used further
     for key, item in raw.items():
-        key_path = f"{path}.{key}"
+        key_path = f"{path}.{_key(key)}"
         if key not in allowed:
             col.problem(key_path, _did_you_mean(str(key), list(allowed)))
             continue
@@ -211,10 +245,11 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
             continue
         if key == "taken_at":
             values["taken_at"] = _parse_time(item, key_path, col)
+            bad_time = values["taken_at"] is None
         elif key == "sample":
             sample = str(item).strip().lower()
             if sample not in ("arterial", "venous"):
-                col.problem(key_path, f"{item!r} is not arterial or venous")
+                col.problem(key_path, f"{_shown(item)} is not arterial or venous")
             else:
                 values["sample"] = sample
         else:
@@ -256,7 +291,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
                 source=col.source(key_path),
             )
         )
-    return out
+    return None if bad_time else out
 
 
 _MODELS: dict[str, type[Gas] | type[Chem] | type[Urine]] = {"gas": Gas, "chem": Chem, "urine": Urine}
@@ -271,18 +306,24 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
         if len(good) > 1 and any(p.get("taken_at") is None for p in good):
             col.problem(section, "serial results need `taken_at` on every entry, so the latest can be told apart")
             return
-        by_time: dict[tuple[datetime, str], dict[str, Any]] = {}
+        if len({p["taken_at"].tzinfo is None for p in good if p.get("taken_at") is not None}) > 1:
+            col.problem(section, "mixes times with and without a time zone; give all times the same way")
+            return
+        by_time: dict[tuple[datetime | None, str], dict[str, Any]] = {}
         for p in good:
             # an arterial and a venous gas drawn together are two results, not one
-            when = (p["taken_at"], p.get("sample", ""))
+            when = (p.get("taken_at"), p.get("sample", ""))
             if when in by_time:
                 earlier = by_time[when]
                 for key, value in p.items():
-                    if key != "taken_at" and key in earlier and abs(earlier[key] - value) > 1e-9:
+                    if key in ("taken_at", "sample") or key not in earlier:
+                        continue
+                    if abs(earlier[key] - value) > 1e-9:
+                        at = when[0].isoformat() if when[0] is not None else "(no time)"
                         col.problem(
                             f"{section}.{key}",
                             f"two different values ({_fmt(earlier[key])} and {_fmt(value)}) at the same time "
-                            f"{when[0].isoformat()}; keep the one that is right",
+                            f"{at}; keep the one that is right",
                         )
                 earlier.update(p)
             else:
@@ -295,8 +336,15 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
             entries[section] = [entry]
 
 
-def _sort_key(when: datetime) -> float:
-    return when.timestamp() if when.tzinfo else when.replace(tzinfo=None).timestamp()
+def _sort_key(when: datetime | None) -> datetime:
+    """An instant to order results by: aware times in UTC, naive ones as written, never the machine's zone.
+
+    A section never mixes the two kinds; across sections a mix is refused where times are subtracted.
+    """
+    if when is None:
+        return datetime.min
+    offset = when.utcoffset()
+    return when.replace(tzinfo=None) - offset if offset is not None else when
 
 
 def _choose_current(
@@ -343,7 +391,7 @@ def _patient(raw: Any, col: _Collector) -> Patient:
     values: dict[str, Any] = {}
     bounds = {"age": (0, 120, "years"), "weight_kg": (1, 400, "kg"), "height_cm": (30, 260, "cm")}
     for key, item in raw.items():
-        path = f"patient.{key}"
+        path = f"patient.{_key(key)}"
         if key not in PATIENT_KEYS:
             col.problem(path, _did_you_mean(str(key), PATIENT_KEYS))
         elif item is None:
@@ -351,16 +399,20 @@ def _patient(raw: Any, col: _Collector) -> Patient:
         elif key == "sex":
             sex = _SEX.get(str(item).strip().lower())
             if sex is None:
-                col.problem(path, f"{item!r} is not female or male")
+                col.problem(path, f"{_shown(item)} is not female or male")
             values["sex"] = sex
         elif isinstance(item, bool) or not isinstance(item, int | float):
-            col.problem(path, f"expected a number, got {item!r}")
+            col.problem(path, f"expected a number, got {_shown(item)}")
         else:
             low, high, unit = bounds[key]
-            if not low <= item <= high:
-                col.problem(path, f"{item} {unit} is not plausible (expected {low} to {high})")
+            number = _finite(item)
+            if number is None:
+                too_large = f"is too large to be in {unit}" if isinstance(item, int) else "is not a finite number"
+                col.problem(path, f"{_shown(item)} {too_large}")
+            elif not low <= number <= high:
+                col.problem(path, f"{_fmt(number)} {unit} is not plausible (expected {low} to {high})")
             else:
-                values[key] = float(item)
+                values[key] = number
     age = values.get("age")
     if age is not None and age < 18:
         col.notices.append(
@@ -376,8 +428,13 @@ def _blood_pressure(raw: Any, col: _Collector) -> BloodPressure | None:
         if match:
             systolic, diastolic = int(match[1]), int(match[2])
     elif isinstance(raw, Mapping) and set(raw) == {"systolic", "diastolic"}:
-        if all(isinstance(v, int | float) and not isinstance(v, bool) for v in raw.values()):
-            systolic, diastolic = int(raw["systolic"]), int(raw["diastolic"])
+        pair = [raw["systolic"], raw["diastolic"]]
+        if all(isinstance(v, int | float) and not isinstance(v, bool) and _finite(v) is not None for v in pair):
+            if not all(float(v).is_integer() for v in pair):
+                # 118.6 is not silently cut to 118
+                col.problem("context.bp", f"{_fmt(pair[0])}/{_fmt(pair[1])}: give whole numbers of mmHg")
+                return None
+            systolic, diastolic = int(pair[0]), int(pair[1])
     if systolic is None or diastolic is None:
         col.problem(
             "context.bp", f'{str(raw)[:40]!r} is not a blood pressure such as "168/98" or {{systolic, diastolic}}'
@@ -400,13 +457,15 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
         hours_raw = raw.get("last_dose_hours")
         if hours_raw is not None:
             if isinstance(hours_raw, bool) or not isinstance(hours_raw, int | float) or not 0 <= hours_raw <= 24 * 365:
-                col.problem(f"{path}.last_dose_hours", f"{hours_raw!r} is not a number of hours since the last dose")
+                col.problem(
+                    f"{path}.last_dose_hours", f"{_shown(hours_raw)} is not a number of hours since the last dose"
+                )
                 return None
             hours = float(hours_raw)
     elif isinstance(raw, str):
         name = raw
     else:
-        col.problem(path, f"expected a medication name, got {raw!r}")
+        col.problem(path, f"expected a medication name, got {_shown(raw)}")
         return None
     name = name.strip()
     if not name or len(name) > MAX_TEXT:
@@ -438,7 +497,7 @@ def _context(raw: Any, col: _Collector) -> Context:
         return Context()
     values: dict[str, Any] = {}
     for key, item in raw.items():
-        path = f"context.{key}"
+        path = f"context.{_key(key)}"
         if key not in CONTEXT_KEYS:
             col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS))
         elif item is None:
@@ -448,7 +507,7 @@ def _context(raw: Any, col: _Collector) -> Context:
         elif key == "volume":
             volume = _VOLUME.get(str(item).strip().lower())
             if volume is None:
-                col.problem(path, f"{item!r} is not one of low, normal, high, unknown")
+                col.problem(path, f"{_shown(item)} is not one of low, normal, high, unknown")
             else:
                 values["volume"] = volume
         elif key == "meds":
@@ -509,9 +568,9 @@ def validate_case(
     )
     for key in data:
         if key not in TOP_KEYS:
-            col.problem(str(key), _did_you_mean(str(key), TOP_KEYS))
+            col.problem(_key(key), _did_you_mean(str(key), TOP_KEYS))
     if system not in ("conventional", "si"):
-        col.problem("units", f"{system!r} is not conventional or si")
+        col.problem("units", f"{_shown(system)} is not conventional or si")
     label = data.get("case")
     if label is not None:
         if not isinstance(label, str | int | float) or isinstance(label, bool) or len(str(label)) > MAX_TEXT:
