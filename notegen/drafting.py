@@ -16,6 +16,7 @@ from .acidbase import read_acid_base
 from .assessment import Assessment, _warnings
 from .calculations import compute_calculations
 from .case import Case
+from .engine import RulePack
 
 OutputFormat = Literal["markdown", "text", "html", "json"]
 
@@ -41,20 +42,58 @@ class Drafter:
     def settings(self) -> AcidBaseSettings:
         return load_acid_base_settings(list(self.rules_dirs))
 
-    def assess(self, case: Case) -> Assessment:
-        """Run every stage on a validated case and gather the results."""
+    @cached_property
+    def alkalosis_pack(self) -> RulePack:
+        from .differential import load_alkalosis_pack
+
+        return load_alkalosis_pack(self.rules_dirs)
+
+    def assess(self, case: Case, *, explain: bool = False) -> Assessment:
+        """Run every stage on a validated case and gather the results.
+
+        case -> calculations -> acid-base reading -> rule walk (when there is a metabolic alkalosis).
+        """
+        from .differential import evaluate_alkalosis
+
         calculations = compute_calculations(case, self.settings)
         reading = read_acid_base(case, self.settings)
+        rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
         return Assessment(
             case=case,
             acid_base=reading,
             alerts=reading.alerts,
             calculations=calculations,
-            chloride_class=None,
+            chloride_class=rules.chloride_class,
+            chloride_notes=rules.chloride_notes,
+            generation=rules.generation,
+            differential=rules.differential,
+            maintenance=rules.maintenance,
+            next_tests=rules.next_tests,
+            trace=rules.trace,
             warnings=_warnings(case, reading),
         )
 
     def draft(self, case: Case, options: DraftOptions | None = None) -> str:
         from .note import render_note
 
-        return render_note(self.assess(case), options or DraftOptions(), template=self.template)
+        options = options or DraftOptions()
+        return render_note(self.assess(case, explain=options.explain), options, template=self.template)
+
+
+def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
+    """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
+    from .acid_base_settings import load_acid_base_settings
+    from .differential import check_alkalosis_pack
+    from .errors import RulePackError
+
+    lines: list[str] = []
+    missing = [f for f in folders if not Path(f).is_dir()]
+    if missing:
+        return [f"{f}: no such folder" for f in missing]
+    try:
+        load_acid_base_settings(list(folders))
+    except RulePackError as error:
+        lines.extend(str(error).splitlines())
+    for filename, line, message in check_alkalosis_pack(folders):
+        lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
+    return lines
