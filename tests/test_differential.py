@@ -18,7 +18,7 @@ from notegen.differential import (
     load_alkalosis_pack,
 )
 from notegen.engine import FactInput, RulePack
-from tests.alkalosis_cases import alkalosis_case, med
+from alkalosis_cases import alkalosis_case, med
 
 
 def evaluate(

@@ -10,7 +10,7 @@ from notegen.case import Case
 from notegen.differential import default_alkalosis_pack
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
 from notegen.facts import derive_facts, urine_calcium_creatinine_ratio
-from tests.alkalosis_cases import alkalosis_case, med
+from alkalosis_cases import alkalosis_case, med
 
 PACK = default_alkalosis_pack()
 
