@@ -3,7 +3,8 @@
 Rules, vocabularies and templates are loaded once by the `Drafter`. A bad case is
 reported on stderr with its message and the others are still drafted; the exit status
 is non-zero at the end when any case was rejected. Notes are written to a temporary
-file and renamed, so a partial note is never left behind.
+file and renamed, so a partial note is never left behind, and two cases never write
+to the same note file in one run.
 """
 
 from __future__ import annotations
@@ -14,10 +15,11 @@ import sys
 import tempfile
 from collections.abc import Iterable, Iterator
 from pathlib import Path
-from typing import TextIO
+from typing import BinaryIO
 
-from .drafting import DraftOptions, Drafter
-from .errors import InputError, NotegenError
+from .drafting import Drafter, DraftOptions
+from .errors import CaseFileError, InputError, NotegenError, UsageError
+from .loading import MAX_BYTES, parse_json
 from .validation import validate_case
 
 CASE_SUFFIXES = (".yaml", ".yml", ".json")
@@ -25,47 +27,81 @@ _EXTENSIONS = {"markdown": ".md", "text": ".txt", "html": ".html", "json": ".jso
 
 
 def write_atomically(path: Path, text: str) -> None:
-    """Write `text` to `path` through a temporary file in the same folder and a rename."""
+    """Write `text` to `path` through a temporary file in the same folder and a rename.
+
+    Raises UsageError when the file cannot be written (no such folder, no permission,
+    disk full); the temporary file is removed whatever happens.
+    """
     path = Path(path)
-    handle, temporary = tempfile.mkstemp(dir=path.parent or Path("."), prefix=f".{path.name}.", suffix=".part")
+    try:
+        handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror}") from None
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
             stream.write(text)
         os.replace(temporary, path)
+    except OSError as exc:
+        Path(temporary).unlink(missing_ok=True)
+        raise UsageError(f"cannot write {path}: {exc.strerror}") from None
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
 
 
-def expand_sources(sources: Iterable[str]) -> Iterator[str]:
-    """Files as given; folders as their case files, sorted by name."""
+def expand_sources(sources: Iterable[str]) -> Iterator[str | InputError]:
+    """Files as given; folders as their case files, sorted by name; an error for a folder without any."""
     for source in sources:
         path = Path(source)
         if source != "-" and path.is_dir():
-            yield from sorted(str(p) for p in path.iterdir() if p.suffix in CASE_SUFFIXES and p.is_file())
+            found = sorted(str(p) for p in path.iterdir() if p.suffix in CASE_SUFFIXES and p.is_file())
+            if not found:
+                yield InputError(f"{source}: no case files ({', '.join(CASE_SUFFIXES)}) in this folder")
+            yield from found
         else:
             yield source
 
 
-def _jsonl_cases(sources: list[str]) -> Iterator[tuple[str, object]]:
-    streams: list[tuple[str, TextIO]] = []
+def _bounded_lines(stream: BinaryIO) -> Iterator[bytes]:
+    """The stream's lines; a line longer than `MAX_BYTES` is cut there and the rest skipped (never held)."""
+    while line := stream.readline(MAX_BYTES + 1):
+        if len(line) > MAX_BYTES and not line.endswith(b"\n"):
+            while (rest := stream.readline(MAX_BYTES)) and not rest.endswith(b"\n"):
+                pass
+        yield line
+
+
+def _jsonl_line(raw: bytes, name: str, number: int) -> object:
+    label = f"{name}:{number}"
+    if len(raw) > MAX_BYTES:
+        return InputError(f"{label}: the line is longer than {MAX_BYTES:,} bytes; a case is a few kilobytes")
+    try:
+        text = raw.decode("utf-8-sig" if number == 1 else "utf-8")
+    except UnicodeDecodeError as exc:
+        return InputError(f"{label}: not UTF-8 text (byte 0x{raw[exc.start]:02x}); save the file as UTF-8")
+    try:
+        return parse_json(text, label)
+    except CaseFileError as error:
+        # one line of JSON Lines is one line: keep its column, drop parse_json's "line 1"
+        detail = error.message.split(": ", 1)[-1]
+        column = f", column {error.column}" if error.column is not None else ""
+        return InputError(f"{label}{column}: {detail}")
+
+
+def _jsonl_cases(sources: list[str], stdin: BinaryIO) -> Iterator[tuple[str, object]]:
     for source in sources or ["-"]:
-        if source == "-":
-            streams.append(("<stdin>", sys.stdin))
-        else:
-            streams.append((source, Path(source).open(encoding="utf-8")))
-    for name, stream in streams:
+        name = "<stdin>" if source == "-" else source
         try:
-            for number, line in enumerate(stream, start=1):
-                if not line.strip():
-                    continue
-                label = f"{name}:{number}"
-                try:
-                    yield label, json.loads(line)
-                except json.JSONDecodeError as exc:
-                    yield label, InputError(f"{label}, column {exc.colno}: not valid JSON: {exc.msg}")
+            stream = stdin if source == "-" else Path(source).open("rb")
+        except OSError as exc:
+            yield name, InputError(f"{name}: cannot be read ({exc.strerror})")
+            continue
+        try:
+            for number, raw in enumerate(_bounded_lines(stream), start=1):
+                if raw.strip():
+                    yield f"{name}:{number}", _jsonl_line(raw, name, number)
         finally:
-            if stream is not sys.stdin:
+            if stream is not stdin:
                 stream.close()
 
 
@@ -78,18 +114,23 @@ def run_batch(
     jsonl: bool,
     window_hours: float,
 ) -> int:
-    """Draft every case; return the exit status (0 all drafted, 2 some rejected)."""
+    """Draft every case; return the exit status (0 all drafted, 2 some rejected, 1 some failed unexpectedly)."""
     from .intake import read_case
 
     if out_dir is not None:
-        out_dir.mkdir(parents=True, exist_ok=True)
-    drafted = rejected = 0
+        try:
+            out_dir.mkdir(parents=True, exist_ok=True)
+        except OSError as exc:
+            raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
+    drafted = rejected = failed = 0
     extension = _EXTENSIONS[options.output_format]
+    written: dict[Path, str] = {}
+    stdin_bytes: bytes | None = None
     items: Iterator[tuple[str, object]]
     if jsonl:
-        items = _jsonl_cases(sources)
+        items = _jsonl_cases(sources, sys.stdin.buffer)
     else:
-        items = ((source, None) for source in expand_sources(sources))
+        items = ((str(s), s) if isinstance(s, InputError) else (s, None) for s in expand_sources(sources))
     single_line = options.output_format == "json" and (jsonl or out_dir is None)
     for label, payload in items:
         try:
@@ -98,19 +139,43 @@ def run_batch(
             if jsonl:
                 case = validate_case(payload, filename=label, window_hours=window_hours)
             else:
-                case = read_case(label, window_hours=window_hours)
+                if label == "-" and stdin_bytes is None:
+                    stdin_bytes = sys.stdin.buffer.read()
+                case = read_case(label, window_hours=window_hours, stdin=stdin_bytes)
             note = drafter.draft(case, options)
+            target = None
+            if out_dir is not None:
+                stem = Path(label.split(":")[0]).stem
+                if jsonl:
+                    stem = f"{stem}-{label.rsplit(':', 1)[-1]}"  # the line number: stable across runs
+                target = out_dir / f"{stem}{extension}"
+                if target in written:
+                    raise InputError(
+                        f"{label}: its note would overwrite the note of {written[target]} ({target.name}); "
+                        "rename one of the two cases"
+                    )
         except NotegenError as error:
             rejected += 1
             print(f"notegen: {error}", file=sys.stderr)
             continue
+        except Exception as error:  # noqa: BLE001 - one case's bug must not lose the other cases
+            failed += 1
+            print(
+                f"notegen: {label}: unexpected error ({type(error).__name__}): {error}. "
+                "Please report this with the input that caused it.",
+                file=sys.stderr,
+            )
+            continue
         drafted += 1
-        if out_dir is not None:
-            stem = Path(label.split(":")[0]).stem if not jsonl else f"{Path(label.split(':')[0]).stem}-{drafted + rejected}"
-            write_atomically(out_dir / f"{stem}{extension}", note)
+        if target is not None:
+            written[target] = label
+            write_atomically(target, note)
         elif single_line:
             sys.stdout.write(json.dumps(json.loads(note), ensure_ascii=False, separators=(",", ":")) + "\n")
         else:
             sys.stdout.write(note if note.endswith("\n") else note + "\n")
-    print(f"notegen: {drafted} drafted, {rejected} rejected", file=sys.stderr)
+    summary = f"{drafted} drafted, {rejected} rejected"
+    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=sys.stderr)
+    if failed:
+        return 1
     return 0 if rejected == 0 else 2

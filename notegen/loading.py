@@ -263,7 +263,7 @@ def parse_json(text: str, filename: str, *, max_depth: int = MAX_DEPTH) -> Any:
 
 def decode(raw: bytes, filename: str) -> str:
     if len(raw) > MAX_BYTES:
-        raise CaseFileError(f"{len(raw):,} bytes is too large for a case file (limit {MAX_BYTES:,})", filename=filename)
+        raise CaseFileError(f"more than {MAX_BYTES:,} bytes is too large for a case file", filename=filename)
     try:
         text = raw.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
@@ -289,7 +289,9 @@ def read_source(path: str, stdin_bytes: bytes | None = None) -> tuple[str, str]:
         return decode(stdin_bytes or b"", "<stdin>"), "<stdin>"
     file = Path(path)
     try:
-        raw = file.read_bytes()
+        with file.open("rb") as stream:
+            # one byte past the limit is enough to refuse: /dev/zero or a 10 GB file is never held
+            raw = stream.read(MAX_BYTES + 1)
     except FileNotFoundError:
         raise CaseFileError("no such file", filename=path) from None
     except IsADirectoryError:
