@@ -18,7 +18,7 @@ from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_valida
 
 from notegen.acidbase_model import Chronicity, Disorder, Primary
 from notegen.assessment import Assessment, ChlorideClass
-from notegen.case import Volume
+from notegen.case import CANONICAL_UNITS, Case, Volume
 from notegen.errors import RulePackError
 from notegen.resources import rules_dir
 
@@ -78,6 +78,12 @@ class Condition(BaseModel):
     primary: tuple[Primary, ...] | None = None
     chronicity: tuple[Chronicity, ...] | None = None
     egfr_below: float | None = Field(default=None, gt=0)
+    unmeasured: tuple[str, ...] | None = None
+
+    @field_validator("unmeasured")
+    @classmethod
+    def _known_fields(cls, value: tuple[str, ...] | None) -> tuple[str, ...] | None:
+        return _known(value, frozenset(CANONICAL_UNITS), "case field")
 
     @field_validator("cause")
     @classmethod
@@ -216,6 +222,7 @@ class _Facts:
     primary: str
     chronicity: str | None
     egfr: float | None
+    measured: frozenset[str]
 
     @classmethod
     def of(cls, assessment: Assessment) -> _Facts:
@@ -236,7 +243,15 @@ class _Facts:
             primary=reading.primary,
             chronicity=reading.chronicity,
             egfr=egfr.value if egfr is not None else None,
+            measured=_measured(case),
         )
+
+
+def _measured(case: Case) -> frozenset[str]:
+    sections = {"gas": case.gas, "chem": case.chem, "urine": case.urine}
+    return frozenset(
+        name for name in CANONICAL_UNITS if getattr(sections[name.split(".")[0]], name.split(".")[1], None) is not None
+    )
 
 
 def _any(wanted: tuple[str, ...] | None, present: frozenset[str] | str | None) -> bool:
@@ -253,6 +268,8 @@ def _holds(condition: Condition, facts: _Facts) -> bool:
     if condition.alkalosis is not None and condition.alkalosis != facts.alkalosis:
         return False
     if condition.egfr_below is not None and (facts.egfr is None or facts.egfr >= condition.egfr_below):
+        return False
+    if condition.unmeasured is not None and facts.measured.intersection(condition.unmeasured):
         return False
     checks: tuple[tuple[tuple[str, ...] | None, frozenset[str] | str | None], ...] = (
         (condition.chloride_class, facts.chloride_class),

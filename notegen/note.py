@@ -321,6 +321,8 @@ def _calculation_row(calculation: Calculation) -> dict[str, str]:
     digits = _CALCULATION_DIGITS.get(calculation.name, 1)
     if calculation.name == "calculated_ph":
         value = _ph_text(calculation.value)
+    elif calculation.name == "delta_ratio":
+        value = format_number(calculation.value, 1)  # as the paragraph gives it
     else:
         value = _trimmed(calculation.value, digits)
     result = f"{value} {calculation.unit}".strip()
@@ -342,7 +344,7 @@ def _chloride_class_words(chloride_class: str | None) -> str:
     return {
         "responsive": "chloride-responsive",
         "resistant": "chloride-resistant",
-        "indeterminate": "indeterminate (between the responsive and resistant ranges)",
+        "indeterminate": "indeterminate",
         "unknown": "not known (no readable urine chloride)",
         None: "",
     }.get(chloride_class, chloride_class or "")
@@ -352,13 +354,18 @@ def _evidence_row(evidence: Evidence) -> dict[str, str]:
     return {"text": evidence.text, "strength": evidence.strength, "source": evidence.source}
 
 
+def _by_strength(evidence: Sequence[Evidence]) -> list[Evidence]:
+    order = {"strong": 0, "moderate": 1, "weak": 2}
+    return sorted(evidence, key=lambda item: order.get(item.strength, 3))
+
+
 def _cause_row(cause: CauseEntry) -> dict[str, Any]:
     return {
         "cause": cause.cause,
         "label": _cap(cause.label),
         "tier": cause.tier,
-        "supporting": [_evidence_row(e) for e in cause.supporting],
-        "opposing": [_evidence_row(e) for e in cause.opposing],
+        "supporting": [_evidence_row(e) for e in _by_strength(cause.supporting)],
+        "opposing": [_evidence_row(e) for e in _by_strength(cause.opposing)],
         "undecided": list(cause.undecided),
     }
 

@@ -13,6 +13,7 @@ from collections.abc import Sequence
 
 from notegen.acidbase_model import AcidBaseReading, Disorder, ExpectedRange
 from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
+from notegen.calculations import Calculation
 from notegen.render.filters import format_number, join_words
 
 __all__ = ["draft_paragraph"]
@@ -29,8 +30,8 @@ _COUNT_WORDS = {2: "Two", 3: "Three", 4: "Four", 5: "Five", 6: "Six"}
 _KEEP_CAPITAL = frozenset({"Addison", "Bartter", "Conn", "Cushing", "Gitelman", "Henderson", "Liddle", "Winter"})
 _FIRST_WORD = re.compile(r"[A-Za-z]+")
 # Two-letter words that are English, not element symbols such as Na, Mg or Cl.
-_SHORT_WORDS = frozenset({"An", "As", "At", "By", "If", "In", "Is", "It", "No", "Of", "On", "Or", "To", "Up"})
-FINDINGS_PER_CAUSE = 3
+_SHORT_WORDS = frozenset({"A", "An", "As", "At", "By", "If", "In", "Is", "It", "No", "Of", "On", "Or", "To", "Up"})
+FINDINGS_PER_CAUSE = 2
 AGAINST_CAUSES = 2
 POSSIBLE_CAUSES_NAMED = 3
 
@@ -41,7 +42,7 @@ def draft_paragraph(assessment: Assessment) -> str:
     said: set[str] = set()  # disorders already named, so none is announced twice
     sentences: list[str] = []
     sentences += _consistency(reading)
-    primary, gap_said = _primary(reading, said)
+    primary, gap_said = _primary(reading, said, assessment.calculations.get("expected_pco2"))
     sentences += primary
     sentences += _anion_gap(reading, said, gap_said)
     sentences += _other_disorders(reading, said)
@@ -167,7 +168,9 @@ def _added(reading: AcidBaseReading, candidates: Sequence[Disorder]) -> Disorder
     return None
 
 
-def _primary(reading: AcidBaseReading, said: set[str]) -> tuple[list[str], bool]:
+def _primary(
+    reading: AcidBaseReading, said: set[str], expected_pco2: Calculation | None = None
+) -> tuple[list[str], bool]:
     """Sentences naming the primary disorder and its compensation; True when the gap was stated."""
     primary = reading.primary
     if reading.ph is None or reading.pco2 is None:
@@ -189,21 +192,25 @@ def _primary(reading: AcidBaseReading, said: set[str]) -> tuple[list[str], bool]
         return [f"{gas} does not show a clear primary disorder ({_clause(reading.primary_reason)})."], False
     said.add(primary)
     if primary in ("metabolic_alkalosis", "metabolic_acidosis"):
-        return _metabolic_primary(reading, gas, said)
+        return _metabolic_primary(reading, gas, said, expected_pco2)
     return _respiratory_primary(reading, gas, said), False
 
 
-def _metabolic_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> tuple[list[str], bool]:
+def _metabolic_primary(
+    reading: AcidBaseReading, gas: str, said: set[str], expected_pco2: Calculation | None
+) -> tuple[list[str], bool]:
     word = WORDS[reading.primary]
     expected = reading.expected
     if expected is None or reading.compensation == "not_applicable":
         used, adjective = _gap_used(reading)
         if reading.anion_gap_status == "high" and used is not None:
             reference = _span(*reading.anion_gap_reference, "mmol/L")
-            return [
+            sentences = [
                 f"{gas} looks close to normal, but the {adjective}anion gap of {_mmol(used)} (reference "
                 f"{reference}) shows a high anion gap {word}."
-            ], True
+            ]
+            sentences += _winters_fit(reading, expected_pco2)
+            return sentences, True
         return [f"{gas} shows a primary {word}."], False
     assert reading.pco2 is not None
     rule, span = _by_rule(expected.rule), _range(expected)
@@ -240,6 +247,18 @@ def _metabolic_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> tu
             f"but respiratory compensation this high is uncommon, so an added {WORDS[added]} is possible."
         ], False
     return [f"{gas} shows a primary {word}; whether compensation fits cannot be judged."], False
+
+
+def _winters_fit(reading: AcidBaseReading, expected_pco2: Calculation | None) -> list[str]:
+    """With a near-normal bicarbonate the reading leaves compensation unjudged; say when Winter's fits."""
+    if expected_pco2 is None or expected_pco2.low is None or expected_pco2.high is None or reading.pco2 is None:
+        return []
+    if "Winter" not in f"{expected_pco2.note} {expected_pco2.source}" or reading.sample == "venous":
+        return []
+    if not expected_pco2.low <= reading.pco2 <= expected_pco2.high:
+        return []
+    span = _span(expected_pco2.low, expected_pco2.high, "mmHg")
+    return [f"The PaCO2 of {_mmhg(reading.pco2)} fits the {span} that Winter's formula predicts."]
 
 
 def _respiratory_ranges(reading: AcidBaseReading) -> tuple[ExpectedRange | None, ExpectedRange | None]:
@@ -313,6 +332,11 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
             if reading.ph_status == "alkalemia" and used <= reading.anion_gap_reference[1] + 4:
                 text += ", though alkalemia itself raises the gap by a few mmol/L"
         sentences.append(text + ".")
+    elif reading.anion_gap_status == "normal" and used < reading.anion_gap_reference[0]:
+        sentences.append(
+            f"The {adjective}anion gap is below the reference range at {_mmol(used)} ({reference}); a "
+            "laboratory error is worth excluding."
+        )
     elif reading.anion_gap_status == "normal":
         if reading.primary == "metabolic_acidosis":
             sentences.append(
@@ -418,35 +442,48 @@ def _urine_chloride(assessment: Assessment) -> str | None:
 
 
 def _chloride(assessment: Assessment) -> list[str]:
+    """The chloride class: the rule pack's own sentences when it gives them, else ours."""
+    notes = [_sentence(note) for note in assessment.chloride_notes if note.strip()]
+    if notes:
+        return notes
     chloride = _urine_chloride(assessment)
-    notes = [_sentence(note) for note in assessment.chloride_notes]
     cls = assessment.chloride_class
     if chloride is None:
         if cls in ("responsive", "resistant"):
-            head = f"The alkalosis reads as chloride-{cls}."
-        else:
-            head = "Without a urine chloride, the alkalosis cannot yet be classed as chloride-responsive or resistant."
-    elif cls in ("responsive", "resistant"):
-        verb = "would make" if notes else "makes"
-        head = f"{chloride} {verb} the alkalosis chloride-{cls}."
-    elif cls == "indeterminate":
-        head = f"{chloride} falls between the chloride-responsive and chloride-resistant ranges."
-    else:
-        head = f"{chloride} cannot be used to class the alkalosis."
-    return [head, *notes]
+            return [f"The alkalosis reads as chloride-{cls}."]
+        return ["Without a urine chloride, the alkalosis cannot yet be classed as chloride-responsive or resistant."]
+    if cls in ("responsive", "resistant"):
+        return [f"{chloride} makes the alkalosis chloride-{cls}."]
+    if cls == "indeterminate":
+        return [f"{chloride} falls between the chloride-responsive and chloride-resistant ranges."]
+    return [f"{chloride} cannot be used to class the alkalosis."]
 
 
 def _strongest(evidence: Sequence[Evidence], limit: int) -> list[Evidence]:
-    return sorted(evidence, key=lambda item: _STRENGTH_ORDER.get(item.strength, 3))[:limit]
+    """The findings that carry a cause: strongest first, weak ones only when nothing firmer is there."""
+    ranked = sorted(evidence, key=lambda item: _STRENGTH_ORDER.get(item.strength, 3))
+    firm = [item for item in ranked if item.strength != "weak"]
+    return (firm or ranked)[:limit]
 
 
 def _findings(evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
+    """The strongest findings as clauses joined by semicolons (they may hold commas and parentheses)."""
     return "; ".join(_clause(item.text) for item in _strongest(evidence, limit) if item.text.strip())
 
 
-def _with_findings(label: str, evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
+def _because(label: str, evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
+    # A dash, not a parenthesis: labels and findings carry parentheses of their own.
     findings = _findings(evidence, limit)
-    return f"{label} ({findings})" if findings else label
+    return f"{label} \u2014 {findings}" if findings else label
+
+
+def _list(items: Sequence[str], conj: str = "and") -> str:
+    """An English list; semicolons when an item holds its own "and" or "or", so the items stay apart."""
+    if len(items) > 2 and any(f" {word} " in item for item in items for word in ("and", "or")):
+        return f"{'; '.join(items[:-1])}; {conj} {items[-1]}"
+    if len(items) == 2 and any(f" {word} " in items[0] for word in ("and", "or")):
+        return f"{items[0]}, {conj} {items[1]}"
+    return join_words(items, conj)
 
 
 def _causes(differential: Sequence[CauseEntry]) -> list[str]:
@@ -454,37 +491,40 @@ def _causes(differential: Sequence[CauseEntry]) -> list[str]:
     possible = [cause for cause in differential if cause.tier == "possible"]
     sentences: list[str] = []
     if len(likely) == 1:
-        sentences.append(f"{_cap(_with_findings(_inline(likely[0].label), likely[0].supporting))} is the likely cause.")
+        sentences.append(f"The likely cause is {_because(_inline(likely[0].label), likely[0].supporting)}.")
     elif likely:
         count = _COUNT_WORDS.get(len(likely), str(len(likely)))
-        items = [_with_findings(_inline(cause.label), cause.supporting) for cause in likely]
-        sentences.append(f"{count} causes are likely and may be acting together: {join_words(items)}.")
+        sentences.append(f"{count} causes are likely and may be acting together.")
+        for cause in likely:
+            sentences.append(f"{_cap(_because(_inline(cause.label), cause.supporting))}.")
     named = possible[:POSSIBLE_CAUSES_NAMED]
     rest = len(possible) - len(named)
+    others = [f"{rest} other{'s' if rest > 1 else ''}"] if rest else []
+    labels = [_inline(cause.label) for cause in named] + others
     if likely and possible:
-        labels = [_inline(cause.label) for cause in named]
-        if rest:
-            labels.append(f"{rest} other{'s' if rest > 1 else ''}")
         verb = "is" if len(possible) == 1 else "are"
-        sentences.append(f"{_cap(join_words(labels))} {verb} also possible.")
+        sentences.append(f"{_cap(_list(labels))} {verb} also possible.")
+    elif len(possible) == 1:
+        only = possible[0]
+        remains = f"{_inline(only.label)} remains possible"
+        sentences.append(f"No cause is clearly supported, though {_because(remains, only.supporting)}.")
     elif possible:
-        items = [_with_findings(_inline(cause.label), cause.supporting, 2) for cause in named]
-        if rest:
-            items.append(f"{rest} other{'s' if rest > 1 else ''}")
-        verb = "remains" if len(possible) == 1 else "remain"
-        sentences.append(f"No cause is clearly supported; {join_words(items)} {verb} possible.")
+        sentences.append(f"No cause is clearly supported; {_list(labels)} remain possible.")
     elif not likely:
         sentences.append("The findings do not yet point to any of the usual causes.")
     return sentences
 
 
 def _against(differential: Sequence[CauseEntry]) -> list[str]:
-    unlikely = [cause for cause in differential if cause.tier == "unlikely" and cause.opposing][:AGAINST_CAUSES]
-    if not unlikely:
-        return []
-    items = [_with_findings(_inline(cause.label), cause.opposing, 2) for cause in unlikely]
-    verb = "is" if len(items) == 1 else "are"
-    return [f"{_cap(join_words(items))} {verb} unlikely."]
+    """The alternatives argued against most firmly: unlikely causes with the strongest opposing findings."""
+    unlikely = [cause for cause in differential if cause.tier == "unlikely" and cause.opposing]
+    ranked = sorted(unlikely, key=lambda cause: min(_STRENGTH_ORDER.get(e.strength, 3) for e in cause.opposing))
+    chosen = [cause for cause in ranked if any(e.strength != "weak" for e in cause.opposing)][:AGAINST_CAUSES]
+    sentences: list[str] = []
+    for index, cause in enumerate(chosen):
+        verb = "is unlikely" if index == 0 else "is also unlikely"
+        sentences.append(f"{_cap(_because(f'{_inline(cause.label)} {verb}', cause.opposing, 1))}.")
+    return sentences
 
 
 def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
@@ -492,13 +532,13 @@ def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
     open_ = [_inline(factor.label) for factor in factors if factor.status == "undetermined"]
     if present and open_:
         return [
-            f"The alkalosis is maintained by {join_words(present)}; whether {join_words(open_, 'or')} also "
-            "contributes cannot be judged from these values."
+            f"The alkalosis is maintained by {_list(present)}; whether {_list(open_, 'or')} also contributes "
+            "cannot be judged from these values."
         ]
     if present:
-        return [f"The alkalosis is maintained by {join_words(present)}."]
+        return [f"The alkalosis is maintained by {_list(present)}."]
     if open_:
-        return [f"Whether {join_words(open_, 'or')} maintains the alkalosis cannot be judged from these values."]
+        return [f"Whether {_list(open_, 'or')} maintains the alkalosis cannot be judged from these values."]
     return []
 
 
@@ -507,4 +547,4 @@ def _next_tests(assessment: Assessment) -> list[str]:
     if not labels:
         return []
     noun = "test" if len(labels) == 1 else "tests"
-    return [f"Next {noun} to consider: {join_words(labels)}."]
+    return [f"Next {noun} to consider: {_list(labels)}."]

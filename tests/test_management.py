@@ -57,7 +57,7 @@ def test_chloride_responsive_vomiting_with_low_potassium() -> None:
     )
     chosen = ids(assessment)
     assert chosen[:2] == ["generation_and_maintenance", "chloride_responsive_replacement"]
-    assert {"gastric_loss", "diuretic", "potassium_repletion", "magnesium"} <= set(chosen)
+    assert {"gastric_loss", "diuretic", "potassium_repletion", "magnesium_low"} <= set(chosen)
     assert "alkali_sources" not in chosen  # an unlikely cause draws nothing
     text = " ".join(management_considerations(assessment))
     assert "isotonic sodium chloride" in text and "rate limits of local protocol" in text
@@ -81,6 +81,14 @@ def test_chronic_hypercapnia_without_alkalosis() -> None:
 
 def test_normal_gas_draws_nothing() -> None:
     assert ids(assess({"gas": {"sample": "arterial", "ph": 7.4, "pco2": 40, "hco3": 24}})) == []
+
+
+def test_magnesium_is_asked_for_only_when_not_measured() -> None:
+    measured_normal = ids(sample("hypertension_low_potassium"))  # potassium 2.7, magnesium 2.0 mg/dL
+    assert "potassium_repletion" in measured_normal
+    assert not {"magnesium_low", "magnesium_unmeasured"} & set(measured_normal)
+    unmeasured = ids(assess({"gas": {"sample": "arterial", "ph": 7.5, "pco2": 48, "hco3": 36}, "chem": {"k": 2.7}}))
+    assert "magnesium_unmeasured" in unmeasured and "magnesium_low" not in unmeasured
 
 
 def test_alert_level_is_matched_when_asked() -> None:
@@ -137,6 +145,11 @@ def test_a_folder_without_the_file_changes_nothing(tmp_path: Path) -> None:
         ),
         ("considerations:\n  - id: a\n    when: {alkalosis: true}\n    says: x\n", 2, "source"),
         (
+            "considerations:\n  - id: a\n    when: {unmeasured: [chem.magnesium]}\n    says: x\n    source: y\n",
+            2,
+            "case field",
+        ),
+        (
             "considerations:\n  - id: a\n    when: {alkalosis: true}\n    says: x\n    source: y\n"
             "  - id: a\n    when: {alkalosis: true}\n    says: z\n    source: y\n",
             6,
@@ -145,7 +158,16 @@ def test_a_folder_without_the_file_changes_nothing(tmp_path: Path) -> None:
         ("considerations:\n  - id: a\n    says: x\n    says: y\n", 4, "given twice"),
         ("advice: []\n", 1, "considerations"),
     ],
-    ids=["unknown cause", "unknown key", "alert level", "no source", "duplicate id", "duplicate key", "top key"],
+    ids=[
+        "unknown cause",
+        "unknown key",
+        "alert level",
+        "no source",
+        "field",
+        "duplicate id",
+        "duplicate key",
+        "top key",
+    ],
 )
 def test_broken_files_are_refused_with_file_and_line(tmp_path: Path, text: str, line: int, message: str) -> None:
     folder = write_pack(tmp_path / "broken", text)

@@ -63,6 +63,8 @@ def worked_up(assessment: Assessment) -> Assessment:
     return assessment.model_copy(
         update={
             "chloride_class": "responsive",
+            "chloride_notes": (),
+            "generation": (),
             "differential": (gastric, mineralocorticoid),
             "maintenance": (
                 FactorEntry(
@@ -126,10 +128,17 @@ def test_sections_come_in_order() -> None:
 def test_the_work_up_sections_carry_the_findings() -> None:
     note = draft(worked_up(sample("thiazide_and_vomiting")))
     assert "**Chloride class:** chloride-responsive" in note
-    assert "### Gastric acid loss (likely)" in note
+    assert "**Chloride class:** chloride-responsive.\n" in note
+    assert "### Gastric acid loss: likely" in note
     assert "- For (strong): Vomiting for three days. Source: common practice." in note
-    assert "- Against (strong): Blood pressure 104/62 mmHg, not raised. Source: common practice." in note
-    assert "- Not settled: whether vomiting continues" in note
+    assert (
+        "### Unlikely\n\n- **Mineralocorticoid excess:** Blood pressure 104/62 mmHg, not raised. (common practice)"
+        in note
+    )
+    assert "Not settled" not in note
+    assert "- Not settled: whether vomiting continues" in draft(
+        worked_up(sample("thiazide_and_vomiting")), explain=True
+    )
     assert "- **Hypokalemia**: Potassium 2.8 mmol/L. Source: common practice." in note
     assert "- **Repeat serum magnesium:** low magnesium blocks repletion" in note
 
@@ -205,7 +214,9 @@ def test_differential_says_why_it_is_absent() -> None:
     assert "No metabolic alkalosis on these values, so no alkalosis differential applies." in draft(
         sample("chronic_co2_retention")
     )
-    assert "have not been weighed in this draft" in draft(sample("gastric_suction"))
+    no_walk = sample("gastric_suction").model_copy(update={"chloride_class": None, "differential": ()})
+    assert "have not been weighed in this draft" in draft(no_walk)
+    assert "### Gastric acid loss (vomiting or gastric drainage): likely" in draft(sample("gastric_suction"))
 
 
 # Formats ---------------------------------------------------------------------------------------

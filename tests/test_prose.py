@@ -58,8 +58,20 @@ def suggested(test_id: str, label: str) -> SuggestedTest:
     return SuggestedTest(test=test_id, label=label, why="it would settle what is still open")
 
 
+NO_WORK_UP: dict[str, Any] = {
+    "chloride_class": None,
+    "chloride_notes": (),
+    "generation": (),
+    "differential": (),
+    "maintenance": (),
+    "next_tests": (),
+    "trace": (),
+}
+
+
 def worked_up(assessment: Assessment, **fields: Any) -> Assessment:
-    return assessment.model_copy(update=fields)
+    """The assessment with the rule walk's fields replaced by hand (all of them, so none leaks in)."""
+    return assessment.model_copy(update={**NO_WORK_UP, **fields})
 
 
 THIAZIDE_VOMITING_WORKUP: dict[str, Any] = {
@@ -108,11 +120,12 @@ def test_thiazide_and_vomiting_two_likely_causes() -> None:
         "appropriate respiratory compensation (expected PaCO2 47.8–51.8 mmHg by the 0.7 rule). "
         "The albumin-corrected anion gap is normal at 10 mmol/L. "
         "The urine chloride of 14 mmol/L makes the alkalosis chloride-responsive. "
-        "Two causes are likely and may be acting together: gastric acid loss (vomiting for three days; urine "
-        "chloride 14 mmol/L, below 20 mmol/L) and diuretic use (hydrochlorothiazide last taken 40 hours ago; "
-        "urine potassium-to-creatinine ratio 3.7 mmol/mmol, a renal potassium loss). "
-        "Mineralocorticoid excess (blood pressure 104/62 mmHg, not raised; volume status low) and alkali load "
-        "(no alkali source among the medications) are unlikely. "
+        "Two causes are likely and may be acting together. "
+        "Gastric acid loss — vomiting for three days; urine chloride 14 mmol/L, below 20 mmol/L. "
+        "Diuretic use — hydrochlorothiazide last taken 40 hours ago; urine potassium-to-creatinine ratio "
+        "3.7 mmol/mmol, a renal potassium loss. "
+        "Mineralocorticoid excess is unlikely — blood pressure 104/62 mmHg, not raised. "
+        "Alkali load is also unlikely — no alkali source among the medications. "
         "The alkalosis is maintained by volume contraction and hypokalemia; whether reduced GFR also "
         "contributes cannot be judged from these values. "
         "Next test to consider: urine calcium-to-creatinine ratio."
@@ -133,9 +146,9 @@ def test_loop_diuretic_high_urine_chloride_carries_the_caveat() -> None:
     )
     text = draft_paragraph(assessment)
     assert (
-        "The urine chloride of 78 mmol/L would make the alkalosis chloride-resistant. Furosemide was given 4 "
-        "hours ago, so a high urine chloride cannot be read as chloride resistance. "
-        "Loop diuretic (furosemide 4 hours before the urine sample) is the likely cause. "
+        "The albumin-corrected anion gap is normal at 11.5 mmol/L. Furosemide was given 4 hours ago, so a high "
+        "urine chloride cannot be read as chloride resistance. "
+        "The likely cause is loop diuretic — furosemide 4 hours before the urine sample. "
         "Mineralocorticoid excess is also possible. "
         "Whether effective volume contraction maintains the alkalosis cannot be judged from these values."
     ) in text
@@ -182,12 +195,14 @@ def test_chronic_co2_retention_is_not_called_a_metabolic_alkalosis() -> None:
 
 def test_ketoacidosis_hides_an_alkalosis() -> None:
     # Delta ratio (28 - 12) / (24 - 22) = 8 (Rastegar, JASN 2007): above 2, a concurrent alkalosis.
-    assert draft_paragraph(sample("ketoacidosis_with_vomiting")) == (
+    # Winter's formula (Albert, Dell & Winters 1967): 1.5 x 22 + 8 = 41 +/- 2.
+    assert draft_paragraph(worked_up(sample("ketoacidosis_with_vomiting"))) == (
         "The arterial gas (pH 7.35, PaCO2 40 mmHg, HCO3 22 mmol/L) looks close to normal, but the "
         "albumin-corrected anion gap of 28 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
-        "acidosis. The delta ratio of 8.0 shows that the bicarbonate has fallen far less than the gap has "
-        "risen, which points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been "
-        "weighed in this draft."
+        "acidosis. The PaCO2 of 40 mmHg fits the 39–43 mmHg that Winter's formula predicts. "
+        "The delta ratio of 8.0 shows that the bicarbonate has fallen far less than the gap has risen, which "
+        "points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
+        "draft."
     )
 
 
@@ -296,14 +311,14 @@ def _causes(likely: int, possible: int, unlikely: int) -> tuple[CauseEntry, ...]
 @pytest.mark.parametrize(
     ("likely", "possible", "expected"),
     [
-        (1, 0, "Gastric acid loss (finding for gastric acid loss) is the likely cause."),
+        (1, 0, "The likely cause is gastric acid loss — finding for gastric acid loss."),
         (1, 1, "Diuretic use is also possible."),
         (1, 2, "Diuretic use and alkali load are also possible."),
-        (2, 0, "Two causes are likely and may be acting together:"),
-        (3, 0, "Three causes are likely and may be acting together:"),
-        (0, 1, "No cause is clearly supported; gastric acid loss (finding for gastric acid loss) remains possible."),
-        (0, 2, "and diuretic use (finding for diuretic use) remain possible."),
-        (0, 5, "alkali load (finding for alkali load) and 2 others remain possible."),
+        (2, 0, "Two causes are likely and may be acting together. Gastric acid loss — finding for gastric"),
+        (3, 0, "Three causes are likely and may be acting together."),
+        (0, 1, "No cause is clearly supported, though gastric acid loss remains possible — finding for gastric"),
+        (0, 2, "No cause is clearly supported; gastric acid loss and diuretic use remain possible."),
+        (0, 5, "gastric acid loss, diuretic use, alkali load and 2 others remain possible."),
         (0, 0, "The findings do not yet point to any of the usual causes."),
     ],
     ids=lambda value: str(value)[:20],
@@ -316,26 +331,26 @@ def test_cause_sentences_agree_with_their_count(likely: int, possible: int, expe
 
 def test_one_unlikely_cause_reads_singular() -> None:
     text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=_causes(1, 0, 1)))
-    assert "Diuretic use (finding for diuretic use) is unlikely." in text
+    assert "Diuretic use is unlikely — finding for diuretic use." in text
 
 
 def test_eponyms_keep_their_capital() -> None:
     entry = cause("salt_wasting_tubulopathy", "Gitelman or Bartter syndrome", "likely", (ev("Urine calcium low."),))
     text = draft_paragraph(worked_up(BASE, chloride_class="resistant", differential=(entry,)))
-    assert "Gitelman or Bartter syndrome (urine calcium low) is the likely cause." in text
+    assert "The likely cause is Gitelman or Bartter syndrome — urine calcium low." in text
 
 
 def test_text_from_the_case_is_kept_as_written() -> None:
     # Escaping for Markdown belongs to the template, so the JSON paragraph stays plain text.
     entry = cause("alkali_load", "alkali load", "likely", (ev("{{ 7*7 }} <b>antacid</b> taken daily."),))
     text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(entry,)))
-    assert "alkali load ({{ 7*7 }} <b>antacid</b> taken daily) is the likely cause." in text.lower()
+    assert "The likely cause is alkali load — {{ 7*7 }} <b>antacid</b> taken daily." in text
 
 
 # Grammar across combinations -------------------------------------------------------------------
 
 _SENTENCE_END = re.compile(r"(?<=[.!?]) (?=\S)")
-_BAD = ("  ", " .", " ,", "..", ",.", ";.", "( ", " )", "()", "(;", "None", "nan", "[]", "{}", "_", "-0 ", "-0.")
+_BAD = ("  ", " .", " ,", "..", ",.", ";.", "( ", " )", "()", "(;", "None", "nan", "[]", "{}", "_")
 
 
 def assert_well_formed(text: str) -> None:
@@ -346,6 +361,7 @@ def assert_well_formed(text: str) -> None:
     for sentence in _SENTENCE_END.split(text):
         assert sentence[0].isupper() or sentence[0].isdigit(), (sentence, text)
     assert not re.search(r"\d\.\d{4,}", text), text  # no 7.5000 or 45.753889
+    assert not re.search(r"-0(\.0+)?(?![.\d])", text), text  # no -0 or -0.0
 
 
 evidence_lists = st.lists(
