@@ -71,7 +71,7 @@ class FactorEntry(BaseModel):
     source: str
 
 
-class TestEntry(BaseModel):
+class SuggestedTest(BaseModel):
     model_config = _FROZEN
 
     test: str
@@ -106,7 +106,7 @@ class Assessment(BaseModel):
     generation: tuple[MechanismEntry, ...] = ()
     differential: tuple[CauseEntry, ...] = ()
     maintenance: tuple[FactorEntry, ...] = ()
-    next_tests: tuple[TestEntry, ...] = ()
+    next_tests: tuple[SuggestedTest, ...] = ()
     management: tuple[str, ...] = ()
     warnings: tuple[str, ...] = ()  # missing data and input notices, in words
     trace: tuple[TraceEntry, ...] = ()

@@ -19,7 +19,15 @@ from typing import Any, Literal
 from pydantic import BaseModel, ConfigDict
 
 from notegen.acidbase_model import AcidBaseReading
-from notegen.assessment import CauseEntry, ChlorideClass, Evidence, FactorEntry, MechanismEntry, TestEntry, TraceEntry
+from notegen.assessment import (
+    CauseEntry,
+    ChlorideClass,
+    Evidence,
+    FactorEntry,
+    MechanismEntry,
+    SuggestedTest,
+    TraceEntry,
+)
 from notegen.calculations import Calculation
 from notegen.case import Case
 from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
@@ -69,7 +77,7 @@ class RuleResult(BaseModel):
     generation: tuple[MechanismEntry, ...] = ()
     differential: tuple[CauseEntry, ...] = ()
     maintenance: tuple[FactorEntry, ...] = ()
-    next_tests: tuple[TestEntry, ...] = ()
+    next_tests: tuple[SuggestedTest, ...] = ()
     trace: tuple[TraceEntry, ...] = ()
     facts: dict[str, JsonValue] = {}
     pack: str = ""
@@ -146,7 +154,7 @@ def evaluate_alkalosis(
         )
         for c in result.causes
     )
-    tests = tuple(TestEntry(test=s.test, label=s.label, why=s.why) for s in result.suggestions)
+    tests = tuple(SuggestedTest(test=s.test, label=s.label, why=s.why) for s in result.suggestions)
     trace = tuple(TraceEntry(**step.as_dict()) for step in result.trace()) if explain else ()
     return RuleResult(
         applies=True,

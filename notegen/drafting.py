@@ -58,7 +58,7 @@ class Drafter:
         calculations = compute_calculations(case, self.settings)
         reading = read_acid_base(case, self.settings)
         rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
-        return Assessment(
+        assessment = Assessment(
             case=case,
             acid_base=reading,
             alerts=reading.alerts,
@@ -72,6 +72,9 @@ class Drafter:
             trace=rules.trace,
             warnings=_warnings(case, reading),
         )
+        from .note import complete_assessment
+
+        return complete_assessment(assessment, rules_dirs=self.rules_dirs)
 
     def draft(self, case: Case, options: DraftOptions | None = None) -> str:
         from .note import render_note

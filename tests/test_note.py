@@ -10,8 +10,7 @@ from typing import Any
 
 import pytest
 
-from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry, TraceEntry
-from notegen.assessment import TestEntry as SuggestedTest  # its own name would be collected by pytest
+from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest, TraceEntry
 from notegen.drafting import Drafter, DraftOptions
 from notegen.errors import TemplateError, UsageError
 from notegen.intake import read_case
@@ -62,6 +61,8 @@ def worked_up(assessment: Assessment) -> Assessment:
     )
     return assessment.model_copy(
         update={
+            "paragraph": "",  # drafted again from the hand-built work-up below
+            "management": (),
             "chloride_class": "responsive",
             "chloride_notes": (),
             "generation": (),

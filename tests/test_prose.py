@@ -15,8 +15,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
-from notegen.assessment import TestEntry as SuggestedTest  # its own name would be collected by pytest
+from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest
 from notegen.drafting import Drafter
 from notegen.intake import read_case
 from notegen.prose import draft_paragraph
