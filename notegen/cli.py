@@ -20,7 +20,7 @@ from .errors import NotegenError, UsageError
 app = typer.Typer(
     name="notegen",
     help="Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
-    "Example: notegen draft samples/thiazide_vomiting.yaml",
+    "Example: notegen draft samples/thiazide_and_vomiting.yaml",
     context_settings={"help_option_names": ["-h", "--help"]},
     add_completion=False,
     no_args_is_help=True,
@@ -107,7 +107,7 @@ def draft(
 ) -> None:
     """Draft the assessment section for a case and print it.
 
-    Example: notegen draft samples/thiazide_vomiting.yaml --format text
+    Example: notegen draft samples/thiazide_and_vomiting.yaml --format text
     """
     with _reported_errors():
         from .drafting import DraftOptions, Drafter
