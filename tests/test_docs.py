@@ -1,0 +1,44 @@
+"""Every command is documented in the README and helped with an example (as sqlite-utils checks its docs)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from notegen.cli import app
+
+README = Path(__file__).resolve().parent.parent / "README.md"
+COMMANDS = sorted(command.name or command.callback.__name__ for command in app.registered_commands if command.callback)
+
+
+def test_the_commands_are_the_ones_we_document() -> None:
+    assert COMMANDS == ["check-pack", "draft", "new-case", "schema"]
+
+
+@pytest.mark.parametrize("command", COMMANDS)
+def test_command_is_in_the_readme(command: str) -> None:
+    assert f"`notegen {command}`" in README.read_text(encoding="utf-8")
+
+
+@pytest.mark.parametrize("command", COMMANDS)
+def test_command_help_has_an_example(command: str) -> None:
+    result = CliRunner().invoke(app, [command, "--help"])
+    assert result.exit_code == 0, result.output
+    assert f"Example: notegen {command}" in result.stdout
+
+
+def test_readme_opens_with_the_job_and_two_commands() -> None:
+    text = README.read_text(encoding="utf-8")
+    commands = [line.strip() for line in text.split("## Ways in")[0].splitlines() if line.startswith("    ")]
+    assert len(commands) == 2
+    assert "notegen draft samples/" in commands[0]
+    assert "pytest" in commands[1]
+
+
+def test_every_sample_the_readme_names_exists() -> None:
+    root = README.parent
+    for word in README.read_text(encoding="utf-8").split():
+        if word.startswith("samples/") and not word.endswith("/"):
+            assert (root / word).exists(), word
