@@ -152,6 +152,17 @@ def metabolic_compensation(
         w.findings.append(f"{head}: compensation is appropriate.")
         return "appropriate", expected
     side = "above" if added == "respiratory_acidosis" else "below"
+    ceiling = s.alkalosis_pco2_ceiling.value
+    tolerance = s.alkalosis_pco2_tolerance.value
+    if primary == "metabolic_alkalosis" and added == "respiratory_alkalosis" and g.pco2 >= ceiling - tolerance:
+        # The 0.7 rule runs past what ventilation usually delivers (about 55 mmHg, Galla 2000): a PaCO2
+        # near that ceiling may be maximal compensation rather than an added respiratory alkalosis.
+        w.findings.append(
+            f"{head}, {side} the range, but near the usual ceiling of compensation (about {mm(ceiling)}, "
+            "Galla 2000); an added respiratory alkalosis is possible, not established."
+        )
+        w.add(added, f"{pco2_word} {mm(g.pco2)} is near the usual ceiling of compensation", "possible")
+        return "uncertain", expected
     if w.venous:
         w.findings.append(
             f"{head}, {side} the range; with a venous sample this only suggests an added {WORDS[added]}."

@@ -447,3 +447,16 @@ def test_reading_never_raises_and_is_deterministic(case: Case) -> None:
 def test_reading_survives_values_outside_validation(gas: Gas) -> None:
     # Zero, negative and huge values never reach the reading after validation; it still must not crash.
     read_acid_base(Case(gas=gas))
+
+
+def test_pco2_near_the_ceiling_of_compensation_is_not_called_an_added_respiratory_alkalosis() -> None:
+    # HCO3 52: the 0.7 rule (Berend 2014) predicts 59.6 +/- 2, beyond the usual ceiling of about 55 mmHg
+    # (Galla, JASN 2000); PaCO2 55 is read as possibly maximal compensation, not a second disorder.
+    reading = read_acid_base(Case(gas=Gas(sample="arterial", ph=7.61, pco2=55, hco3=52)))
+    assert reading.primary == "metabolic_alkalosis"
+    assert reading.compensation == "uncertain"
+    assert "respiratory_alkalosis" not in reading.disorders
+    assert "respiratory_alkalosis" in reading.possible_disorders
+    # Well below the ceiling it stays an added respiratory alkalosis.
+    low = read_acid_base(Case(gas=Gas(sample="arterial", ph=7.70, pco2=45, hco3=52)))
+    assert "respiratory_alkalosis" in low.disorders
