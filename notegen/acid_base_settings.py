@@ -129,17 +129,23 @@ _POSITIVE: tuple[str, ...] = (
 Problems = list[tuple[str, int | None, str]]
 
 
-def _key_lines(text: str) -> dict[str, int]:
-    """Line (1-based) of each top-level key, for error messages; composing builds no objects."""
+def _parse(text: str) -> tuple[Any, dict[str, int]]:
+    """The file's data and the line (1-based) of each top-level key, from one parse."""
+    from notegen.resources import safe_yaml_loader
+
+    loader = safe_yaml_loader()(text)
     try:
-        node = yaml.compose(text, Loader=yaml.SafeLoader)
-    except yaml.YAMLError:
-        return {}
-    if not isinstance(node, yaml.MappingNode):
-        return {}
-    return {
-        str(key.value): key.start_mark.line + 1 for key, _ in node.value if isinstance(key, yaml.ScalarNode)
-    }
+        node = loader.get_single_node()
+        if node is None:
+            return None, {}
+        lines: dict[str, int] = {}
+        if isinstance(node, yaml.MappingNode):
+            lines = {
+                str(key.value): key.start_mark.line + 1 for key, _ in node.value if isinstance(key, yaml.ScalarNode)
+            }
+        return loader.construct_document(node), lines
+    finally:
+        loader.dispose()
 
 
 def _read(path: Path, problems: Problems) -> tuple[dict[str, Any], dict[str, int]]:
@@ -150,7 +156,7 @@ def _read(path: Path, problems: Problems) -> tuple[dict[str, Any], dict[str, int
         problems.append((name, None, f"cannot be read ({exc.strerror or exc})"))
         return {}, {}
     try:
-        data = yaml.safe_load(text)
+        data, lines = _parse(text)
     except yaml.YAMLError as exc:
         mark = getattr(exc, "problem_mark", None)
         line = mark.line + 1 if mark is not None else None
@@ -161,7 +167,7 @@ def _read(path: Path, problems: Problems) -> tuple[dict[str, Any], dict[str, int
     if not isinstance(data, dict):
         problems.append((name, 1, "must be a mapping of setting names to entries"))
         return {}, {}
-    return data, _key_lines(text)
+    return data, lines
 
 
 def _is_number(value: object) -> bool:

@@ -13,7 +13,7 @@ from typing import Any
 
 import yaml
 
-from .resources import rules_dir
+from .resources import rules_dir, safe_yaml_loader
 
 
 @dataclass(frozen=True)
@@ -42,7 +42,7 @@ def fold(text: str) -> str:
 
 def _load(path: Path) -> dict[str, Any]:
     with path.open(encoding="utf-8") as handle:
-        data = yaml.safe_load(handle)
+        data = yaml.load(handle, Loader=safe_yaml_loader())  # a safe loader: plain YAML types only
     if not isinstance(data, dict):
         raise ValueError(f"{path}: expected a mapping at the top")
     return data
@@ -78,8 +78,12 @@ def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     return table
 
 
+@lru_cache(maxsize=8)
+def _finding_labels(folder: Path | None = None) -> dict[str, str]:
+    return {info.id: info.label for info in findings(folder).values()}
+
+
 def finding_label(finding_id: str) -> str:
-    for info in findings().values():
-        if info.id == finding_id:
-            return info.label
-    return finding_id.replace("_", " ")
+    """The words for a finding id; a look-up, not a scan, since a case may list many findings."""
+    label = _finding_labels().get(finding_id)
+    return label if label is not None else finding_id.replace("_", " ")
