@@ -33,6 +33,12 @@ _PLAIN_FLOAT = re.compile(
 _DATA_ONLY_TAGS = ("binary", "set", "omap", "pairs")
 
 
+def _printable(key: object) -> str:
+    """A key for a message: control characters escaped (a terminal would run them), cut at 60."""
+    text = "".join(char if char.isprintable() else f"\\u{ord(char):04x}" for char in str(key))
+    return text if len(text) <= 60 else f"{text[:57]}..."
+
+
 class _CaseLoader(yaml.SafeLoader):
     """SafeLoader without aliases or duplicate keys, with a depth limit."""
 
@@ -141,7 +147,7 @@ class _CaseLoader(yaml.SafeLoader):
             if key in seen:
                 first = seen[key].start_mark.line + 1
                 raise CaseFileError(
-                    f"`{key}` is given twice (first on line {first}); keep one value",
+                    f"`{_printable(key)}` is given twice (first on line {first}); keep one value",
                     filename=self._filename,
                     line=key_node.start_mark.line + 1,
                     column=key_node.start_mark.column + 1,
@@ -216,7 +222,7 @@ def _refuse_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
     result: dict[str, Any] = {}
     for key, value in pairs:
         if key in result:
-            raise ValueError(f"`{key}` is given twice; keep one value")
+            raise ValueError(f"`{_printable(key)}` is given twice; keep one value")
         result[key] = value
     return result
 

@@ -72,6 +72,9 @@ _VOLUME = {
     "overloaded": "high",
     "unknown": "unknown",
 }
+# Control characters (a terminal runs ESC sequences printed with the note) and the bidirectional
+# overrides that make text display in another order than it reads; tab and newlines are harmless.
+_UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
 _VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
 
 
@@ -92,9 +95,15 @@ def _shown(value: Any) -> str:
 
 
 def _key(key: Any) -> str:
-    """A key as it appears in a field path, cut short like `_shown`."""
-    text = str(key)
+    """A key as it appears in a field path, cut short like `_shown`, its control characters escaped."""
+    text = _UNSAFE_CHARACTER.sub(lambda m: f"\\u{ord(m.group()):04x}", str(key))
     return text if len(text) <= 60 else f"{text[:57]}..."
+
+
+def _unsafe_character(text: str) -> str | None:
+    """What is wrong with `text` if it holds a character that must not reach a note, else None."""
+    found = _UNSAFE_CHARACTER.search(text)
+    return None if found is None else f"contains the control character U+{ord(found.group()):04X}; remove it"
 
 
 def _finite(value: int | float) -> float | None:
@@ -471,6 +480,9 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
     if not name or len(name) > MAX_TEXT:
         col.problem(path, "a medication name must be 1 to 500 characters")
         return None
+    if (unsafe := _unsafe_character(name)) is not None:
+        col.problem(path, unsafe)
+        return None
     info = _lookup_drug(name)
     if info is None:
         col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
@@ -531,6 +543,9 @@ def _context(raw: Any, col: _Collector) -> Context:
                 if not isinstance(text, str) or not text.strip() or len(text) > MAX_TEXT:
                     col.problem(f"{path}[{i}]", "a finding must be a short text such as vomiting")
                     continue
+                if (unsafe := _unsafe_character(text)) is not None:
+                    col.problem(f"{path}[{i}]", unsafe)
+                    continue
                 info = table.get(vocab.fold(text))
                 if info is None:
                     col.notices.append(
@@ -575,6 +590,9 @@ def validate_case(
     if label is not None:
         if not isinstance(label, str | int | float) or isinstance(label, bool) or len(str(label)) > MAX_TEXT:
             col.problem("case", "the case label must be a short text (at most 500 characters)")
+            label = None
+        elif (unsafe := _unsafe_character(str(label))) is not None:
+            col.problem("case", unsafe)
             label = None
         else:
             label = str(label)

@@ -138,9 +138,14 @@ def medication(draw: st.DrawFn, allow_diuretics: bool = True) -> Any:
     return name
 
 
+# Any text a case file may hold, template syntax and markup included; not control characters or
+# bidirectional overrides, which validation refuses (tests/bad_inputs covers those).
 label_text = st.text(
-    alphabet=st.characters(exclude_categories=("Cs", "Cc")), min_size=1, max_size=60
-)  # any printable text, template syntax and markup included
+    alphabet=st.characters(exclude_categories=("Cs", "Cc"), exclude_characters="\u202a\u202b\u202c\u202d\u202e"
+                           "\u2066\u2067\u2068\u2069"),
+    min_size=1,
+    max_size=60,
+)
 
 
 @st.composite
