@@ -41,7 +41,8 @@ SECTIONS = ("pack", "facts", "settings", "scoring", "factor_groups", "trees", "c
 class PackModel(BaseModel):
     """Strict, frozen, and remembering the file and line it was read from."""
 
-    model_config = ConfigDict(frozen=True, extra="forbid", arbitrary_types_allowed=True)
+    # Validators are built on the first load, as one schema for the whole pack, not at import.
+    model_config = ConfigDict(frozen=True, extra="forbid", arbitrary_types_allowed=True, defer_build=True)
 
     _where: Where = PrivateAttr(default=("<pack>", None))
     _key_where: dict[str, Where] = PrivateAttr(default_factory=dict)
@@ -106,7 +107,7 @@ class Weights(PackModel):
 class Scoring(PackModel):
     """Points of evidence and the cut-offs of the tiers (see `notegen.engine.walk`)."""
 
-    weights: Weights = Weights()
+    weights: Weights = Field(default_factory=Weights)
     likely_from: int = Field(default=3, ge=1)
     possible_from: int = Field(default=1, ge=1)
     keep_in_view_from: int = Field(default=3, ge=1)
@@ -169,7 +170,7 @@ class EvidenceLists(PackModel):
 class Cause(PackModel):
     id: Id
     label: Text
-    evidence: EvidenceLists = EvidenceLists()
+    evidence: EvidenceLists = Field(default_factory=EvidenceLists)
     description: str = ""
 
 
@@ -201,7 +202,7 @@ class PackSpec(PackModel):
     pack: PackInfo
     facts: tuple[FactSpec, ...] = ()
     settings: tuple[SettingSpec, ...] = ()
-    scoring: Scoring = Scoring()
+    scoring: Scoring = Field(default_factory=Scoring)
     factor_groups: tuple[FactorGroup, ...] = ()
     trees: tuple[Tree, ...] = ()
     causes: tuple[Cause, ...] = ()
