@@ -45,6 +45,7 @@ from notegen.calculations import (
     format_value,
     henderson_hasselbalch_hco3,
     henderson_hasselbalch_ph,
+    round_half_up,
     usable,
     usable_ph,
 )
@@ -98,19 +99,19 @@ def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency
                 level="warning",
                 message=(
                     f"The gas values do not agree: PaCO2 {mm(gas.pco2)} and bicarbonate "
-                    f"{mmol(gas.hco3)} give a pH of {calc:.2f} by Henderson-Hasselbalch, against "
+                    f"{mmol(gas.hco3)} give a pH of {ph_text(calc)} by Henderson-Hasselbalch, against "
                     f"{ph_text(gas.ph)} reported (tolerance {format_value(tol)}). Recheck the values, "
                     "or repeat the gas, before trusting this reading."
                 ),
             )
         )
         w.findings.append(
-            f"The reported pH {ph_text(gas.ph)} does not match the {calc:.2f} that PaCO2 and "
+            f"The reported pH {ph_text(gas.ph)} does not match the {ph_text(calc)} that PaCO2 and "
             "bicarbonate give; the reading below goes on but rests on values that need checking."
         )
     else:
         w.findings.append(
-            f"The gas is internally consistent: PaCO2 and bicarbonate give pH {calc:.2f} "
+            f"The gas is internally consistent: PaCO2 and bicarbonate give pH {ph_text(calc)} "
             f"(reported {ph_text(gas.ph)}, tolerance {format_value(tol)})."
         )
     if usable(case.chem.tco2):
@@ -359,4 +360,4 @@ def _gap_label(label: str | None) -> GapBicarbonate | None:
 
 
 def _r(value: float | None, digits: int) -> float | None:
-    return None if value is None else round(value, digits)
+    return None if value is None else round_half_up(value, digits)

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from notegen.acid_base_settings import AcidBaseSettings
 from notegen.alerts import Alert, AlertLevel
-from notegen.calculations import format_value, usable
+from notegen.calculations import format_value, round_half_up, usable
 from notegen.case import Case
 
 
@@ -19,7 +19,7 @@ def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
 def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
     if ph is None:
         return []
-    shown = f"{ph:.2f}" + (" (calculated)" if calculated else "")
+    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "")
     if ph >= s.alkalemia_critical.value:
         return _alert(
             "severe_alkalemia", "critical",

@@ -35,6 +35,7 @@ from notegen.calculations import (
     expected_pco2_metabolic_alkalosis,
     format_value,
     gap_bicarbonate,
+    round_half_up,
     usable,
 )
 from notegen.case import Case
@@ -50,20 +51,21 @@ WORDS: dict[str, str] = {
 VENOUS_PH_OFFSET = 0.033
 
 
+# Figures in sentences round half away from zero, as the note's tables do (`round_half_up`).
 def mm(value: float) -> str:
-    return format_value(round(value, 1), "mmHg")
+    return format_value(round_half_up(value, 1), "mmHg")
 
 
 def mmol(value: float) -> str:
-    return format_value(round(value, 1), "mmol/L")
+    return format_value(round_half_up(value, 1), "mmol/L")
 
 
 def span(low: float, high: float, unit: str) -> str:
-    return f"{format_value(round(low, 1))}-{format_value(round(high, 1), unit)}"
+    return f"{format_value(round_half_up(low, 1))}-{format_value(round_half_up(high, 1), unit)}"
 
 
 def ph_text(value: float) -> str:
-    return f"{value:.2f}"
+    return f"{round_half_up(value, 2):.2f}"
 
 
 @dataclass
@@ -340,7 +342,7 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
         out.interpretation = "a concurrent metabolic alkalosis" + (
             " or the compensation of a respiratory acidosis" if resp_acidosis else ""
         )
-        _add_gap_alkalosis(w, f"delta ratio {r:.1f}, above {format_value(hi)}")
+        _add_gap_alkalosis(w, f"delta ratio {round_half_up(r, 1):.1f}, above {format_value(hi)}")
     w.findings.append(
         f"Delta ratio {r:.1f} ((gap - {format_value(n_gap)}) / ({format_value(n_hco3)} - "
         f"bicarbonate)): {out.interpretation} (Rastegar 2007)."

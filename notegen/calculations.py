@@ -9,6 +9,7 @@ and source, so a note can show its working.
 from __future__ import annotations
 
 import math
+from decimal import ROUND_HALF_UP, Decimal
 from typing import NamedTuple
 
 from pydantic import BaseModel, ConfigDict
@@ -233,9 +234,19 @@ class Calculation(BaseModel):
     high: float | None = None
 
 
+def round_half_up(value: float, digits: int) -> float:
+    """`value` rounded half away from zero on its shortest decimal form: 8.25 -> 8.3, as the note prints it.
+
+    Python's `round` works on the binary value (8.25 -> 8.2, 7.485 -> 7.48), so a figure rounded
+    with it could read differently in the reading's sentences than in the note's tables.
+    """
+    exact = Decimal(repr(value)).quantize(Decimal(1).scaleb(-digits), rounding=ROUND_HALF_UP)
+    return float(exact)
+
+
 def format_value(value: float, unit: str = "") -> str:
-    """A number as a clinician reads it: at most 3 decimals, no trailing zeros, then the unit."""
-    text = f"{value:.3f}".rstrip("0").rstrip(".")
+    """A number as a clinician reads it: at most 3 decimals (half away from zero), no trailing zeros, then the unit."""
+    text = f"{round_half_up(value, 3):.3f}".rstrip("0").rstrip(".")
     if text == "-0":
         text = "0"
     return f"{text} {unit}".strip()
