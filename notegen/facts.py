@@ -168,8 +168,10 @@ def derive_facts(
     if context.bp is not None:
         facts["systolic_bp"] = NumberFact(float(context.bp.systolic), "mmHg")
         facts["diastolic_bp"] = NumberFact(float(context.bp.diastolic), "mmHg")
+        # The pair as a clinician writes it ("118/70 mmHg"), for the pack's sentences.
+        facts["bp_reading"] = TextFact(f"{context.bp.systolic}/{context.bp.diastolic} mmHg")
     else:
-        facts["systolic_bp"] = facts["diastolic_bp"] = MissingFact()
+        facts["systolic_bp"] = facts["diastolic_bp"] = facts["bp_reading"] = MissingFact()
     facts["volume"] = TextFact(context.volume) if context.volume != "unknown" else MissingFact()
     for finding in FINDINGS:
         facts[finding] = BooleanFact(finding in context.findings)
