@@ -4,18 +4,20 @@ Rules, vocabularies and templates are loaded once by the `Drafter`. A bad case i
 reported on stderr with its message and the others are still drafted; the exit status
 is non-zero at the end when any case was rejected. Notes are written to a temporary
 file and renamed, so a partial note is never left behind, and two cases never write
-to the same note file in one run.
+to the same note file in one run. Cases are read, drafted and written one at a time, so
+memory does not grow with the number of cases; on a terminal, a progress line is kept
+on standard error.
 """
 
 from __future__ import annotations
 
-import json
 import os
 import sys
 import tempfile
+import time
 from collections.abc import Iterable, Iterator
 from pathlib import Path
-from typing import BinaryIO
+from typing import BinaryIO, TextIO
 
 from .drafting import Drafter, DraftOptions
 from .errors import CaseFileError, InputError, NotegenError, UsageError
@@ -105,6 +107,55 @@ def _jsonl_cases(sources: list[str], stdin: BinaryIO) -> Iterator[tuple[str, obj
                 stream.close()
 
 
+class _Progress:
+    """A one-line count on standard error, drawn only when it is a terminal, at most ten times a second."""
+
+    WIDTH = 30
+
+    def __init__(self, stream: TextIO, total: int | None) -> None:
+        self.stream = stream
+        self.total = total
+        self.enabled = _is_terminal(stream)
+        self.drawn = 0  # length of the line on screen, 0 when none
+        self.last = 0.0
+
+    def update(self, done: int) -> None:
+        if not self.enabled:
+            return
+        now = time.monotonic()
+        if now - self.last < 0.1 and done != self.total:
+            return
+        self.last = now
+        if self.total:
+            filled = self.WIDTH * done // self.total
+            text = f"notegen: drafting [{'#' * filled}{'.' * (self.WIDTH - filled)}] {done}/{self.total}"
+        else:
+            text = f"notegen: drafting, {done} cases so far"
+        self.stream.write("\r" + text.ljust(self.drawn))
+        self.stream.flush()
+        self.drawn = len(text)
+
+    def clear(self) -> None:
+        """Wipe the line, so a message or the summary starts at the left margin."""
+        if self.drawn:
+            self.stream.write("\r" + " " * self.drawn + "\r")
+            self.drawn = 0
+
+
+def _is_terminal(stream: TextIO) -> bool:
+    try:
+        return stream.isatty()
+    except (AttributeError, ValueError):  # no isatty, or a closed stream
+        return False
+
+
+def _note_stem(label: str, jsonl: bool) -> str:
+    """The note's file name without extension: the case file's, and the line number for JSON Lines."""
+    name = label.rsplit(":", 1)[0] if jsonl else label
+    stem = "stdin" if name in ("-", "<stdin>") else Path(name).stem
+    return f"{stem}-{label.rsplit(':', 1)[-1]}" if jsonl else stem  # the line number: stable across runs
+
+
 def run_batch(
     sources: list[str],
     drafter: Drafter,
@@ -113,9 +164,16 @@ def run_batch(
     out_dir: Path | None,
     jsonl: bool,
     window_hours: float,
+    stderr: TextIO | None = None,
 ) -> int:
-    """Draft every case; return the exit status (0 all drafted, 2 some rejected, 1 some failed unexpectedly)."""
+    """Draft every case; return the exit status (0 all drafted, 2 some rejected, 1 some failed unexpectedly).
+
+    Messages, the progress line (when `stderr` is a terminal) and the summary go to `stderr`,
+    standard error by default.
+    """
     from .intake import read_case
+
+    errors = stderr if stderr is not None else sys.stderr
 
     if out_dir is not None:
         try:
@@ -129,10 +187,14 @@ def run_batch(
     items: Iterator[tuple[str, object]]
     if jsonl:
         items = _jsonl_cases(sources, sys.stdin.buffer)
+        progress = _Progress(errors, None)
     else:
-        items = ((str(s), s) if isinstance(s, InputError) else (s, None) for s in expand_sources(sources))
-    single_line = options.output_format == "json" and (jsonl or out_dir is None)
+        files = list(expand_sources(sources))  # paths only, to know the total
+        items = ((str(s), s) if isinstance(s, InputError) else (s, None) for s in files)
+        progress = _Progress(errors, len(files))
+    single_line = options.output_format == "json" and out_dir is None  # JSON Lines on standard output
     for label, payload in items:
+        progress.update(drafted + rejected + failed)
         try:
             if isinstance(payload, NotegenError):
                 raise payload
@@ -142,13 +204,13 @@ def run_batch(
                 if label == "-" and stdin_bytes is None:
                     stdin_bytes = sys.stdin.buffer.read()
                 case = read_case(label, window_hours=window_hours, stdin=stdin_bytes)
-            note = drafter.draft(case, options)
+            if single_line:
+                note = drafter.draft_json_line(case, explain=options.explain)
+            else:
+                note = drafter.draft(case, options)
             target = None
             if out_dir is not None:
-                stem = Path(label.split(":")[0]).stem
-                if jsonl:
-                    stem = f"{stem}-{label.rsplit(':', 1)[-1]}"  # the line number: stable across runs
-                target = out_dir / f"{stem}{extension}"
+                target = out_dir / f"{_note_stem(label, jsonl)}{extension}"
                 if target in written:
                     raise InputError(
                         f"{label}: its note would overwrite the note of {written[target]} ({target.name}); "
@@ -156,26 +218,27 @@ def run_batch(
                     )
         except NotegenError as error:
             rejected += 1
-            print(f"notegen: {error}", file=sys.stderr)
+            progress.clear()
+            print(f"notegen: {error}", file=errors)
             continue
         except Exception as error:  # noqa: BLE001 - one case's bug must not lose the other cases
             failed += 1
+            progress.clear()
             print(
                 f"notegen: {label}: unexpected error ({type(error).__name__}): {error}. "
                 "Please report this with the input that caused it.",
-                file=sys.stderr,
+                file=errors,
             )
             continue
         drafted += 1
         if target is not None:
             written[target] = label
             write_atomically(target, note)
-        elif single_line:
-            sys.stdout.write(json.dumps(json.loads(note), ensure_ascii=False, separators=(",", ":")) + "\n")
         else:
             sys.stdout.write(note if note.endswith("\n") else note + "\n")
+    progress.clear()
     summary = f"{drafted} drafted, {rejected} rejected"
-    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=sys.stderr)
+    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=errors)
     if failed:
         return 1
     return 0 if rejected == 0 else 2

@@ -82,6 +82,14 @@ class Drafter:
         options = options or DraftOptions()
         return render_note(self.assess(case, explain=options.explain), options, template=self.template)
 
+    def draft_json_line(self, case: Case, *, explain: bool = False) -> str:
+        """The JSON output on one line, for JSON Lines: the content of `draft` in JSON, without indentation.
+
+        Written straight from the assessment; parsing the indented JSON again to compact it would
+        cost more than drafting the note.
+        """
+        return self.assess(case, explain=explain).model_dump_json(by_alias=True) + "\n"
+
 
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
