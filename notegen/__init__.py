@@ -40,7 +40,32 @@ _EXPORTS: dict[str, str] = {
     "validate_case": "notegen.validation",
 }
 
-__all__ = sorted(_EXPORTS)
+__all__ = [
+    "AcidBaseReading",
+    "AcidBaseSettings",
+    "Alert",
+    "Assessment",
+    "Calculation",
+    "Case",
+    "CaseFileError",
+    "CaseValueError",
+    "DraftOptions",
+    "Drafter",
+    "InputError",
+    "NotegenError",
+    "PasteError",
+    "RulePackError",
+    "TemplateError",
+    "UsageError",
+    "check_rule_folders",
+    "compute_calculations",
+    "evaluate_alkalosis",
+    "load_acid_base_settings",
+    "read_acid_base",
+    "read_case",
+    "render_note",
+    "validate_case",
+]
 
 if TYPE_CHECKING:
     from notegen.acid_base_settings import AcidBaseSettings, load_acid_base_settings
@@ -51,7 +76,7 @@ if TYPE_CHECKING:
     from notegen.calculations import Calculation, compute_calculations
     from notegen.case import Case
     from notegen.differential import evaluate_alkalosis
-    from notegen.drafting import DraftOptions, Drafter, check_rule_folders
+    from notegen.drafting import Drafter, DraftOptions, check_rule_folders
     from notegen.errors import (
         CaseFileError,
         CaseValueError,

@@ -10,6 +10,7 @@ import notegen
 
 def test_all_is_sorted_and_every_name_resolves() -> None:
     assert notegen.__all__ == sorted(notegen.__all__)
+    assert set(notegen.__all__) == set(notegen._EXPORTS)
     for name in notegen.__all__:
         assert getattr(notegen, name) is not None, name
 
