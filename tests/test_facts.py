@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import pytest
+from alkalosis_cases import alkalosis_case, med
 
 from notegen.acidbase import read_acid_base
 from notegen.calculations import compute_calculations
@@ -10,7 +11,6 @@ from notegen.case import Case
 from notegen.differential import default_alkalosis_pack
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
 from notegen.facts import derive_facts, urine_calcium_creatinine_ratio
-from alkalosis_cases import alkalosis_case, med
 
 PACK = default_alkalosis_pack()
 
