@@ -1,4 +1,7 @@
-"""No number in a drafted note is invented (checked mechanically on the Markdown).
+"""No number in a drafted note is invented, and no value given is lost (checked on the Markdown).
+
+Nothing lost: every value of the case, as reported, appears in the note (the values table), to
+the decimals reported (three at most: the note prints no more).
 
 Every number in the note must be one of these, at the precision the note shows it (a figure
 shown with d decimals matches a value within half a unit of its last decimal):
@@ -39,6 +42,7 @@ from hypothesis import given
 from test_properties import _profile, case_file
 
 from notegen.assessment import Assessment
+from notegen.case import Case
 from notegen.drafting import Drafter, DraftOptions
 from notegen.intake import read_case
 from notegen.validation import validate_case
@@ -125,21 +129,39 @@ def invented_numbers(note: str, allowed: set[float]) -> list[str]:
     return found
 
 
-def _check(assessment_source: Any, options: DraftOptions) -> list[str]:
-    case = assessment_source
+def _decimals(value: float) -> int:
+    text = repr(value)
+    return 0 if text.endswith(".0") or "." not in text else len(text.split(".")[1])
+
+
+def lost_values(note: str, case: Case) -> list[str]:
+    """The case's values, as reported, that the note does not show to the decimals reported (three at most:
+    the note prints no more)."""
+    shown = {float(token) for token in _NUMBER.findall(note)}
+    return [
+        f"{m.field} {m.reported_value:g} {m.reported_unit}".strip()
+        for m in case.measurements
+        if not any(
+            abs(value - m.reported_value) <= 0.5 * 10 ** -min(_decimals(m.reported_value), 3) + 1e-9 for value in shown
+        )
+    ]
+
+
+def _check(case: Case, options: DraftOptions) -> list[str]:
     note = DRAFTER.draft(case, options)
-    return invented_numbers(note, allowed_numbers(DRAFTER.assess(case, explain=options.explain)))
+    invented = invented_numbers(note, allowed_numbers(DRAFTER.assess(case, explain=options.explain)))
+    return invented + [f"lost: {value}" for value in lost_values(note, case)]
 
 
 @pytest.mark.parametrize("explain", [False, True], ids=["note", "explain"])
 @pytest.mark.parametrize("sample", [*SAMPLES, ROOT / "tests/fixtures/inputs/bundle_full.json"], ids=lambda p: p.stem)
-def test_sample_notes_hold_no_invented_number(sample: Path, explain: bool) -> None:
+def test_sample_notes_hold_no_invented_number_and_lose_no_value(sample: Path, explain: bool) -> None:
     assert _check(read_case(str(sample)), DraftOptions(explain=explain)) == []
 
 
 @_profile(150)
 @given(data=case_file())
-def test_generated_notes_hold_no_invented_number(data: dict[str, Any]) -> None:
+def test_generated_notes_hold_no_invented_number_and_lose_no_value(data: dict[str, Any]) -> None:
     case = validate_case(data, filename="generated.yaml")
     assert _check(case, DraftOptions(explain=True)) == []
 
@@ -153,6 +175,9 @@ def test_the_check_finds_a_number_that_was_not_given_or_computed() -> None:
     assert [found.split(" in ")[0] for found in invented_numbers(forged, allowed)] == ["'97.3'"]
     # a value shown one decimal off is caught too: the potassium 3.2 as 3.4
     assert invented_numbers(note.replace("3.2 mmol/L", "3.4 mmol/L"), allowed) != []
+    # and a value dropped from the note is caught as lost
+    assert lost_values(note, case) == []
+    assert lost_values(note.replace("3.2", "three point two"), case) == ["chem.k 3.2 mmol/L"]
 
 
 def test_a_value_is_rounded_the_same_way_in_the_reading_and_in_the_tables() -> None:
