@@ -2,64 +2,70 @@
 
 Exit status: 0 drafted; 2 bad input, rule pack, template or usage; 1 anything else.
 Only the note goes to standard output; every diagnostic goes to standard error.
+
+The commands are typer commands (`app`). A plain `draft` call, the common one in a dictation pipe,
+is parsed here with the standard library instead, and runs the same function, so a single note does
+not pay for importing and setting up the CLI framework (about 25 ms). Anything else it does not
+recognise outright (help, a bad or repeated value, an unknown option, another command) goes to typer,
+which parses and reports as before.
 """
 
 from __future__ import annotations
 
+import functools
+import re
 import sys
-from collections.abc import Iterator
-from contextlib import contextmanager
-from enum import Enum
+from collections.abc import Callable, Sequence
+from enum import StrEnum
 from pathlib import Path
-from typing import Annotated
-
-import typer
+from typing import TYPE_CHECKING, Annotated, Any
 
 from .errors import NotegenError, UsageError
 
-app = typer.Typer(
-    name="notegen",
-    help="Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
-    "Example: notegen draft samples/thiazide_and_vomiting.yaml",
-    context_settings={"help_option_names": ["-h", "--help"]},
-    add_completion=False,
-    no_args_is_help=True,
-    pretty_exceptions_enable=False,
-    rich_markup_mode=None,
+if TYPE_CHECKING:
+    import typer
+
+APP_HELP = (
+    "Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
+    "Example: notegen draft samples/thiazide_and_vomiting.yaml"
 )
 
 
-class OutputFormat(str, Enum):
+class OutputFormat(StrEnum):
     markdown = "markdown"
     text = "text"
     html = "html"
     json = "json"
 
 
-class SchemaKind(str, Enum):
+class SchemaKind(StrEnum):
     case = "case"
     output = "output"
 
 
 def _say(message: str) -> None:
+    import typer  # only when there is something to say; echo strips terminal codes off a pipe
+
     typer.echo(f"notegen: {message}", err=True)
 
 
-@contextmanager
-def _reported_errors() -> Iterator[None]:
-    """Turn library errors into a message on stderr and the error's exit status, never a traceback."""
+def _reported(action: Callable[[], int]) -> int:
+    """Run a command's body; a library error becomes a message on stderr and its exit status, never a traceback."""
     try:
-        yield
+        return action()
     except NotegenError as error:
         _say(str(error))
-        raise typer.Exit(error.exit_code) from None
-    except typer.Exit:
-        raise
+        return error.exit_code
     except KeyboardInterrupt:
-        raise typer.Exit(130) from None
+        return 130
     except Exception as error:  # noqa: BLE001 - the last line of defence: one line, exit 1
         _say(f"unexpected error ({type(error).__name__}): {error}. Please report this with the input that caused it.")
-        raise typer.Exit(1) from None
+        return 1
+
+
+def _exit_on_failure(code: int) -> None:
+    if code:
+        raise typer.Exit(code)
 
 
 def _write_output(text: str, output: Path | None) -> None:
@@ -72,7 +78,55 @@ def _write_output(text: str, output: Path | None) -> None:
     write_atomically(output, text)
 
 
-@app.command()
+def _draft(
+    cases: Sequence[str],
+    *,
+    paste: str | None = None,
+    assignments: Sequence[str] = (),
+    output_format: str = "markdown",
+    output: Path | None = None,
+    out_dir: Path | None = None,
+    jsonl: bool = False,
+    rules: Sequence[Path] = (),
+    template: Path | None = None,
+    explain: bool = False,
+    brief: bool = False,
+    width: int = 80,
+    ascii_only: bool = False,
+    window_hours: float = 24.0,
+) -> int:
+    """The body of `notegen draft`, whichever parser read the arguments; returns the exit status."""
+    from .drafting import Drafter, DraftOptions
+
+    options = DraftOptions(
+        output_format=output_format,
+        explain=explain,
+        brief=brief,
+        width=width,
+        ascii_only=ascii_only,
+    )
+    drafter = Drafter(rules_dirs=tuple(rules), template=template)
+    sources = list(cases)
+    if jsonl or out_dir is not None or len(sources) > 1 or any(Path(s).is_dir() for s in sources if s != "-"):
+        from .batch import run_batch
+
+        if paste is not None or assignments:
+            raise UsageError("--paste and --set apply to a single case, not to a batch")
+        return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
+    from .intake import read_case
+
+    needs_stdin = "-" in sources or paste == "-"
+    case = read_case(
+        sources[0] if sources else None,
+        paste=paste,
+        overrides=tuple(assignments),
+        stdin=sys.stdin.buffer.read() if needs_stdin else None,
+        window_hours=window_hours,
+    )
+    _write_output(drafter.draft(case, options), output)
+    return 0
+
+
 def draft(
     cases: Annotated[
         list[str] | None,
@@ -85,7 +139,9 @@ def draft(
         list[str] | None,
         typer.Option("--set", help="Set a case value by its dotted name, e.g. --set chem.k=2.9 (repeatable)."),
     ] = None,
-    output_format: Annotated[OutputFormat, typer.Option("--format", "-f", help="Output format.")] = OutputFormat.markdown,
+    output_format: Annotated[
+        OutputFormat, typer.Option("--format", "-f", help="Output format.")
+    ] = OutputFormat.markdown,
     output: Annotated[Path | None, typer.Option("--output", "-o", help="Write the note to this file.")] = None,
     out_dir: Annotated[
         Path | None, typer.Option("--out", help="Batch: write one note per case into this folder.")
@@ -102,46 +158,35 @@ def draft(
     width: Annotated[int, typer.Option("--width", min=30, max=400, help="Line width of plain text.")] = 80,
     ascii_only: Annotated[bool, typer.Option("--ascii", help="Plain text in ASCII only.")] = False,
     window_hours: Annotated[
-        float, typer.Option("--window-hours", min=0.5, help="Results older than this are not mixed into the latest set.")
+        float,
+        typer.Option("--window-hours", min=0.5, help="Results older than this are not mixed into the latest set."),
     ] = 24.0,
 ) -> None:
     """Draft the assessment section for a case and print it.
 
     Example: notegen draft samples/thiazide_and_vomiting.yaml --format text
     """
-    with _reported_errors():
-        from .drafting import DraftOptions, Drafter
-
-        options = DraftOptions(
+    code = _reported(
+        lambda: _draft(
+            cases or (),
+            paste=paste,
+            assignments=assignments or (),
             output_format=output_format.value,
+            output=output,
+            out_dir=out_dir,
+            jsonl=jsonl,
+            rules=rules or (),
+            template=template,
             explain=explain,
             brief=brief,
             width=width,
             ascii_only=ascii_only,
-        )
-        drafter = Drafter(rules_dirs=tuple(rules or ()), template=template)
-        sources = list(cases or [])
-        if jsonl or out_dir is not None or len(sources) > 1 or any(Path(s).is_dir() for s in sources if s != "-"):
-            from .batch import run_batch
-
-            if paste is not None or assignments:
-                raise UsageError("--paste and --set apply to a single case, not to a batch")
-            code = run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
-            raise typer.Exit(code)
-        from .intake import read_case
-
-        needs_stdin = "-" in sources or paste == "-"
-        case = read_case(
-            sources[0] if sources else None,
-            paste=paste,
-            overrides=tuple(assignments or ()),
-            stdin=sys.stdin.buffer.read() if needs_stdin else None,
             window_hours=window_hours,
         )
-        _write_output(drafter.draft(case, options), output)
+    )
+    _exit_on_failure(code)
 
 
-@app.command()
 def schema(
     kind: Annotated[SchemaKind, typer.Argument(help="case: the case file; output: the JSON output.")] = SchemaKind.case,
 ) -> None:
@@ -149,13 +194,16 @@ def schema(
 
     Example: notegen schema output > note.schema.json
     """
-    with _reported_errors():
+
+    def body() -> int:
         from .schemas import schema_text
 
         typer.echo(schema_text(kind.value), nl=False)
+        return 0
+
+    _exit_on_failure(_reported(body))
 
 
-@app.command("new-case")
 def new_case(
     output: Annotated[Path | None, typer.Option("--output", "-o", help="Write to this file instead of stdout.")] = None,
 ) -> None:
@@ -163,16 +211,19 @@ def new_case(
 
     Example: notegen new-case -o bed12.yaml
     """
-    with _reported_errors():
+
+    def body() -> int:
         from .resources import templates_dir
 
         text = (templates_dir() / "new_case.yaml").read_text(encoding="utf-8")
         if output is not None and output.exists():
             raise UsageError(f"{output} exists already; choose another name")
         _write_output(text, output)
+        return 0
+
+    _exit_on_failure(_reported(body))
 
 
-@app.command("check-pack")
 def check_pack(
     folders: Annotated[list[Path], typer.Argument(help="Rule-pack folders, laid over the shipped pack in order.")],
 ) -> None:
@@ -180,7 +231,8 @@ def check_pack(
 
     Example: notegen check-pack ./our-rules
     """
-    with _reported_errors():
+
+    def body() -> int:
         from .drafting import check_rule_folders
 
         problems = check_rule_folders(tuple(folders))
@@ -188,9 +240,122 @@ def check_pack(
             typer.echo(problem, err=True)
         if problems:
             _say(f"{len(problems)} problem(s) found")
-            raise typer.Exit(2)
+            return 2
         typer.echo("rule pack is consistent")
+        return 0
+
+    _exit_on_failure(_reported(body))
 
 
-def main() -> None:
-    app(prog_name="notegen")
+@functools.cache
+def _typer_app() -> typer.Typer:
+    """The typer application, built on first use: importing typer is most of what a plain call avoids."""
+    global typer  # the command signatures above name `typer.Option`; typer reads them from this module
+    import typer
+
+    application = typer.Typer(
+        name="notegen",
+        help=APP_HELP,
+        context_settings={"help_option_names": ["-h", "--help"]},
+        add_completion=False,
+        no_args_is_help=True,
+        pretty_exceptions_enable=False,
+        rich_markup_mode=None,
+    )
+    application.command()(draft)
+    application.command()(schema)
+    application.command("new-case")(new_case)
+    application.command("check-pack")(check_pack)
+    return application
+
+
+def __getattr__(name: str) -> Any:
+    if name == "app":  # `from notegen.cli import app` builds it
+        return _typer_app()
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
+
+# A plain `draft` call, parsed without typer ---------------------------------------------------
+
+_FLAGS = {"--jsonl": "jsonl", "--explain": "explain", "--brief": "brief", "--ascii": "ascii_only"}
+_VALUES = {
+    "--paste": "paste",
+    "--format": "output_format",
+    "-f": "output_format",
+    "--output": "output",
+    "-o": "output",
+    "--out": "out_dir",
+    "--template": "template",
+    "--width": "width",
+    "--window-hours": "window_hours",
+}
+_REPEATED = {"--set": "assignments", "--rules": "rules"}
+_PATHS = ("output", "out_dir", "template")
+_WHOLE_NUMBER = re.compile(r"[0-9]{1,4}")
+_DECIMAL = re.compile(r"[0-9]{1,6}(\.[0-9]{1,6})?")
+
+
+def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
+    """The arguments of a `draft` call that needs no typer to read; None for anything else.
+
+    Only unmistakable forms are taken: known options once each, values that are plainly valid.
+    Help, errors and every unusual form are left to typer, so its messages stay the only ones.
+    """
+    if not argv or argv[0] != "draft":
+        return None
+    cases: list[str] = []
+    found: dict[str, Any] = {"assignments": [], "rules": []}
+    position = 1
+    while position < len(argv):
+        word = argv[position]
+        position += 1
+        if word == "-" or not word.startswith("-"):
+            cases.append(word)
+            continue
+        if word in _FLAGS:
+            if _FLAGS[word] in found:
+                return None
+            found[_FLAGS[word]] = True
+            continue
+        name, equals, value = word.partition("=")
+        if name not in _VALUES and name not in _REPEATED:
+            return None  # --help, --, -fjson, an unknown option...
+        if not equals:
+            if position == len(argv):
+                return None
+            value = argv[position]
+            position += 1
+        if not value or (value.startswith("-") and value != "-"):
+            return None
+        if name in _REPEATED:
+            found[_REPEATED[name]].append(value)
+        elif _VALUES[name] in found:
+            return None
+        else:
+            found[_VALUES[name]] = value
+    if found.get("output_format", "markdown") not in {member.value for member in OutputFormat}:
+        return None
+    if "width" in found:
+        if not _WHOLE_NUMBER.fullmatch(found["width"]) or not 30 <= int(found["width"]) <= 400:
+            return None
+        found["width"] = int(found["width"])
+    if "window_hours" in found:
+        if not _DECIMAL.fullmatch(found["window_hours"]) or float(found["window_hours"]) < 0.5:
+            return None
+        found["window_hours"] = float(found["window_hours"])
+    for key in _PATHS:
+        if key in found:
+            found[key] = Path(found[key])
+    found["rules"] = [Path(folder) for folder in found["rules"]]
+    return {"cases": cases, **found}
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """The `notegen` command; returns the exit status (typer's path exits by itself)."""
+    arguments = list(sys.argv[1:] if argv is None else argv)
+    plain = _plain_draft_arguments(arguments)
+    if plain is not None:
+        cases = plain.pop("cases")
+        return _reported(lambda: _draft(cases, **plain))
+    _typer_app()(args=arguments, prog_name="notegen")
+    return 0
