@@ -34,6 +34,8 @@ _SHORT_WORDS = frozenset({"A", "An", "As", "At", "By", "If", "In", "Is", "It", "
 FINDINGS_PER_CAUSE = 2
 AGAINST_CAUSES = 2
 POSSIBLE_CAUSES_NAMED = 3
+# Facts the chloride sentence has already stated (names of the alkalosis pack's facts).
+CHLORIDE_FACTS = frozenset({"chloride_class", "urine_cl"})
 
 
 def draft_paragraph(assessment: Assessment) -> str:
@@ -420,7 +422,7 @@ def _alkalosis(assessment: Assessment) -> list[str]:
         return ["There is no metabolic alkalosis, so no alkalosis differential applies."]
     return [
         *_chloride(assessment),
-        *_causes(assessment.differential),
+        *_causes(assessment.differential, assessment.maintenance),
         *_against(assessment.differential),
         *_maintenance(assessment.maintenance),
     ]
@@ -466,37 +468,51 @@ def _strongest(evidence: Sequence[Evidence], limit: int) -> list[Evidence]:
     return (firm or ranked)[:limit]
 
 
+def _new_to_the_reader(evidence: Sequence[Evidence]) -> list[Evidence]:
+    """Findings the paragraph has not already given: the chloride sentence states the class and the
+    urine chloride, so a finding resting on those alone is dropped when the cause has others."""
+    fresh = [item for item in evidence if not (item.facts and set(item.facts) <= CHLORIDE_FACTS)]
+    return fresh or list(evidence)
+
+
 def _findings(evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
-    """The strongest findings as clauses joined by semicolons (they may hold commas and parentheses)."""
-    return "; ".join(_clause(item.text) for item in _strongest(evidence, limit) if item.text.strip())
+    """The strongest findings as clauses joined by semicolons (they may hold commas)."""
+    chosen = _strongest(_new_to_the_reader(evidence), limit)
+    return "; ".join(_clause(item.text) for item in chosen if item.text.strip())
 
 
-def _because(label: str, evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
-    # A dash, not a parenthesis: labels and findings carry parentheses of their own.
-    findings = _findings(evidence, limit)
-    return f"{label} \u2014 {findings}" if findings else label
+def _with_findings(label: str, evidence: Sequence[Evidence]) -> str:
+    """A cause and, in parentheses, the one or two findings that carry it."""
+    findings = _findings(evidence)
+    return f"{label} ({findings})" if findings else label
 
 
 def _list(items: Sequence[str], conj: str = "and") -> str:
-    """An English list; semicolons when an item holds its own "and" or "or", so the items stay apart."""
-    if len(items) > 2 and any(f" {word} " in item for item in items for word in ("and", "or")):
+    """An English list. Items holding their own commas or semicolons are kept apart by semicolons;
+    items holding "and" or "or" get a serial comma, so "chloride and volume depletion" stays whole."""
+    if len(items) > 2 and any(mark in item for item in items for mark in (",", ";")):
         return f"{'; '.join(items[:-1])}; {conj} {items[-1]}"
+    if len(items) > 2 and any(f" {word} " in item for item in items for word in ("and", "or")):
+        return f"{', '.join(items[:-1])}, {conj} {items[-1]}"
     if len(items) == 2 and any(f" {word} " in items[0] for word in ("and", "or")):
         return f"{items[0]}, {conj} {items[1]}"
     return join_words(items, conj)
 
 
-def _causes(differential: Sequence[CauseEntry]) -> list[str]:
+def _causes(differential: Sequence[CauseEntry], maintenance: Sequence[FactorEntry] = ()) -> list[str]:
     likely = [cause for cause in differential if cause.tier == "likely"]
+    # A possible cause that is also a present maintenance factor (reduced GFR) is said once, there.
+    maintaining = {factor.factor for factor in maintenance if factor.status == "present"}
     possible = [cause for cause in differential if cause.tier == "possible"]
+    if likely:
+        possible = [cause for cause in possible if cause.cause not in maintaining]
     sentences: list[str] = []
     if len(likely) == 1:
-        sentences.append(f"The likely cause is {_because(_inline(likely[0].label), likely[0].supporting)}.")
+        sentences.append(f"The likely cause is {_with_findings(_inline(likely[0].label), likely[0].supporting)}.")
     elif likely:
         count = _COUNT_WORDS.get(len(likely), str(len(likely)))
-        sentences.append(f"{count} causes are likely and may be acting together.")
-        for cause in likely:
-            sentences.append(f"{_cap(_because(_inline(cause.label), cause.supporting))}.")
+        items = [_with_findings(_inline(cause.label), cause.supporting) for cause in likely]
+        sentences.append(f"{count} causes are likely, probably acting together: {_list(items)}.")
     named = possible[:POSSIBLE_CAUSES_NAMED]
     rest = len(possible) - len(named)
     others = [f"{rest} other{'s' if rest > 1 else ''}"] if rest else []
@@ -506,8 +522,11 @@ def _causes(differential: Sequence[CauseEntry]) -> list[str]:
         sentences.append(f"{_cap(_list(labels))} {verb} also possible.")
     elif len(possible) == 1:
         only = possible[0]
-        remains = f"{_inline(only.label)} remains possible"
-        sentences.append(f"No cause is clearly supported, though {_because(remains, only.supporting)}.")
+        findings = _findings(only.supporting)
+        sentences.append(
+            f"No cause is clearly supported, though {_inline(only.label)} remains possible"
+            + (f" ({findings})." if findings else ".")
+        )
     elif possible:
         sentences.append(f"No cause is clearly supported; {_list(labels)} remain possible.")
     elif not likely:
@@ -516,15 +535,31 @@ def _causes(differential: Sequence[CauseEntry]) -> list[str]:
 
 
 def _against(differential: Sequence[CauseEntry]) -> list[str]:
-    """The alternatives argued against most firmly: unlikely causes with the strongest opposing findings."""
-    unlikely = [cause for cause in differential if cause.tier == "unlikely" and cause.opposing]
-    ranked = sorted(unlikely, key=lambda cause: min(_STRENGTH_ORDER.get(e.strength, 3) for e in cause.opposing))
-    chosen = [cause for cause in ranked if any(e.strength != "weak" for e in cause.opposing)][:AGAINST_CAUSES]
-    sentences: list[str] = []
-    for index, cause in enumerate(chosen):
-        verb = "is unlikely" if index == 0 else "is also unlikely"
-        sentences.append(f"{_cap(_because(f'{_inline(cause.label)} {verb}', cause.opposing, 1))}.")
-    return sentences
+    """The alternatives argued against most firmly, in one sentence.
+
+    Unlikely causes with a firm finding against them; those that also had something for them come
+    first (they were real contenders), then the firmest finding, then the order of the differential.
+    Two causes refuted by the same finding share it.
+    """
+    candidates = [
+        cause
+        for cause in differential
+        if cause.tier == "unlikely" and any(e.strength != "weak" for e in cause.opposing)
+    ]
+    ranked = sorted(
+        candidates,
+        key=lambda cause: (not cause.supporting, min(_STRENGTH_ORDER.get(e.strength, 3) for e in cause.opposing)),
+    )
+    chosen = ranked[:AGAINST_CAUSES]
+    if not chosen:
+        return []
+    reasons = [_clause(_strongest(cause.opposing, 1)[0].text) for cause in chosen]
+    labels = [_inline(cause.label) for cause in chosen]
+    if len(chosen) == 1:
+        return [f"{_cap(labels[0])} is unlikely ({reasons[0]})."]
+    if reasons[0] == reasons[1]:
+        return [f"{_cap(labels[0])} and {labels[1]} are unlikely ({reasons[0]})."]
+    return [f"{_cap(labels[0])} is unlikely ({reasons[0]}), as is {labels[1]} ({reasons[1]})."]
 
 
 def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:

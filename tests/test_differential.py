@@ -6,6 +6,7 @@ from pathlib import Path
 from typing import Any
 
 import pytest
+from alkalosis_cases import alkalosis_case, med
 
 from notegen.acidbase import read_acid_base
 from notegen.calculations import compute_calculations
@@ -18,7 +19,6 @@ from notegen.differential import (
     load_alkalosis_pack,
 )
 from notegen.engine import FactInput, RulePack
-from alkalosis_cases import alkalosis_case, med
 
 
 def evaluate(
@@ -125,12 +125,12 @@ def test_no_metabolic_alkalosis_no_differential() -> None:
 
 # Each outcome of the chloride branch (Luke & Galla, JASN 2012;23:204).
 CHLORIDE_CASES = [
-    ("responsive", {"urine_cl": 12}, "below 20 mmol/L: chloride-responsive"),
+    ("responsive", {"urine_cl": 12}, "below 20 mmol/L, makes the alkalosis chloride-responsive"),
     ("indeterminate", {"urine_cl": 30}, "lies between 20 mmol/L and"),
-    ("resistant", {"urine_cl": 60}, "with no loop or thiazide diuretic acting: chloride-resistant"),
+    ("resistant", {"urine_cl": 60}, "with no loop or thiazide diuretic acting, makes the alkalosis chloride-resistant"),
     ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide", 2),)}, "uninterpretable"),
     ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide"),)}, "listed without a last-dose time"),
-    ("unknown", {}, "No urine chloride"),
+    ("unknown", {}, "Without a urine chloride"),
 ]
 
 
@@ -202,7 +202,8 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
             ["renin_aldosterone"],
         ),
         ({"urine_cl": 60}, None, "urine_calcium_creatinine", []),
-        ({"urine_cl": 10, "k": 3.0}, None, "urine_potassium_creatinine", []),
+        # Renal or extrarenal potassium loss matters on the normotensive resistant side, not after vomiting.
+        ({"urine_cl": 10, "k": 3.0, "findings": ("vomiting",)}, None, None, ["urine_potassium_creatinine"]),
         (
             {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50},
             None,
@@ -236,14 +237,14 @@ def test_next_tests_follow_the_tree(
 def test_normotensive_resistant_asks_for_the_diuretic_screen_and_says_why() -> None:
     result = evaluate(alkalosis_case(urine_cl=60, k=2.8))
     screen = next(t for t in result.next_tests if t.test == "urine_diuretic_screen")
-    assert "loop or thiazide diuretic (now unlikely; could become possible)" in screen.why
-    assert "salt-wasting tubulopathy" in screen.why
+    assert "loop or thiazide diuretic use (now unlikely; could become possible)" in screen.why
+    assert "Gitelman or Bartter syndrome (now possible; could become likely or unlikely)" in screen.why
     assert "serum_magnesium" in suggested_tests(result)
 
 
 def test_urine_chloride_reason_names_the_class() -> None:
     why = evaluate(alkalosis_case(findings=("vomiting",))).next_tests[0].why
-    assert why.startswith("Spot urine chloride, ideally before chloride is given")
+    assert why.startswith("Best sent before saline and once any diuretic has worn off. Urine chloride not given")
     assert "chloride class (now unknown; could be responsive, resistant or indeterminate)" in why
 
 
@@ -265,8 +266,12 @@ def test_factors_generation_and_maintenance() -> None:
     case = alkalosis_case(urine_cl=8, findings=("vomiting",), k=3.0, volume="low", creatinine=2.5)
     result = evaluate(case)
     maintenance = {f.factor: f for f in result.maintenance}
-    assert {"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"} <= set(maintenance)
+    assert {"volume_contraction", "hypokalemia", "reduced_gfr", "secondary_aldosteronism"} <= set(maintenance)
     assert maintenance["hypokalemia"].text.startswith("Potassium 3.0 mmol/L")
+    # Volume depletion makes secondary hyperaldosteronism probable; it is not asserted as found.
+    assert "mineralocorticoid_activity" not in maintenance
+    assert maintenance["secondary_aldosteronism"].label == "probable secondary hyperaldosteronism"
+    assert "plausible" in maintenance["secondary_aldosteronism"].text
     generation = {g.mechanism for g in result.generation}
     assert {"acid_loss_stomach", "shift_into_cells"} <= generation
     assert "alkali_gain" not in generation
@@ -283,6 +288,7 @@ def test_json_shape() -> None:
     assert all(set(t) == {"test", "label", "why"} for t in data["next_tests"])
     assert {"factor", "label", "status", "text", "source"} <= set(data["maintenance"][0])
     assert "generation" in data
+    assert first["for"][0]["text"] == "Vomiting is reported."
     trace_ids = [step["id"] for step in data["trace"] if step["kind"] in ("node", "leaf")]
     assert trace_ids[:2] == ["bp_measured_high", "bp_history_when_normal"]
     assert "urine_cl_low" in trace_ids and "chloride_responsive" in trace_ids
@@ -329,3 +335,69 @@ def test_broken_service_pack_is_reported_with_file_and_line(tmp_path: Path) -> N
     problems = check_alkalosis_pack([tmp_path])
     assert any(p[0] == str(folder / "bad.yaml") and p[1] == 4 and "is in mL/min;" in p[2] for p in problems), problems
     assert len(problems) == 1  # one problem, at the setting, not one per condition using it
+
+
+def test_mineralocorticoid_activity_only_with_its_source_in_view() -> None:
+    hypertensive = {f.factor: f for f in evaluate(alkalosis_case(urine_cl=60, bp=(170, 100), k=2.8)).maintenance}
+    assert hypertensive["mineralocorticoid_activity"].status == "present"
+    assert "secondary_aldosteronism" not in hypertensive
+    # An aldosterone that was never measured is not, by itself, something to report as open.
+    plain = {f.factor for f in evaluate(alkalosis_case(urine_cl=30, volume="normal")).maintenance}
+    assert not plain & {"mineralocorticoid_activity", "secondary_aldosteronism"}
+
+
+def test_volume_contraction_needs_evidence() -> None:
+    # Listed only with a low volume or a low urine chloride (Luke & Galla, JASN 2012;23:204).
+    def factors(**values: Any) -> set[str]:
+        return {f.factor for f in evaluate(alkalosis_case(**values)).maintenance if f.status == "present"}
+
+    assert "volume_contraction" not in factors(urine_cl=60, volume="normal")
+    assert "volume_contraction" not in factors(urine_cl=60, volume="high", meds=(med("furosemide", 2),))
+    assert "volume_contraction" in factors(urine_cl=60, volume="low")
+    assert "volume_contraction" in factors(urine_cl=12, volume="normal")
+
+
+SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+# The causes a nephrologist would name first for each invented sample; None: no alkalosis differential.
+SAMPLE_LEADS: dict[str, set[str] | None] = {
+    "thiazide_and_vomiting": {"gastric_loss", "diuretic"},
+    "loop_diuretic_heart_failure": {"diuretic"},
+    "gastric_suction": {"gastric_loss"},
+    "hypertension_low_potassium": {"mineralocorticoid_excess"},
+    "alkali_kidney_disease": {"alkali_load"},
+    "chronic_co2_retention": None,
+    "ketoacidosis_with_vomiting": {"gastric_loss"},
+    "venous_si_units": {"gastric_loss"},
+}
+
+
+@pytest.mark.parametrize("stem", sorted(SAMPLE_LEADS), ids=sorted(SAMPLE_LEADS))
+def test_each_sample_leads_with_the_cause_a_nephrologist_would_name(stem: str) -> None:
+    from notegen.intake import read_case
+
+    result = evaluate(read_case(str(SAMPLES / f"{stem}.yaml")))
+    leads = SAMPLE_LEADS[stem]
+    if leads is None:
+        assert not result.applies and result.differential == ()
+        return
+    likely = {c.cause for c in result.differential if c.tier == "likely"}
+    assert likely == leads, [(c.cause, c.tier) for c in result.differential]
+    assert set(ranked(result)[: len(leads)]) == leads
+    # Low potassium beside these causes is their consequence, not a cause of its own.
+    assert tier(result, "potassium_magnesium_depletion") == "unlikely"
+
+
+def test_alkali_with_kidney_disease_is_maintained_by_the_low_gfr() -> None:
+    from notegen.intake import read_case
+
+    result = evaluate(read_case(str(SAMPLES / "alkali_kidney_disease.yaml")))
+    assert "reduced_gfr" in {f.factor for f in result.maintenance if f.status == "present"}
+
+
+def test_hidden_alkalosis_of_ketoacidosis_is_worked_up() -> None:
+    from notegen.intake import read_case
+
+    result = evaluate(read_case(str(SAMPLES / "ketoacidosis_with_vomiting.yaml")))
+    # Delta ratio 8 (Rastegar, JASN 2007): the alkalosis hidden by the acidosis is established.
+    assert result.applies and result.alkalosis == "established"
+    assert ranked(result)[0] == "gastric_loss"

@@ -133,15 +133,48 @@ def test_the_work_up_sections_carry_the_findings() -> None:
     assert "### Gastric acid loss: likely" in note
     assert "- For (strong): Vomiting for three days. Source: common practice." in note
     assert (
-        "### Unlikely\n\n- **Mineralocorticoid excess:** Blood pressure 104/62 mmHg, not raised. (common practice)"
-        in note
+        "### Unlikely\n\n- **Mineralocorticoid excess:** Blood pressure 104/62 mmHg, not raised. "
+        "Source: common practice." in note
     )
     assert "Not settled" not in note
     assert "- Not settled: whether vomiting continues" in draft(
         worked_up(sample("thiazide_and_vomiting")), explain=True
     )
-    assert "- **Hypokalemia**: Potassium 2.8 mmol/L. Source: common practice." in note
+    assert "- **Hypokalemia:** Potassium 2.8 mmol/L. Source: common practice." in note
     assert "- **Repeat serum magnesium:** low magnesium blocks repletion" in note
+
+
+def test_an_undetermined_factor_says_only_what_is_missing() -> None:
+    def factor(factor_id: str, label: str, text: str) -> FactorEntry:
+        return FactorEntry(factor=factor_id, label=label, status="undetermined", text=text, source="common practice")
+
+    assessment = worked_up(sample("thiazide_and_vomiting")).model_copy(
+        update={
+            "maintenance": (
+                factor(
+                    "mineralocorticoid_activity", "mineralocorticoid activity", "x: cannot tell; aldosterone not given."
+                ),
+                factor("volume_contraction", "chloride and volume depletion", "y: cannot tell; the data not given."),
+            )
+        }
+    )
+    note = draft(assessment)
+    assert (
+        "- **Mineralocorticoid activity:** not determined from these values (aldosterone not given). "
+        "Source: common practice."
+    ) in note
+    assert "- **Chloride and volume depletion:** not determined from these values. Source: common practice." in note
+    assert "cannot tell" not in note
+
+
+def test_unlikely_causes_give_their_sources_plainly() -> None:
+    note = draft(sample("gastric_suction"))
+    unlikely = note[note.index("### Unlikely") : note.index("## How it arose")]
+    assert "((" not in unlikely and "))" not in unlikely
+    assert (
+        "- **Mineralocorticoid excess:** Urine chloride <10 mmol/L is low, so the kidney is conserving chloride. "
+        "Source: Luke & Galla, JASN 2012;23:204. Blood pressure 112/66 mmHg is not raised."
+    ) in unlikely
 
 
 def test_data_table_shows_units_as_reported_and_converted() -> None:
@@ -217,7 +250,7 @@ def test_differential_says_why_it_is_absent() -> None:
     )
     no_walk = sample("gastric_suction").model_copy(update={"chloride_class": None, "differential": ()})
     assert "have not been weighed in this draft" in draft(no_walk)
-    assert "### Gastric acid loss (vomiting or gastric drainage): likely" in draft(sample("gastric_suction"))
+    assert "### Gastric acid loss: likely" in draft(sample("gastric_suction"))
 
 
 # Formats ---------------------------------------------------------------------------------------

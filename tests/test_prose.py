@@ -119,12 +119,11 @@ def test_thiazide_and_vomiting_two_likely_causes() -> None:
         "appropriate respiratory compensation (expected PaCO2 47.8–51.8 mmHg by the 0.7 rule). "
         "The albumin-corrected anion gap is normal at 10 mmol/L. "
         "The urine chloride of 14 mmol/L makes the alkalosis chloride-responsive. "
-        "Two causes are likely and may be acting together. "
-        "Gastric acid loss — vomiting for three days; urine chloride 14 mmol/L, below 20 mmol/L. "
-        "Diuretic use — hydrochlorothiazide last taken 40 hours ago; urine potassium-to-creatinine ratio "
-        "3.7 mmol/mmol, a renal potassium loss. "
-        "Mineralocorticoid excess is unlikely — blood pressure 104/62 mmHg, not raised. "
-        "Alkali load is also unlikely — no alkali source among the medications. "
+        "Two causes are likely, probably acting together: gastric acid loss (vomiting for three days; urine "
+        "chloride 14 mmol/L, below 20 mmol/L) and diuretic use (hydrochlorothiazide last taken 40 hours ago; urine "
+        "potassium-to-creatinine ratio 3.7 mmol/mmol, a renal potassium loss). "
+        "Mineralocorticoid excess is unlikely (blood pressure 104/62 mmHg, not raised), as is alkali load (no "
+        "alkali source among the medications). "
         "The alkalosis is maintained by volume contraction and hypokalemia; whether reduced GFR also "
         "contributes cannot be judged from these values. "
         "Next test to consider: urine calcium-to-creatinine ratio."
@@ -147,7 +146,7 @@ def test_loop_diuretic_high_urine_chloride_carries_the_caveat() -> None:
     assert (
         "The albumin-corrected anion gap is normal at 11.5 mmol/L. Furosemide was given 4 hours ago, so a high "
         "urine chloride cannot be read as chloride resistance. "
-        "The likely cause is loop diuretic — furosemide 4 hours before the urine sample. "
+        "The likely cause is loop diuretic (furosemide 4 hours before the urine sample). "
         "Mineralocorticoid excess is also possible. "
         "Whether effective volume contraction maintains the alkalosis cannot be judged from these values."
     ) in text
@@ -310,12 +309,22 @@ def _causes(likely: int, possible: int, unlikely: int) -> tuple[CauseEntry, ...]
 @pytest.mark.parametrize(
     ("likely", "possible", "expected"),
     [
-        (1, 0, "The likely cause is gastric acid loss — finding for gastric acid loss."),
+        (1, 0, "The likely cause is gastric acid loss (finding for gastric acid loss)."),
         (1, 1, "Diuretic use is also possible."),
         (1, 2, "Diuretic use and alkali load are also possible."),
-        (2, 0, "Two causes are likely and may be acting together. Gastric acid loss — finding for gastric"),
-        (3, 0, "Three causes are likely and may be acting together."),
-        (0, 1, "No cause is clearly supported, though gastric acid loss remains possible — finding for gastric"),
+        (
+            2,
+            0,
+            "Two causes are likely, probably acting together: gastric acid loss (finding for gastric acid loss) and "
+            "diuretic use (finding for diuretic use).",
+        ),
+        (
+            3,
+            0,
+            "Three causes are likely, probably acting together: gastric acid loss (finding for gastric acid loss), "
+            "diuretic use (finding for diuretic use) and alkali load (finding for alkali load).",
+        ),
+        (0, 1, "No cause is clearly supported, though gastric acid loss remains possible (finding for gastric"),
         (0, 2, "No cause is clearly supported; gastric acid loss and diuretic use remain possible."),
         (0, 5, "gastric acid loss, diuretic use, alkali load and 2 others remain possible."),
         (0, 0, "The findings do not yet point to any of the usual causes."),
@@ -330,20 +339,167 @@ def test_cause_sentences_agree_with_their_count(likely: int, possible: int, expe
 
 def test_one_unlikely_cause_reads_singular() -> None:
     text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=_causes(1, 0, 1)))
-    assert "Diuretic use is unlikely — finding for diuretic use." in text
+    assert "Diuretic use is unlikely (finding for diuretic use)." in text
 
 
 def test_eponyms_keep_their_capital() -> None:
     entry = cause("salt_wasting_tubulopathy", "Gitelman or Bartter syndrome", "likely", (ev("Urine calcium low."),))
     text = draft_paragraph(worked_up(BASE, chloride_class="resistant", differential=(entry,)))
-    assert "The likely cause is Gitelman or Bartter syndrome — urine calcium low." in text
+    assert "The likely cause is Gitelman or Bartter syndrome (urine calcium low)." in text
 
 
 def test_text_from_the_case_is_kept_as_written() -> None:
     # Escaping for Markdown belongs to the template, so the JSON paragraph stays plain text.
     entry = cause("alkali_load", "alkali load", "likely", (ev("{{ 7*7 }} <b>antacid</b> taken daily."),))
     text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(entry,)))
-    assert "The likely cause is alkali load — {{ 7*7 }} <b>antacid</b> taken daily." in text
+    assert "The likely cause is alkali load ({{ 7*7 }} <b>antacid</b> taken daily)." in text
+
+
+def chloride_ev(text: str, strength: str = "moderate") -> Evidence:
+    """A finding resting only on the chloride class, as the rule pack reports it."""
+    return Evidence(id="chloride", strength=strength, text=text, facts={"chloride_class": "responsive"}, source="x")  # type: ignore[arg-type]
+
+
+def test_a_finding_the_chloride_sentence_already_gave_is_not_repeated() -> None:
+    repeated = chloride_ev("Urine chloride 14 mmol/L is low, as the kidney conserves chloride after gastric loss.")
+    with_other = cause("gastric_loss", "gastric acid loss", "likely", (ev("Vomiting is reported."), repeated))
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(with_other,)))
+    assert "The likely cause is gastric acid loss (vomiting is reported)." in text
+    # When it is all there is, it stays.
+    alone = cause("gastric_loss", "gastric acid loss", "possible", (repeated,))
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(alone,)))
+    assert "though gastric acid loss remains possible (urine chloride 14 mmol/L is low, as the kidney" in text
+
+
+def test_at_most_two_findings_per_cause_and_weak_ones_only_alone() -> None:
+    findings = (ev("First."), ev("Second.", "moderate"), ev("Third.", "moderate"), ev("Fourth.", "weak"))
+    text = draft_paragraph(
+        worked_up(
+            BASE, chloride_class="responsive", differential=(cause("diuretic", "diuretic use", "likely", findings),)
+        )
+    )
+    assert "The likely cause is diuretic use (first; second)." in text
+    weak_only = cause("diuretic", "diuretic use", "likely", (ev("Faint.", "weak"), ev("Fainter.", "weak")))
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=(weak_only,)))
+    assert "The likely cause is diuretic use (faint; fainter)." in text
+
+
+def test_a_possible_cause_that_maintains_is_said_once_as_maintenance() -> None:
+    differential = (
+        cause("alkali_load", "alkali load", "likely", (ev("Alkali is taken as sodium bicarbonate."),)),
+        cause("reduced_gfr", "reduced GFR", "possible", (ev("eGFR 15 mL/min/1.73 m2 is below 40 mL/min/1.73 m2."),)),
+    )
+    maintenance = (factor("reduced_gfr", "reduced GFR"),)
+    text = draft_paragraph(
+        worked_up(BASE, chloride_class="unknown", differential=differential, maintenance=maintenance)
+    )
+    assert "also possible" not in text
+    assert "The alkalosis is maintained by reduced GFR." in text
+    # Without that factor present, the possible cause is named.
+    text = draft_paragraph(worked_up(BASE, chloride_class="unknown", differential=differential))
+    assert "Reduced GFR is also possible." in text
+
+
+def test_alternatives_refuted_by_the_same_finding_share_it() -> None:
+    low_cl = "Urine chloride 8 mmol/L is low, so the kidney is conserving chloride."
+    differential = (
+        cause("gastric_loss", "gastric acid loss", "likely", (ev("Vomiting is reported."),)),
+        cause("mineralocorticoid_excess", "mineralocorticoid excess", "unlikely", opposing=(ev(low_cl),)),
+        cause("salt_wasting_tubulopathy", "Gitelman or Bartter syndrome", "unlikely", opposing=(ev(low_cl),)),
+    )
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=differential))
+    assert (
+        "Mineralocorticoid excess and Gitelman or Bartter syndrome are unlikely (urine chloride 8 mmol/L is low, "
+        "so the kidney is conserving chloride)."
+    ) in text
+
+
+def test_a_contender_that_had_support_is_answered_first() -> None:
+    differential = (
+        cause("gastric_loss", "gastric acid loss", "likely", (ev("Vomiting is reported."),)),
+        cause("alkali_load", "alkali load", "unlikely", opposing=(ev("No alkali is reported."),)),
+        cause(
+            "potassium_magnesium_depletion",
+            "severe potassium or magnesium depletion",
+            "unlikely",
+            (ev("Magnesium 1.1 mg/dL is below 1.2 mg/dL.", "moderate"),),
+            (ev("Gastric loss accounts for the potassium loss."), ev("Potassium 2.9 mmol/L is not severe.", "weak")),
+        ),
+    )
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=differential))
+    assert (
+        "Severe potassium or magnesium depletion is unlikely (gastric loss accounts for the potassium loss), as is "
+        "alkali load (no alkali is reported)."
+    ) in text
+
+
+def test_weak_arguments_alone_do_not_make_an_against_sentence() -> None:
+    differential = (
+        cause("gastric_loss", "gastric acid loss", "likely", (ev("Vomiting is reported."),)),
+        cause("post_hypercapnia", "correction of chronic hypercapnia", "unlikely", opposing=(ev("None.", "weak"),)),
+    )
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=differential))
+    assert "unlikely" not in text
+
+
+@pytest.mark.parametrize(
+    ("labels", "expected"),
+    [
+        (["hypokalemia"], "The alkalosis is maintained by hypokalemia."),
+        (
+            ["chloride and volume depletion", "hypokalemia"],
+            "maintained by chloride and volume depletion, and hypokalemia.",
+        ),
+        (
+            ["chloride and volume depletion", "hypokalemia", "probable secondary hyperaldosteronism"],
+            "maintained by chloride and volume depletion, hypokalemia, and probable secondary hyperaldosteronism.",
+        ),
+        (
+            ["hypokalemia", "reduced GFR", "mineralocorticoid activity"],
+            "by hypokalemia, reduced GFR and mineralocorticoid",
+        ),
+    ],
+    ids=["one", "two-with-and", "three-with-and", "three-plain"],
+)
+def test_maintenance_lists_keep_their_items_whole(labels: list[str], expected: str) -> None:
+    maintenance = tuple(factor(label.replace(" ", "_"), label) for label in labels)
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", maintenance=maintenance))
+    assert expected in text
+    assert_well_formed(text)
+
+
+def test_likely_causes_with_commas_in_their_findings_are_kept_apart() -> None:
+    differential = tuple(
+        cause("diuretic", label, "likely", (ev(f"{label.capitalize()} is here, clearly."),))
+        for label in ("gastric acid loss", "diuretic use", "alkali load")
+    )
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", differential=differential))
+    assert (
+        "Three causes are likely, probably acting together: gastric acid loss (gastric acid loss is here, clearly); "
+        "diuretic use (diuretic use is here, clearly); and alkali load (alkali load is here, clearly)."
+    ) in text
+
+
+def test_the_samples_read_as_an_attending_would_write_them() -> None:
+    thiazide = draft_paragraph(sample("thiazide_and_vomiting"))
+    assert (
+        "Urine chloride 14 mmol/L, below 20 mmol/L, makes the alkalosis chloride-responsive. Two causes are likely, "
+        "probably acting together: gastric acid loss (vomiting is reported) and loop or thiazide diuretic use "
+        "(taking hydrochlorothiazide; last dose 40 h ago, so the low urine chloride fits the period after a "
+        "diuretic)."
+    ) in thiazide
+    assert (
+        "The alkalosis is maintained by chloride and volume depletion, hypokalemia, and probable secondary" in thiazide
+    )
+    loop = draft_paragraph(sample("loop_diuretic_heart_failure"))
+    assert "The likely cause is loop or thiazide diuretic use (taking furosemide; last dose 4 h ago" in loop
+    assert "Severe potassium or magnesium depletion is unlikely (the diuretic accounts for the potassium loss)" in loop
+    hypertensive = draft_paragraph(sample("hypertension_low_potassium"))
+    assert "The likely cause is mineralocorticoid excess (blood pressure 172/104 mmHg is raised" in hypertensive
+    for text in (thiazide, loop, hypertensive):
+        assert "(yes)" not in text and "(no)" not in text and "(high)" not in text and "mmHg/" not in text
+        assert "cannot tell" not in text and "_" not in text
+        assert_well_formed(text)
 
 
 # Grammar across combinations -------------------------------------------------------------------
@@ -371,6 +527,8 @@ evidence_lists = st.lists(
             ev("Blood pressure 104/62 mmHg.", "weak"),
             ev("PaCO2 49 mmHg."),
             ev("eGFR 43 mL/min/1.73 m2.", "moderate"),
+            chloride_ev("Urine chloride 14 mmol/L is low, as the kidney conserves chloride."),
+            ev("Taking hydrochlorothiazide, furosemide."),
         ]
     ),
     max_size=4,
@@ -378,14 +536,32 @@ evidence_lists = st.lists(
 causes = st.builds(
     lambda tier, label, supporting, opposing: cause("diuretic", label, tier, tuple(supporting), tuple(opposing)),
     st.sampled_from(["likely", "possible", "unlikely"]),
-    st.sampled_from(["Diuretic use", "gastric acid loss", "Alkali load", "Liddle syndrome", "reduced GFR"]),
+    st.sampled_from(
+        [
+            "Diuretic use",
+            "gastric acid loss",
+            "Alkali load",
+            "Liddle syndrome",
+            "reduced GFR",
+            "Gitelman or Bartter syndrome",
+            "salt-wasting tubulopathy (Bartter type)",
+        ]
+    ),
     evidence_lists,
     evidence_lists,
 )
 factors = st.builds(
     factor,
     st.just("hypokalemia"),
-    st.sampled_from(["Hypokalemia", "volume contraction", "Reduced GFR"]),
+    st.sampled_from(
+        [
+            "Hypokalemia",
+            "volume contraction",
+            "Reduced GFR",
+            "chloride and volume depletion",
+            "probable secondary hyperaldosteronism",
+        ]
+    ),
     st.sampled_from(["present", "undetermined"]),
 )
 tests = st.builds(suggested, st.just("urine_chloride"), st.sampled_from(["spot urine chloride", "Serum magnesium"]))
