@@ -202,7 +202,7 @@ def run_batch(
                 case = validate_case(payload, filename=label, window_hours=window_hours)
             else:
                 if label == "-" and stdin_bytes is None:
-                    stdin_bytes = sys.stdin.buffer.read()
+                    stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit is enough to refuse
                 case = read_case(label, window_hours=window_hours, stdin=stdin_bytes)
             if single_line:
                 note = drafter.draft_json_line(case, explain=options.explain)

@@ -6,8 +6,10 @@ Memory is measured with tracemalloc and held to generous bounds; time is not ass
 
 from __future__ import annotations
 
+import io
 import json
 import socket
+import sys
 import tracemalloc
 from collections.abc import Callable, Iterator
 from html.parser import HTMLParser
@@ -453,6 +455,22 @@ def test_batch_survives_an_unexpected_error_in_one_case(tmp_path: Path, capsys: 
         "notegen: 1 drafted, 0 rejected, 1 failed unexpectedly",
     ]
     assert sorted(p.name for p in out.iterdir()) == ["b.md"]
+
+
+def test_batch_reads_standard_input_only_up_to_the_size_limit(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
+) -> None:
+    good = tmp_path / "bed01.yaml"
+    good.write_text(GOOD, encoding="utf-8")
+    piped = io.BytesIO(b"case: x\n" * 1_000_000)  # 8 MB on standard input
+    monkeypatch.setattr(sys, "stdin", io.TextIOWrapper(piped))
+    status = run_batch([str(good), "-"], Drafter(), DraftOptions(), out_dir=None, jsonl=False, window_hours=24.0)
+    assert status == 2
+    assert capsys.readouterr().err.splitlines() == [
+        "notegen: <stdin>: more than 2,000,000 bytes is too large for a case file",
+        "notegen: 1 drafted, 1 rejected",
+    ]
+    assert piped.tell() <= MAX_BYTES + 1 + io.DEFAULT_BUFFER_SIZE  # the rest was never read
 
 
 def test_a_failed_write_leaves_neither_a_partial_note_nor_a_temporary_file(tmp_path: Path) -> None:
