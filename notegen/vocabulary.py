@@ -78,9 +78,9 @@ def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     return table
 
 
-@lru_cache(maxsize=8)
-def _finding_labels(folder: Path | None = None) -> dict[str, str]:
-    return {info.id: info.label for info in findings(folder).values()}
+@lru_cache(maxsize=1)
+def _finding_labels() -> dict[str, str]:
+    return {info.id: info.label for info in findings().values()}  # `findings()`, the call already cached
 
 
 def finding_label(finding_id: str) -> str:
