@@ -66,8 +66,12 @@ def _gas(rng: random.Random, pattern: str) -> dict[str, Any]:
     import math
 
     ph = 6.1 + math.log10(hco3 / (0.03 * pco2))
-    return {"sample": rng.choice(("arterial", "arterial", "arterial", "venous")), "ph": _round(ph, 2),
-            "pco2": _round(pco2, 0), "hco3": _round(hco3, 0)}
+    return {
+        "sample": rng.choice(("arterial", "arterial", "arterial", "venous")),
+        "ph": _round(ph, 2),
+        "pco2": _round(pco2, 0),
+        "hco3": _round(hco3, 0),
+    }
 
 
 def _chem(rng: random.Random, pattern: str, hco3: float) -> dict[str, Any]:
@@ -104,8 +108,11 @@ def make_case(index: int, seed: int = 2026) -> dict[str, Any]:
     rng = random.Random(seed * 1_000_003 + index)
     pattern = rng.choice(PATTERNS)
     case: dict[str, Any] = {"case": f"invented case {index}"}
-    case["patient"] = {"age": rng.randint(19, 92), "sex": rng.choice(("female", "male")),
-                       "weight_kg": rng.randint(45, 120)}
+    case["patient"] = {
+        "age": rng.randint(19, 92),
+        "sex": rng.choice(("female", "male")),
+        "weight_kg": rng.randint(45, 120),
+    }
     gas = _gas(rng, pattern)
     if rng.random() < 0.1 and pattern != "metabolic_alkalosis":
         gas = {}  # a chemistry panel without a gas
