@@ -29,6 +29,7 @@ _COUNT_WORDS = {2: "Two", 3: "Three", 4: "Four", 5: "Five", 6: "Six"}
 # Eponyms keep their capital when a finding or label moves into the middle of a sentence.
 _KEEP_CAPITAL = frozenset({"Addison", "Bartter", "Conn", "Cushing", "Gitelman", "Henderson", "Liddle", "Winter"})
 _FIRST_WORD = re.compile(r"[A-Za-z]+")
+_HEDGE = re.compile(r"^(?:probable|possible|likely) ")
 # Two-letter words that are English, not element symbols such as Na, Mg or Cl.
 _SHORT_WORDS = frozenset({"A", "An", "As", "At", "By", "If", "In", "Is", "It", "No", "Of", "On", "Or", "To", "Up"})
 FINDINGS_PER_CAUSE = 2
@@ -494,7 +495,7 @@ def _list(items: Sequence[str], conj: str = "and") -> str:
         return f"{'; '.join(items[:-1])}; {conj} {items[-1]}"
     if len(items) > 2 and any(f" {word} " in item for item in items for word in ("and", "or")):
         return f"{', '.join(items[:-1])}, {conj} {items[-1]}"
-    if len(items) == 2 and any(f" {word} " in items[0] for word in ("and", "or")):
+    if len(items) == 2 and not items[0].endswith(")") and any(f" {word} " in items[0] for word in ("and", "or")):
         return f"{items[0]}, {conj} {items[1]}"
     return join_words(items, conj)
 
@@ -564,7 +565,8 @@ def _against(differential: Sequence[CauseEntry]) -> list[str]:
 
 def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
     present = [_inline(factor.label) for factor in factors if factor.status == "present"]
-    open_ = [_inline(factor.label) for factor in factors if factor.status == "undetermined"]
+    # "whether probable X contributes" hedges twice; the open question is X itself.
+    open_ = [_HEDGE.sub("", _inline(factor.label)) for factor in factors if factor.status == "undetermined"]
     if present and open_:
         return [
             f"The alkalosis is maintained by {_list(present)}; whether {_list(open_, 'or')} also contributes "

@@ -237,7 +237,8 @@ def test_next_tests_follow_the_tree(
 def test_normotensive_resistant_asks_for_the_diuretic_screen_and_says_why() -> None:
     result = evaluate(alkalosis_case(urine_cl=60, k=2.8))
     screen = next(t for t in result.next_tests if t.test == "urine_diuretic_screen")
-    assert "loop or thiazide diuretic use (now unlikely; could become possible)" in screen.why
+    # Covert use stays in view after one negative screen (strong support is kept); a positive one settles it.
+    assert "loop or thiazide diuretic use (now possible; could become likely)" in screen.why
     assert "Gitelman or Bartter syndrome (now possible; could become likely or unlikely)" in screen.why
     assert "serum_magnesium" in suggested_tests(result)
 
@@ -401,3 +402,31 @@ def test_hidden_alkalosis_of_ketoacidosis_is_worked_up() -> None:
     # Delta ratio 8 (Rastegar, JASN 2007): the alkalosis hidden by the acidosis is established.
     assert result.applies and result.alkalosis == "established"
     assert ranked(result)[0] == "gastric_loss"
+
+
+def test_unrecognised_medication_is_not_called_a_listed_diuretic() -> None:
+    result = evaluate(alkalosis_case(urine_cl=60, meds=(med("mystery pill"),)))
+    assert result.chloride_class == "indeterminate"
+    assert result.chloride_notes[0] == (
+        "Urine chloride 60 mmol/L is high, but an unrecognised medication could be a diuretic still acting, so the "
+        "value is not read as chloride-resistant."
+    )
+
+
+def test_normotensive_resistant_keeps_covert_diuretic_use_beside_a_tubulopathy() -> None:
+    # Luke & Galla, JASN 2012: without hypertension or a listed diuretic, covert use and Gitelman or Bartter
+    # syndrome are told apart by a urine diuretic screen; neither leads before it.
+    result = evaluate(alkalosis_case(urine_cl=70, bp=(104, 64), k=2.9, volume="normal"))
+    assert tier(result, "diuretic") == "possible"
+    assert tier(result, "salt_wasting_tubulopathy") == "possible"
+    assert set(ranked(result)[:2]) == {"diuretic", "salt_wasting_tubulopathy"}
+    positive = evaluate(
+        alkalosis_case(urine_cl=70, bp=(104, 64), k=2.9, volume="normal"), extra={"diuretic_screen_positive": True}
+    )
+    assert ranked(positive)[0] == "diuretic" and tier(positive, "diuretic") == "likely"
+
+
+def test_secondary_hyperaldosteronism_is_left_out_when_the_case_is_silent() -> None:
+    # No volume status given: nothing to infer it from, and not reported as undetermined either.
+    result = evaluate(alkalosis_case(urine_cl=12, volume="unknown"))
+    assert "secondary_aldosteronism" not in {f.factor for f in result.maintenance}

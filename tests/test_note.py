@@ -167,6 +167,27 @@ def test_an_undetermined_factor_says_only_what_is_missing() -> None:
     assert "cannot tell" not in note
 
 
+def test_a_test_reason_is_shortened_for_the_note_and_whole_in_json() -> None:
+    why = (
+        "Best sent before saline. Urine chloride not given; the result would decide: chloride class (now unknown; "
+        "could be responsive or resistant); gastric acid loss (now unlikely; could become possible); diuretic use "
+        "(now possible; could become likely or unlikely)."
+    )
+    test = SuggestedTest(test="urine_chloride", label="spot urine chloride", why=why)
+    assessment = worked_up(sample("thiazide_and_vomiting")).model_copy(update={"next_tests": (test,)})
+    assert (
+        "- **Spot urine chloride:** Best sent before saline. It would settle the chloride class (now unknown; could "
+        "be responsive or resistant) and bear on gastric acid loss and diuretic use.\n"
+    ) in draft(assessment)
+    assert json.loads(draft(assessment, output_format="json"))["next_tests"][0]["why"] == why
+    only_causes = why.replace("chloride class (now unknown; could be responsive or resistant); ", "")
+    single = assessment.model_copy(update={"next_tests": (test.model_copy(update={"why": only_causes}),)})
+    assert (
+        "- **Spot urine chloride:** Best sent before saline. It would bear on gastric acid loss and diuretic use.\n"
+        in (draft(single))
+    )
+
+
 def test_unlikely_causes_give_their_sources_plainly() -> None:
     note = draft(sample("gastric_suction"))
     unlikely = note[note.index("### Unlikely") : note.index("## How it arose")]
