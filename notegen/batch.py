@@ -28,6 +28,12 @@ CASE_SUFFIXES = (".yaml", ".yml", ".json")
 _EXTENSIONS = {"markdown": ".md", "text": ".txt", "html": ".html", "json": ".json"}
 
 
+def _current_umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def write_atomically(path: Path, text: str) -> None:
     """Write `text` to `path` through a temporary file in the same folder and a rename.
 
@@ -42,6 +48,7 @@ def write_atomically(path: Path, text: str) -> None:
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
             stream.write(text)
+        os.chmod(temporary, 0o666 & ~_current_umask())  # mkstemp makes 0600; a note follows the umask
         os.replace(temporary, path)
     except OSError as exc:
         Path(temporary).unlink(missing_ok=True)

@@ -193,6 +193,20 @@ def test_sandbox_refuses_reaching_python_internals(tmp_path: Path, source: str) 
     assert caught.value.line == 2
 
 
+@pytest.mark.parametrize(
+    "source",
+    ["{{ ('x' * 10**7)|length }}", "{{ [0] * 1000000 }}", "{{ 2 ** 100000 }}", "{{ 100000 * 'ab' }}"],
+    ids=["string-repeat", "list-repeat", "big-power", "repeat-reversed"],
+)
+def test_sandbox_refuses_building_huge_values(tmp_path: Path, source: str) -> None:
+    with pytest.raises(TemplateError, match="line 1: refused by the sandbox"):
+        render_source(tmp_path, source, {})
+
+
+def test_sandbox_allows_small_arithmetic(tmp_path: Path) -> None:
+    assert render_source(tmp_path, "{{ '-' * 3 }}{{ 2 ** 3 }}{{ 3 * 4 }}", {}) == "---812"
+
+
 def test_sandbox_still_reads_the_context(tmp_path: Path) -> None:
     source = "{{ names|map('md')|join_words }}; {{ items|length }}\n"
     assert render_source(tmp_path, source, {"names": ["a*", "b"], "items": [1, 2]}) == "a\\* and b; 2\n"

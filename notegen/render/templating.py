@@ -14,7 +14,7 @@ from __future__ import annotations
 import functools
 from collections.abc import Mapping, Sequence
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from notegen.errors import TemplateError
 from notegen.render.filters import format_number, join_words
@@ -46,9 +46,7 @@ def _build_environment(folders: tuple[Path, ...], sandboxed: bool) -> jinja2.Env
 
     environment_class: type[jinja2.Environment] = jinja2.Environment
     if sandboxed:
-        from jinja2.sandbox import ImmutableSandboxedEnvironment
-
-        environment_class = ImmutableSandboxedEnvironment
+        environment_class = _bounded_sandbox()
     environment = environment_class(
         loader=jinja2.FileSystemLoader([str(folder) for folder in folders]),
         undefined=jinja2.StrictUndefined,
@@ -63,6 +61,37 @@ def _build_environment(folders: tuple[Path, ...], sandboxed: bool) -> jinja2.Env
     environment.filters["fmt"] = format_number
     environment.filters["join_words"] = join_words
     return environment
+
+
+MAX_PRODUCT_LENGTH = 100_000  # a repeated string or list in a service template; a note is a few kilobytes
+MAX_EXPONENT = 100
+
+
+@functools.lru_cache(maxsize=1)
+def _bounded_sandbox() -> type[jinja2.Environment]:
+    """The immutable sandbox, with `*` and `**` bounded so a template cannot build huge values.
+
+    The sandbox already refuses Python internals and caps `range`; CPU time spent in nested
+    loops is not bounded here (a service's template is its own configuration).
+    """
+    from jinja2.sandbox import ImmutableSandboxedEnvironment, SecurityError
+
+    class BoundedSandbox(ImmutableSandboxedEnvironment):
+        intercepted_binops = frozenset(["*", "**"])
+
+        def call_binop(self, context: Any, operator: str, left: Any, right: Any) -> Any:
+            if operator == "**" and isinstance(right, int | float) and abs(right) > MAX_EXPONENT:
+                raise SecurityError(f"an exponent above {MAX_EXPONENT} is not allowed in a template")
+            if operator == "*":
+                for sized, count in ((left, right), (right, left)):
+                    if isinstance(sized, str | list | tuple) and isinstance(count, int):
+                        if len(sized) * count > MAX_PRODUCT_LENGTH:
+                            raise SecurityError(
+                                f"repeating a value to more than {MAX_PRODUCT_LENGTH:,} items is not allowed"
+                            )
+            return super().call_binop(context, operator, left, right)
+
+    return BoundedSandbox
 
 
 def _refuse_none(value: object) -> object:
