@@ -77,6 +77,17 @@ def load_loinc_table(path: Path | None = None) -> LoincTable:
                              for e in exc.errors()]) from exc
 
 
+def _plain_problem(error: Any) -> str:
+    """One validation problem in words: the field, what was found, what was expected."""
+    where = ".".join(str(p) for p in error["loc"]) or "(top)"
+    message = str(error["msg"]).removeprefix("Value error, ")
+    if "Decimal value string does not match" in message or error.get("type") == "decimal_parsing":
+        message = "expected a decimal number"
+    found = error.get("input")
+    shown = f" (found {str(found)[:40]!r})" if isinstance(found, str | int | float) else ""
+    return f"{where}: {message}{shown}"
+
+
 def looks_like_fhir(data: object) -> bool:
     """True when `data` is a JSON object carrying a FHIR `resourceType`."""
     return isinstance(data, dict) and isinstance(data.get("resourceType"), str)
@@ -164,8 +175,7 @@ class _FhirReader:
         try:
             model.model_validate(resource)
         except ValidationError as exc:
-            problems = "; ".join(f"{'.'.join(str(p) for p in err['loc']) or '(top)'}: {err['msg']}"
-                                 for err in exc.errors()[:3])
+            problems = "; ".join(_plain_problem(err) for err in exc.errors()[:3])
             more = f" (and {len(exc.errors()) - 3} more)" if len(exc.errors()) > 3 else ""
             raise self.fail(f"{where} is not valid FHIR R4: {problems}{more}") from exc
 
