@@ -468,6 +468,18 @@ def test_maintenance_lists_keep_their_items_whole(labels: list[str], expected: s
     assert_well_formed(text)
 
 
+def test_an_open_factor_is_not_hedged_twice() -> None:
+    maintenance = (
+        factor("hypokalemia", "hypokalemia"),
+        factor("secondary_aldosteronism", "probable secondary hyperaldosteronism", "undetermined"),
+    )
+    text = draft_paragraph(worked_up(BASE, chloride_class="responsive", maintenance=maintenance))
+    assert (
+        "The alkalosis is maintained by hypokalemia; whether secondary hyperaldosteronism also contributes cannot be "
+        "judged from these values."
+    ) in text
+
+
 def test_likely_causes_with_commas_in_their_findings_are_kept_apart() -> None:
     differential = tuple(
         cause("diuretic", label, "likely", (ev(f"{label.capitalize()} is here, clearly."),))
