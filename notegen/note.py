@@ -26,7 +26,7 @@ from notegen.case import Case, Measurement, Medication
 from notegen.errors import TemplateError, UsageError
 from notegen.management import management_considerations
 from notegen.prose import draft_paragraph
-from notegen.render.filters import format_number, join_words
+from notegen.render.filters import format_number, join_words, ph_text, trimmed_number
 
 if TYPE_CHECKING:
     from notegen.drafting import DraftOptions
@@ -196,26 +196,14 @@ def _labelled(row: dict[str, Any]) -> dict[str, Any]:
 
 
 def _span(low: float, high: float, unit: str, digits: int = 1) -> str:
-    return f"{_trimmed(low, digits)}\u2013{_trimmed(high, digits)} {unit}".strip()
-
-
-def _trimmed(value: float, digits: int) -> str:
-    """Rounded half away from zero, trailing zeros dropped, never "-0"."""
-    text = format_number(value, digits)
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return "0" if text == "-0" else text
-
-
-def _ph_text(value: float) -> str:
-    return f"{value:.2f}" if round(value, 2) == round(value, 3) else f"{value:.3f}"
+    return f"{trimmed_number(low, digits)}\u2013{trimmed_number(high, digits)} {unit}".strip()
 
 
 def _three_figures(value: float) -> str:
     if value == 0:
         return "0"
     digits = max(0, 2 - math.floor(math.log10(abs(value))))
-    return _trimmed(value, digits)
+    return trimmed_number(value, digits)
 
 
 def _field_label(field: str, case: Case) -> str:
@@ -233,7 +221,7 @@ def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     field = measurement.field
     qualifier = measurement.qualifier or ""
     if field in _PH_FIELDS:
-        reported = f"{qualifier}{_ph_text(measurement.reported_value)}"
+        reported = f"{qualifier}{ph_text(measurement.reported_value)}"
         converted = "unchanged"
     else:
         reported = f"{qualifier}{format_value(measurement.reported_value, measurement.reported_unit)}"
@@ -320,11 +308,11 @@ def _split_calculations(assessment: Assessment) -> tuple[list[Calculation], list
 def _calculation_row(calculation: Calculation) -> dict[str, str]:
     digits = _CALCULATION_DIGITS.get(calculation.name, 1)
     if calculation.name == "calculated_ph":
-        value = _ph_text(calculation.value)
+        value = ph_text(calculation.value)
     elif calculation.name == "delta_ratio":
         value = format_number(calculation.value, 1)  # as the paragraph gives it
     else:
-        value = _trimmed(calculation.value, digits)
+        value = trimmed_number(calculation.value, digits)
     result = f"{value} {calculation.unit}".strip()
     if calculation.low is not None and calculation.high is not None:
         result += f" (range {_span(calculation.low, calculation.high, calculation.unit, digits)})"

@@ -14,7 +14,7 @@ from collections.abc import Sequence
 from notegen.acidbase_model import AcidBaseReading, Disorder, ExpectedRange
 from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
 from notegen.calculations import Calculation
-from notegen.render.filters import format_number, join_words
+from notegen.render.filters import join_words, ph_text, trimmed_number
 
 __all__ = ["draft_paragraph"]
 
@@ -57,29 +57,16 @@ def draft_paragraph(assessment: Assessment) -> str:
 # Numbers ---------------------------------------------------------------------------------------
 
 
-def _num(value: float, digits: int = 1) -> str:
-    # Half away from zero on the printed digits (8.25 -> 8.3), trailing zeros dropped, never "-0".
-    text = format_number(value, digits)
-    if "." in text:
-        text = text.rstrip("0").rstrip(".")
-    return "0" if text == "-0" else text
-
-
-def _ph(value: float) -> str:
-    # Two decimals as analysers print pH; a third only when the value carries one.
-    return f"{value:.2f}" if round(value, 2) == round(value, 3) else f"{value:.3f}"
-
-
 def _mmhg(value: float) -> str:
-    return f"{_num(value)} mmHg"
+    return f"{trimmed_number(value)} mmHg"
 
 
 def _mmol(value: float) -> str:
-    return f"{_num(value)} mmol/L"
+    return f"{trimmed_number(value)} mmol/L"
 
 
 def _span(low: float, high: float, unit: str) -> str:
-    return f"{_num(low)}\u2013{_num(high)} {unit}"
+    return f"{trimmed_number(low)}\u2013{trimmed_number(high)} {unit}"
 
 
 def _range(expected: ExpectedRange) -> str:
@@ -136,7 +123,7 @@ def _pco2_name(reading: AcidBaseReading) -> str:
 def _gas_values(reading: AcidBaseReading) -> str:
     parts: list[str] = []
     if reading.ph is not None:
-        parts.append(("calculated pH " if reading.ph_source == "calculated" else "pH ") + _ph(reading.ph))
+        parts.append(("calculated pH " if reading.ph_source == "calculated" else "pH ") + ph_text(reading.ph))
     if reading.pco2 is not None:
         parts.append(f"{'PCO2' if reading.sample == 'venous' else 'PaCO2'} {_mmhg(reading.pco2)}")
     if reading.hco3 is not None:
@@ -158,7 +145,7 @@ def _consistency(reading: AcidBaseReading) -> list[str]:
     if reading.consistency != "inconsistent" or reading.ph is None or reading.calculated_ph is None:
         return []
     return [
-        f"Of note, the reported pH of {_ph(reading.ph)} does not agree with the PaCO2 and HCO3, which give "
+        f"Of note, the reported pH of {ph_text(reading.ph)} does not agree with the PaCO2 and HCO3, which give "
         f"{reading.calculated_ph:.2f}; the values should be rechecked, or the gas repeated, before this "
         "reading is relied on."
     ]

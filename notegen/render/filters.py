@@ -30,6 +30,19 @@ def format_number(value: int | float | Decimal, digits: int) -> str:
     return f"{rounded:.{digits}f}"
 
 
+def trimmed_number(value: float, digits: int = 1) -> str:
+    """Rounded half away from zero to `digits`, trailing zeros dropped, never "-0" (8.25 -> "8.3", 10.0 -> "10")."""
+    text = format_number(value, digits)
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return "0" if text == "-0" else text
+
+
+def ph_text(value: float) -> str:
+    """A pH as analysers print it: two decimals, a third only when the value carries one."""
+    return f"{value:.2f}" if round(value, 2) == round(value, 3) else f"{value:.3f}"
+
+
 def join_words(items: Iterable[object], conj: str = "and") -> str:
     """Join items as an English list without the serial comma: "a, b and c".
 
