@@ -114,13 +114,14 @@ def _draft(
             raise UsageError("--paste and --set apply to a single case, not to a batch")
         return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
     from .intake import read_case
+    from .loading import MAX_BYTES
 
     needs_stdin = "-" in sources or paste == "-"
     case = read_case(
         sources[0] if sources else None,
         paste=paste,
         overrides=tuple(assignments),
-        stdin=sys.stdin.buffer.read() if needs_stdin else None,
+        stdin=sys.stdin.buffer.read(MAX_BYTES + 1) if needs_stdin else None,  # one byte past the limit refuses
         window_hours=window_hours,
     )
     _write_output(drafter.draft(case, options), output)
