@@ -95,3 +95,12 @@ def test_help_has_an_example() -> None:
     result = runner.invoke(app, ["draft", "-h"])
     assert result.exit_code == 0, result.output
     assert "Example: notegen draft samples/" in result.stdout
+
+
+def test_standard_input_past_the_size_limit_is_refused() -> None:
+    from notegen.loading import MAX_BYTES
+
+    result = runner.invoke(app, ["draft", "-"], input=b"#" * (MAX_BYTES + 10))
+    assert result.exit_code == 2
+    assert result.stdout == ""
+    assert "is too large for a case file" in result.stderr
