@@ -176,16 +176,29 @@ print(json.dumps({{"first": first * 1e3, "again": statistics.median(times) * 1e3
     return dict(json.loads(output))
 
 
+_LAUNCHER = """
+import os, subprocess, sys
+with open(os.devnull, "wb") as sink:
+    process = subprocess.Popen(sys.argv[1:], stdout=sink, stderr=subprocess.DEVNULL)
+    _, status, usage = os.wait4(process.pid, 0)
+print(os.waitstatus_to_exitcode(status), usage.ru_maxrss)
+"""
+
+
 def peak_rss(path: Path, env: dict[str, str]) -> int:
-    """Peak resident memory (KiB) of `notegen draft --jsonl FILE --format json`, from the child's rusage."""
+    """Peak resident memory (KiB) of `notegen draft --jsonl FILE --format json`, from the child's rusage.
+
+    A small launcher process starts it: a child forked from this (large) process would count this
+    process's pages in its peak before it execs.
+    """
     command = [*_notegen_command(), "draft", "--jsonl", str(path), "--format", "json"]
-    with open(os.devnull, "wb") as sink:
-        process = subprocess.Popen(command, env=env, cwd=ROOT, stdout=sink, stderr=subprocess.DEVNULL)
-        _, status, usage = os.wait4(process.pid, 0)
-    process.returncode = os.waitstatus_to_exitcode(status)
-    if process.returncode != 0:
-        raise RuntimeError(f"{' '.join(command)} exited with {process.returncode}")
-    return int(usage.ru_maxrss)  # KiB on Linux
+    output = subprocess.run(
+        [sys.executable, "-c", _LAUNCHER, *command], env=env, cwd=ROOT, check=True, capture_output=True, text=True
+    ).stdout
+    status, kibibytes = (int(word) for word in output.split())
+    if status != 0:
+        raise RuntimeError(f"{' '.join(command)} exited with {status}")
+    return kibibytes  # KiB on Linux
 
 
 def _scaled_case(kind: str, size: int) -> dict[str, Any]:

@@ -108,3 +108,19 @@ def test_a_plain_call_imports_no_cli_framework() -> None:
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert result.stdout.startswith("ACID-BASE ASSESSMENT")
     assert result.stderr == "0 []\n"
+
+
+@pytest.mark.parametrize("argv", [["draft", SAMPLE, "--format", "text"], ["draft", SAMPLE, "--set", "chem.k=99"]])
+def test_the_command_in_its_own_process_prints_what_typer_would(argv: list[str]) -> None:
+    # main() without arguments is the console script: the path that also tunes the garbage collector
+    code = (
+        "import gc, sys\n"
+        "from notegen.cli import main\n"
+        f"sys.argv = ['notegen', *{argv!r}]\n"
+        "status = main()\n"
+        "print(status, gc.isenabled(), file=sys.stderr)\n"
+    )
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    through_typer = runner.invoke(app, argv)
+    assert result.stdout == through_typer.stdout
+    assert result.stderr == through_typer.stderr + f"{through_typer.exit_code} True\n"
