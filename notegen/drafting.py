@@ -9,14 +9,17 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from functools import cached_property
 from pathlib import Path
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
 
 from .acid_base_settings import AcidBaseSettings, load_acid_base_settings
 from .acidbase import read_acid_base
+from .acidbase_model import AcidBaseReading
 from .assessment import Assessment, _warnings
 from .calculations import compute_calculations
 from .case import Case
-from .engine import RulePack
+
+if TYPE_CHECKING:
+    from .engine import RulePack
 
 OutputFormat = Literal["markdown", "text", "html", "json"]
 
@@ -52,24 +55,30 @@ class Drafter:
         """Run every stage on a validated case and gather the results.
 
         case -> calculations -> acid-base reading -> rule walk (when there is a metabolic alkalosis).
+        The shipped rule pack is loaded, and the rule engine imported, only when a case first needs
+        them; a service's pack (`rules_dirs`) is loaded for every case, so its errors always show.
         """
-        from .differential import evaluate_alkalosis
-
+        if self.rules_dirs:
+            self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
         calculations = compute_calculations(case, self.settings)
         reading = read_acid_base(case, self.settings)
-        rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+        rules = None
+        if _alkalosis_to_work_up(reading):
+            from .differential import evaluate_alkalosis
+
+            rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
         assessment = Assessment(
             case=case,
             acid_base=reading,
             alerts=reading.alerts,
             calculations=calculations,
-            chloride_class=rules.chloride_class,
-            chloride_notes=rules.chloride_notes,
-            generation=rules.generation,
-            differential=rules.differential,
-            maintenance=rules.maintenance,
-            next_tests=rules.next_tests,
-            trace=rules.trace,
+            chloride_class=rules.chloride_class if rules is not None else None,
+            chloride_notes=rules.chloride_notes if rules is not None else (),
+            generation=rules.generation if rules is not None else (),
+            differential=rules.differential if rules is not None else (),
+            maintenance=rules.maintenance if rules is not None else (),
+            next_tests=rules.next_tests if rules is not None else (),
+            trace=rules.trace if rules is not None else (),
             warnings=_warnings(case, reading),
         )
         from .note import complete_assessment
@@ -89,6 +98,11 @@ class Drafter:
         cost more than drafting the note.
         """
         return self.assess(case, explain=explain).model_dump_json(by_alias=True) + "\n"
+
+
+def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
+    """Whether the alkalosis pack applies: the same test `evaluate_alkalosis` makes, without importing the engine."""
+    return "metabolic_alkalosis" in reading.disorders or "metabolic_alkalosis" in reading.possible_disorders
 
 
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
