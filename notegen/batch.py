@@ -137,7 +137,7 @@ class _Progress:
             filled = self.WIDTH * done // self.total
             text = f"notegen: drafting [{'#' * filled}{'.' * (self.WIDTH - filled)}] {done}/{self.total}"
         else:
-            text = f"notegen: drafting, {done} cases so far"
+            text = f"notegen: drafting, {done} done"
         self.stream.write("\r" + text.ljust(self.drawn))
         self.stream.flush()
         self.drawn = len(text)

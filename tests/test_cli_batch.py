@@ -196,3 +196,16 @@ def test_no_progress_when_standard_error_is_not_a_terminal(tmp_path: Path) -> No
     )
     assert status == 0
     assert stream.getvalue() == "notegen: 2 drafted, 0 rejected\n"
+
+
+def test_json_lines_progress_counts_the_cases_done(tmp_path: Path) -> None:
+    cases = tmp_path / "cases.jsonl"
+    cases.write_text(_case_line("one") + "\n" + _case_line("two") + "\n", encoding="utf-8")
+    terminal = _Terminal()
+    status = run_batch(
+        [str(cases)], Drafter(), DraftOptions(), out_dir=tmp_path / "notes", jsonl=True, window_hours=24.0,
+        stderr=terminal,
+    )  # fmt: skip
+    assert status == 0
+    assert terminal.getvalue().startswith("\rnotegen: drafting, 0 done")
+    assert terminal.getvalue().endswith("\rnotegen: 2 drafted, 0 rejected\n")
