@@ -13,7 +13,8 @@ from typing import Any
 from .case import Case
 from .errors import InputError
 from .loading import decode, parse_text, read_source
-from .validation import DEFAULT_WINDOW_HOURS, LAB_SECTIONS, validate_case
+from .validation import LAB_SECTIONS, validate_case
+from .validation_base import DEFAULT_WINDOW_HOURS
 
 FHIR_MAX_DEPTH = 40  # FHIR nests deeper than a case file does
 

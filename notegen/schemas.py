@@ -109,7 +109,8 @@ def _lab_section(section: str, description: str) -> dict[str, Any]:
 
 def case_schema() -> dict[str, Any]:
     """The schema of a case file (YAML or JSON), as `notegen draft` reads it."""
-    from notegen.validation import _SEX, _VOLUME, MAX_MEDICATIONS, MAX_TEXT
+    from notegen.validation_base import MAX_TEXT
+    from notegen.validation_context import MAX_MEDICATIONS, SEX_WORDS, VOLUME_WORDS
 
     medication = {
         "anyOf": [
@@ -149,7 +150,7 @@ def case_schema() -> dict[str, Any]:
                     "additionalProperties": False,
                     "properties": {
                         "age": {**number, "minimum": 0, "maximum": 120, "description": "years"},
-                        "sex": _nullable(_words(sorted(_SEX), "female or male")),
+                        "sex": _nullable(_words(sorted(SEX_WORDS), "female or male")),
                         "weight_kg": {**number, "minimum": 1, "maximum": 400},
                         "height_cm": {**number, "minimum": 30, "maximum": 260},
                     },
@@ -179,7 +180,9 @@ def case_schema() -> dict[str, Any]:
                                 {"type": "null"},
                             ],
                         },
-                        "volume": _nullable(_words(sorted(_VOLUME), "low, normal, high or unknown (or a synonym)")),
+                        "volume": _nullable(
+                            _words(sorted(VOLUME_WORDS), "low, normal, high or unknown (or a synonym)")
+                        ),
                         "meds": {
                             "description": "Medications: a list of names or {name, last_dose_hours}, or one "
                             "comma-separated text.",

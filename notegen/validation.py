@@ -7,28 +7,34 @@ value that fits another unit better is refused with the suggestion, never conver
 
 from __future__ import annotations
 
-import difflib
-import math
-import re
 from collections.abc import Mapping
-from dataclasses import dataclass, field
 from datetime import datetime, timedelta
 from typing import Any
 
 from . import units as u
 from . import vocabulary as vocab
 from .case import (
-    BloodPressure,
     Case,
     Chem,
-    Context,
     Gas,
     Measurement,
-    Medication,
-    Patient,
     Urine,
 )
 from .errors import CaseFileError, CaseValueError
+from .validation_base import (
+    _VALUE_TEXT,
+    DEFAULT_WINDOW_HOURS,
+    MAX_TEXT,
+    YEARS,
+    _Collector,
+    _did_you_mean,
+    _finite,
+    _fmt,
+    _key,
+    _shown,
+    _unsafe_character,
+)
+from .validation_context import validate_context, validate_patient
 
 TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
 LAB_SECTIONS: dict[str, tuple[str, ...]] = {
@@ -51,86 +57,6 @@ LAB_SECTIONS: dict[str, tuple[str, ...]] = {
     ),
     "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium"),
 }
-PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
-CONTEXT_KEYS = ("bp", "volume", "meds", "findings")
-MAX_TEXT = 500
-MAX_MEDICATIONS = 200
-DEFAULT_WINDOW_HOURS = 24.0
-# A result time outside these years is a typing error; it also keeps time arithmetic in range.
-YEARS = (1900, 2199)
-
-_SEX = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
-_VOLUME = {
-    "low": "low",
-    "hypovolemic": "low",
-    "depleted": "low",
-    "contracted": "low",
-    "normal": "normal",
-    "euvolemic": "normal",
-    "high": "high",
-    "hypervolemic": "high",
-    "overloaded": "high",
-    "unknown": "unknown",
-}
-# Control characters (a terminal runs ESC sequences printed with the note) and the bidirectional
-# overrides that make text display in another order than it reads; tab and newlines are harmless.
-_UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
-_VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
-
-
-def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:
-    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
-    hint = f"; did you mean `{close[0]}`?" if close else ""
-    return f"not a known key{hint} (known: {', '.join(choices)})"
-
-
-def _fmt(value: float) -> str:
-    return f"{value:.4g}"
-
-
-def _shown(value: Any) -> str:
-    """A user's value echoed in a message, cut short: a 2 MB string must not become a 2 MB message."""
-    text = repr(value)
-    return text if len(text) <= 60 else f"{text[:57]}..."
-
-
-def _key(key: Any) -> str:
-    """A key as it appears in a field path, cut short like `_shown`, its control characters escaped."""
-    text = _UNSAFE_CHARACTER.sub(lambda m: f"\\u{ord(m.group()):04x}", str(key))
-    return text if len(text) <= 60 else f"{text[:57]}..."
-
-
-def _unsafe_character(text: str) -> str | None:
-    """What is wrong with `text` if it holds a character that must not reach a note, else None."""
-    found = _UNSAFE_CHARACTER.search(text)
-    return None if found is None else f"contains the control character U+{ord(found.group()):04X}; remove it"
-
-
-def _finite(value: int | float) -> float | None:
-    """`value` as a float, or None when it is infinite, not a number, or too large for a float."""
-    try:
-        number = float(value)
-    except OverflowError:
-        return None
-    return number if math.isfinite(number) else None
-
-
-@dataclass
-class _Collector:
-    system: str
-    filename: str | None
-    provenance: Mapping[str, str]
-    default_source: str
-    problems: list[tuple[str, str]] = field(default_factory=list)
-    measurements: list[Measurement] = field(default_factory=list)
-    notices: list[str] = field(default_factory=list)
-
-    def problem(self, path: str, text: str) -> None:
-        self.problems.append((path, text))
-
-    def source(self, path: str) -> str:
-        return self.provenance.get(path, self.default_source)
-
 
 def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> tuple[float, str, str | None] | None:
     """Return (number, canonical unit spelling, qualifier) or record a problem."""
@@ -391,172 +317,6 @@ def _choose_current(
     return current, earlier
 
 
-def _patient(raw: Any, col: _Collector) -> Patient:
-    if raw is None:
-        return Patient()
-    if not isinstance(raw, Mapping):
-        col.problem("patient", f"expected a mapping, got a {type(raw).__name__}")
-        return Patient()
-    values: dict[str, Any] = {}
-    bounds = {"age": (0, 120, "years"), "weight_kg": (1, 400, "kg"), "height_cm": (30, 260, "cm")}
-    for key, item in raw.items():
-        path = f"patient.{_key(key)}"
-        if key not in PATIENT_KEYS:
-            col.problem(path, _did_you_mean(str(key), PATIENT_KEYS))
-        elif item is None:
-            continue
-        elif key == "sex":
-            sex = _SEX.get(str(item).strip().lower())
-            if sex is None:
-                col.problem(path, f"{_shown(item)} is not female or male")
-            values["sex"] = sex
-        elif isinstance(item, bool) or not isinstance(item, int | float):
-            col.problem(path, f"expected a number, got {_shown(item)}")
-        else:
-            low, high, unit = bounds[key]
-            number = _finite(item)
-            if number is None:
-                too_large = f"is too large to be in {unit}" if isinstance(item, int) else "is not a finite number"
-                col.problem(path, f"{_shown(item)} {too_large}")
-            elif not low <= number <= high:
-                col.problem(path, f"{_fmt(number)} {unit} is not plausible (expected {low} to {high})")
-            else:
-                values[key] = number
-    age = values.get("age")
-    if age is not None and age < 18:
-        col.notices.append(
-            f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind"
-        )
-    return Patient(**values)
-
-
-def _blood_pressure(raw: Any, col: _Collector) -> BloodPressure | None:
-    systolic = diastolic = None
-    if isinstance(raw, str):
-        match = re.fullmatch(r"\s*(\d{2,3})\s*/\s*(\d{2,3})\s*(mm ?hg)?\s*", raw, re.IGNORECASE)
-        if match:
-            systolic, diastolic = int(match[1]), int(match[2])
-    elif isinstance(raw, Mapping) and set(raw) == {"systolic", "diastolic"}:
-        pair = [raw["systolic"], raw["diastolic"]]
-        if all(isinstance(v, int | float) and not isinstance(v, bool) and _finite(v) is not None for v in pair):
-            if not all(float(v).is_integer() for v in pair):
-                # 118.6 is not silently cut to 118
-                col.problem("context.bp", f"{_fmt(pair[0])}/{_fmt(pair[1])}: give whole numbers of mmHg")
-                return None
-            systolic, diastolic = int(pair[0]), int(pair[1])
-    if systolic is None or diastolic is None:
-        col.problem(
-            "context.bp", f'{str(raw)[:40]!r} is not a blood pressure such as "168/98" or {{systolic, diastolic}}'
-        )
-        return None
-    if not (40 <= systolic <= 300 and 20 <= diastolic <= 200 and diastolic < systolic):
-        col.problem("context.bp", f"{systolic}/{diastolic} mmHg is not a plausible blood pressure")
-        return None
-    return BloodPressure(systolic=systolic, diastolic=diastolic)
-
-
-def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
-    hours: float | None = None
-    if isinstance(raw, Mapping):
-        extra = set(raw) - {"name", "last_dose_hours"}
-        if extra or not isinstance(raw.get("name"), str):
-            col.problem(path, "a medication is a name, or a mapping {name, last_dose_hours}")
-            return None
-        name = raw["name"]
-        hours_raw = raw.get("last_dose_hours")
-        if hours_raw is not None:
-            if isinstance(hours_raw, bool) or not isinstance(hours_raw, int | float) or not 0 <= hours_raw <= 24 * 365:
-                col.problem(
-                    f"{path}.last_dose_hours", f"{_shown(hours_raw)} is not a number of hours since the last dose"
-                )
-                return None
-            hours = float(hours_raw)
-    elif isinstance(raw, str):
-        name = raw
-    else:
-        col.problem(path, f"expected a medication name, got {_shown(raw)}")
-        return None
-    name = name.strip()
-    if not name or len(name) > MAX_TEXT:
-        col.problem(path, "a medication name must be 1 to 500 characters")
-        return None
-    if (unsafe := _unsafe_character(name)) is not None:
-        col.problem(path, unsafe)
-        return None
-    info = _lookup_drug(name)
-    if info is None:
-        col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
-        return Medication(name=name, last_dose_hours=hours)
-    return Medication(name=name, generic=info.generic, classes=info.classes, last_dose_hours=hours)
-
-
-def _lookup_drug(name: str) -> vocab.DrugInfo | None:
-    table = vocab.medications()
-    words = vocab.fold(name).split(" ")
-    # "furosemide 40 mg IV twice daily" -> the longest leading run of words that names a drug
-    for end in range(min(len(words), 4), 0, -1):
-        info = table.get(" ".join(words[:end]))
-        if info is not None:
-            return info
-    return None
-
-
-def _context(raw: Any, col: _Collector) -> Context:
-    if raw is None:
-        return Context()
-    if not isinstance(raw, Mapping):
-        col.problem("context", f"expected a mapping, got a {type(raw).__name__}")
-        return Context()
-    values: dict[str, Any] = {}
-    for key, item in raw.items():
-        path = f"context.{_key(key)}"
-        if key not in CONTEXT_KEYS:
-            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS))
-        elif item is None:
-            continue
-        elif key == "bp":
-            values["bp"] = _blood_pressure(item, col)
-        elif key == "volume":
-            volume = _VOLUME.get(str(item).strip().lower())
-            if volume is None:
-                col.problem(path, f"{_shown(item)} is not one of low, normal, high, unknown")
-            else:
-                values["volume"] = volume
-        elif key == "meds":
-            items = [m.strip() for m in item.split(",")] if isinstance(item, str) else item
-            if not isinstance(items, list):
-                col.problem(path, "expected a list of medications")
-                continue
-            if len(items) > MAX_MEDICATIONS:
-                col.problem(path, f"{len(items)} medications is more than the {MAX_MEDICATIONS} notegen reads")
-                continue
-            meds = [_medication(m, f"{path}[{i}]", col) for i, m in enumerate(items)]
-            values["meds"] = tuple(m for m in meds if m is not None)
-        elif key == "findings":
-            items = [f.strip() for f in item.split(",")] if isinstance(item, str) else item
-            if not isinstance(items, list):
-                col.problem(path, "expected a list of findings")
-                continue
-            found: list[str] = []
-            table = vocab.findings()
-            for i, text in enumerate(items):
-                if not isinstance(text, str) or not text.strip() or len(text) > MAX_TEXT:
-                    col.problem(f"{path}[{i}]", "a finding must be a short text such as vomiting")
-                    continue
-                if (unsafe := _unsafe_character(text)) is not None:
-                    col.problem(f"{path}[{i}]", unsafe)
-                    continue
-                info = table.get(vocab.fold(text))
-                if info is None:
-                    col.notices.append(
-                        f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with"
-                    )
-                elif info.id not in found:
-                    found.append(info.id)
-            values["findings"] = tuple(found)
-    return Context(**values)
-
-
 def validate_case(
     data: Any,
     *,
@@ -599,8 +359,8 @@ def validate_case(
     entries: dict[str, list[dict[str, Any]]] = {}
     for section in LAB_SECTIONS:
         _lab_section(section, data.get(section), col, entries)
-    patient = _patient(data.get("patient"), col)
-    context = _context(data.get("context"), col)
+    patient = validate_patient(data.get("patient"), col)
+    context = validate_context(data.get("context"), col)
     if col.problems:
         raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
     current, earlier = _choose_current(entries, window_hours, col)

@@ -74,7 +74,8 @@ def _bounded_sandbox() -> type[jinja2.Environment]:
     The sandbox already refuses Python internals and caps `range`; CPU time spent in nested
     loops is not bounded here (a service's template is its own configuration).
     """
-    from jinja2.sandbox import ImmutableSandboxedEnvironment, SecurityError
+    from jinja2.exceptions import SecurityError
+    from jinja2.sandbox import ImmutableSandboxedEnvironment
 
     class BoundedSandbox(ImmutableSandboxedEnvironment):
         intercepted_binops = frozenset(["*", "**"])
