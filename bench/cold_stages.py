@@ -40,7 +40,7 @@ arguments = _plain_draft_arguments(["draft", sys.argv[1], "--format", "text"])
 lap("notegen.cli, reading the arguments")
 from notegen.drafting import Drafter, DraftOptions  # noqa: E402
 
-lap("import the models, calculations, reading and rule engine")
+lap("import the models, calculations and acid-base reading")
 from notegen.intake import read_case  # noqa: E402
 
 case = read_case(sys.argv[1])
@@ -49,7 +49,7 @@ drafter = Drafter()
 settings = drafter.settings
 lap("acid-base settings (rules/acid_base.yaml)")
 pack = drafter.alkalosis_pack
-lap("rule pack: read, validate, check, compile")
+lap("rule pack: import the engine; read, validate, check, compile")
 from notegen.acidbase import read_acid_base  # noqa: E402
 from notegen.calculations import compute_calculations  # noqa: E402
 from notegen.differential import evaluate_alkalosis  # noqa: E402
