@@ -115,8 +115,16 @@ class Assessment(BaseModel):
 
 def _warnings(case: Case, reading: AcidBaseReading) -> tuple[str, ...]:
     """What is missing or was not used, in words, without repeats."""
+    from .calculations import missing_calculations
+
     seen: list[str] = []
-    for text in (*reading.missing, *case.notices):
+    extra: list[str] = []
+    if case.chem.creatinine is not None:
+        # a creatinine without age or sex leaves the eGFR, and the GFR branch of the rules, open
+        egfr = missing_calculations(case).get("egfr")
+        if egfr is not None:
+            extra.append(f"eGFR {egfr}.")
+    for text in (*reading.missing, *extra, *case.notices):
         if text not in seen:
             seen.append(text)
     return tuple(seen)

@@ -581,4 +581,8 @@ def missing_calculations(case: Case, settings: AcidBaseSettings | None = None) -
     age = case.patient.age
     if "egfr" in out and age is not None and age < EGFR_MIN_AGE and usable(case.chem.creatinine):
         out["egfr"] = f"not calculated: age {age:g} years; CKD-EPI 2021 applies to adults only"
+    elif "egfr" in out and usable(case.chem.creatinine):
+        lacking = [word for word, value in (("age", age), ("sex", case.patient.sex)) if value is None]
+        if lacking:
+            out["egfr"] = f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} is not"
     return out

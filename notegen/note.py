@@ -26,7 +26,7 @@ from notegen.case import Case, Measurement, Medication
 from notegen.errors import TemplateError, UsageError
 from notegen.management import management_considerations
 from notegen.prose import draft_paragraph
-from notegen.render.filters import format_number, join_words, ph_text, trimmed_number
+from notegen.render.filters import format_number, join_words, ph_text, sentence_case, trimmed_number
 
 if TYPE_CHECKING:
     from notegen.drafting import DraftOptions
@@ -166,7 +166,7 @@ def note_context(assessment: Assessment, options: DraftOptions) -> dict[str, Any
         "values": [_value_row(m, assessment.case) for m in assessment.case.measurements],
         "values_have_times": any(m.taken_at is not None for m in assessment.case.measurements),
         "context_items": _context_items(assessment.case),
-        "warnings": [_cap(text) for text in assessment.warnings],
+        "warnings": [sentence_case(text) for text in assessment.warnings],
         "calculations": [_calculation_row(c) for c in shown],
         "other_calculations": [_calculation_row(c) for c in others],
         "alkalosis_worked_up": worked_up,
@@ -187,12 +187,8 @@ def note_context(assessment: Assessment, options: DraftOptions) -> dict[str, Any
     }
 
 
-def _cap(text: str) -> str:
-    return text[:1].upper() + text[1:]
-
-
 def _labelled(row: dict[str, Any]) -> dict[str, Any]:
-    return {**row, "label": _cap(str(row["label"]))}
+    return {**row, "label": sentence_case(str(row["label"]))}
 
 
 def _span(low: float, high: float, unit: str, digits: int = 1) -> str:
@@ -214,7 +210,7 @@ def _field_label(field: str, case: Case) -> str:
     if field in _GAS_LABELS:
         return _GAS_LABELS[field]
     info = vocabulary.fields().get(field)
-    return _cap(info.label if info else field)
+    return sentence_case(info.label if info else field)
 
 
 def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
@@ -319,7 +315,7 @@ def _calculation_row(calculation: Calculation) -> dict[str, str]:
     inputs = ", ".join(f"{name} {value}" for name, value in calculation.inputs.items())
     return {
         "name": calculation.name,
-        "label": CALCULATION_LABELS.get(calculation.name, _cap(calculation.name.replace("_", " "))),
+        "label": CALCULATION_LABELS.get(calculation.name, sentence_case(calculation.name.replace("_", " "))),
         "result": result,
         "formula": calculation.formula,
         "inputs": inputs,
@@ -350,7 +346,7 @@ def _by_strength(evidence: Sequence[Evidence]) -> list[Evidence]:
 def _cause_row(cause: CauseEntry) -> dict[str, Any]:
     return {
         "cause": cause.cause,
-        "label": _cap(cause.label),
+        "label": sentence_case(cause.label),
         "tier": cause.tier,
         "supporting": [_evidence_row(e) for e in _by_strength(cause.supporting)],
         "opposing": [_evidence_row(e) for e in _by_strength(cause.opposing)],

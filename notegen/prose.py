@@ -14,7 +14,7 @@ from collections.abc import Sequence
 from notegen.acidbase_model import AcidBaseReading, Disorder, ExpectedRange
 from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry
 from notegen.calculations import Calculation
-from notegen.render.filters import join_words, ph_text, trimmed_number
+from notegen.render.filters import join_words, ph_text, sentence_case, trimmed_number
 
 __all__ = ["draft_paragraph"]
 
@@ -97,15 +97,11 @@ def _clause(text: str) -> str:
     return _inline(text).rstrip().rstrip(".").rstrip()
 
 
-def _cap(text: str) -> str:
-    return text[:1].upper() + text[1:]
-
-
 def _sentence(text: str) -> str:
     text = text.strip()
     if not text:
         return ""
-    text = _cap(text)
+    text = sentence_case(text)
     return text if text[-1] in ".!?" else text + "."
 
 
@@ -378,7 +374,7 @@ def _other_disorders(reading: AcidBaseReading, said: set[str]) -> list[str]:
         if basis.certainty == "established":
             sentences.append(f"There is also {_article(word)} {word} ({_clause(basis.basis)}).")
         else:
-            sentences.append(f"{_cap(_article(word))} {word} may also be present ({_clause(basis.basis)}).")
+            sentences.append(f"{sentence_case(_article(word))} {word} may also be present ({_clause(basis.basis)}).")
     return sentences
 
 
@@ -507,7 +503,7 @@ def _causes(differential: Sequence[CauseEntry], maintenance: Sequence[FactorEntr
     labels = [_inline(cause.label) for cause in named] + others
     if likely and possible:
         verb = "is" if len(possible) == 1 else "are"
-        sentences.append(f"{_cap(_list(labels))} {verb} also possible.")
+        sentences.append(f"{sentence_case(_list(labels))} {verb} also possible.")
     elif len(possible) == 1:
         only = possible[0]
         findings = _findings(only.supporting)
@@ -544,10 +540,10 @@ def _against(differential: Sequence[CauseEntry]) -> list[str]:
     reasons = [_clause(_strongest(cause.opposing, 1)[0].text) for cause in chosen]
     labels = [_inline(cause.label) for cause in chosen]
     if len(chosen) == 1:
-        return [f"{_cap(labels[0])} is unlikely ({reasons[0]})."]
+        return [f"{sentence_case(labels[0])} is unlikely ({reasons[0]})."]
     if reasons[0] == reasons[1]:
-        return [f"{_cap(labels[0])} and {labels[1]} are unlikely ({reasons[0]})."]
-    return [f"{_cap(labels[0])} is unlikely ({reasons[0]}), as is {labels[1]} ({reasons[1]})."]
+        return [f"{sentence_case(labels[0])} and {labels[1]} are unlikely ({reasons[0]})."]
+    return [f"{sentence_case(labels[0])} is unlikely ({reasons[0]}), as is {labels[1]} ({reasons[1]})."]
 
 
 def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:

@@ -279,3 +279,13 @@ def test_chloride_deficit_only_below_target() -> None:
 )
 def test_format_value(value: float, unit: str, text: str) -> None:
     assert format_value(value, unit) == text
+
+
+def test_missing_egfr_says_which_of_age_and_sex_is_lacking() -> None:
+    from notegen.calculations import missing_calculations
+
+    case = Case(patient=Patient(age=66), chem=Chem(creatinine=1.4))
+    assert missing_calculations(case)["egfr"] == (
+        "not calculated: serum creatinine is given, but the patient's sex is not"
+    )
+    assert missing_calculations(Case())["egfr"] == "needs serum creatinine, age and sex"

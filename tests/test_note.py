@@ -418,3 +418,10 @@ def test_context_is_plain_data() -> None:
             assert value is None or isinstance(value, str | int | float | bool), type(value)
 
     walk(context)
+
+
+def test_a_word_like_egfr_keeps_its_case_at_the_start_of_a_line() -> None:
+    from notegen.render.filters import sentence_case
+
+    assert sentence_case("eGFR (serum creatinine, age and sex)") == "eGFR (serum creatinine, age and sex)"
+    assert sentence_case("urine chloride") == "Urine chloride"

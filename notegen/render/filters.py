@@ -43,6 +43,13 @@ def ph_text(value: float) -> str:
     return f"{value:.2f}" if round(value, 2) == round(value, 3) else f"{value:.3f}"
 
 
+def sentence_case(text: str) -> str:
+    """Capitalise the first letter, but leave words such as "eGFR", "pH" and "mEq" as they are."""
+    if text[1:2].isupper():
+        return text
+    return text[:1].upper() + text[1:]
+
+
 def join_words(items: Iterable[object], conj: str = "and") -> str:
     """Join items as an English list without the serial comma: "a, b and c".
 
