@@ -7,6 +7,7 @@ value that fits another unit better is refused with the suggestion, never conver
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from datetime import datetime, timedelta
 from typing import Any
@@ -226,7 +227,46 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
                 source=col.source(key_path),
             )
         )
+    if section == "gas" and not _unit_given(values.get("pco2")):
+        _check_pco2_unit(out, f"{path}.pco2", col)
     return None if bad_time else out
+
+
+def _unit_given(raw: Any) -> bool:
+    if isinstance(raw, str):
+        match = _VALUE_TEXT.match(raw)
+        return bool(match and match["unit"])
+    return isinstance(raw, Mapping) and bool(raw.get("unit"))
+
+
+def _check_pco2_unit(gas: dict[str, Any], path: str, col: _Collector) -> None:
+    """Refuse a bare PCO2 that only fits its own pH and bicarbonate when read in the other unit.
+
+    A kPa value typed into a conventional case (6.4 for 48 mmHg) is still "plausible" in mmHg;
+    Henderson-Hasselbalch (pK 6.1, solubility 0.0307) tells the two apart. Never converted
+    silently: the user is asked to give the unit.
+    """
+    ph, pco2, hco3 = gas.get("ph"), gas.get("pco2"), gas.get("hco3")
+    if ph is None or pco2 is None or hco3 is None or pco2 <= 0 or hco3 <= 0:
+        return
+    default = u.default_unit("gas.pco2", col.system)
+    other = "kPa" if default == "mmHg" else "mmHg"
+    reported = u.from_canonical("gas.pco2", pco2, default)
+    alternative = u.to_canonical("gas.pco2", reported, other)
+
+    def calculated_ph(pco2_mmhg: float) -> float:
+        return 6.1 + math.log10(hco3 / (0.0307 * pco2_mmhg))
+
+    low, high = vocab.fields()["gas.pco2"].low, vocab.fields()["gas.pco2"].high
+    if not low <= alternative <= high:
+        return
+    if abs(calculated_ph(pco2) - ph) > 0.1 and abs(calculated_ph(alternative) - ph) <= 0.05:
+        col.problem(
+            path,
+            f"{_fmt(reported)} {default} does not fit pH {_fmt(ph)} and bicarbonate {_fmt(hco3)}, but "
+            f"{_fmt(reported)} {other} ({_fmt(alternative)} mmHg) would; give the unit explicitly "
+            f'(e.g. "{_fmt(reported)} {other}")',
+        )
 
 
 _MODELS: dict[str, type[Gas] | type[Chem] | type[Urine]] = {"gas": Gas, "chem": Chem, "urine": Urine}

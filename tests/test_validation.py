@@ -146,3 +146,21 @@ def test_serial_results_need_times() -> None:
 
 def test_too_many_medications_is_refused_quickly() -> None:
     assert "5000 medications is more than the 200" in _problem({"context": {"meds": ["furosemide"] * 5000}})
+
+
+def test_kpa_typed_into_a_conventional_case_is_refused_not_converted() -> None:
+    # 6.4 "mmHg" is inside the plausibility bounds, but with pH 7.52 and HCO3 38 only 6.4 kPa
+    # (48 mmHg) fits Henderson-Hasselbalch: ask for the unit rather than guess it.
+    assert _problem({"gas": {"ph": 7.52, "pco2": 6.4, "hco3": 38}}) == (
+        "case.yaml: field `gas.pco2`: 6.4 mmHg does not fit pH 7.52 and bicarbonate 38, but 6.4 kPa "
+        '(48 mmHg) would; give the unit explicitly (e.g. "6.4 kPa")'
+    )
+
+
+def test_an_explicit_pco2_unit_is_taken_as_given() -> None:
+    case = validate_case({"gas": {"ph": 7.52, "pco2": "6.4 kPa", "hco3": 38}})
+    assert case.gas.pco2 == pytest.approx(48.0, abs=0.05)
+
+
+def test_mmhg_typed_into_an_si_case_is_refused() -> None:
+    assert "did you mean 48 mmHg?" in _problem({"units": "si", "gas": {"ph": 7.52, "pco2": 48, "hco3": 38}})

@@ -100,7 +100,13 @@ def read_fhir(data: dict[str, Any], *, source: str) -> ParsedInput:
     fails the FHIR model check, when the bundle type is not one notegen reads, or when the
     observations belong to more than one patient.
     """
-    r4b = importlib.import_module("fhir.resources.R4B")
+    try:
+        r4b = importlib.import_module("fhir.resources.R4B")
+    except ModuleNotFoundError:
+        raise InputError(
+            f"{source}: reading FHIR needs the fhir.resources package, which is not installed "
+            "(pip install fhir.resources, or reinstall notegen)"
+        ) from None
     return _FhirReader(r4b, load_loinc_table(), source).read(data)
 
 
