@@ -14,15 +14,18 @@ from __future__ import annotations
 
 import re
 
-# Characters that can open or close inline syntax anywhere in a line.
-_ALWAYS = frozenset("\\`*_[]|")
-_WHITESPACE_RUN = re.compile(r"\s+")
+# Characters that can open or close inline syntax anywhere in a line; `<` only before a `>`.
+# One substitution over the whole value: the filter runs about 160 times a note.
+_ALWAYS = re.compile(r"[\\`*_\[\]|]")
+_ALWAYS_OR_ANGLE = re.compile(r"[\\`*_\[\]|<]")
+_BACKSLASHED = r"\\\g<0>"
 # Entity and numeric references (`&amp;`, `&#35;`, `&#x23;`) would be decoded.
 _ENTITY = re.compile(r"&(?=#[0-9]{1,7};|#[xX][0-9a-fA-F]{1,6};|[A-Za-z][A-Za-z0-9]{1,31};)")
 # Block syntax that only counts at the start of a line. A value may be placed
 # at the start of a line or list item, so its own start is treated as one.
 _ORDERED_MARKER = re.compile(r"^(\d{1,9})([.)])(?=\s|$)")
 _HEADING_MARKER = re.compile(r"^#{1,6}(?=\s|$)")
+_LINE_START_MARKS = frozenset(">-+=~#")
 
 
 def escape_markdown(value: object) -> str:
@@ -34,24 +37,27 @@ def escape_markdown(value: object) -> str:
     if value is None:
         # Printing "None" in a note would hide a missing value; say so instead.
         raise TypeError("md: the value is missing (None); test for it in the template before printing")
-    text = _WHITESPACE_RUN.sub(" ", str(value)).strip()
+    # str.split() splits on the characters `\s` matches (str.isspace), and drops the ends.
+    text = " ".join(str(value).split())
     if not text:
         return ""
-    out: list[str] = []
     # `<` starts raw HTML or an autolink only when a `>` follows it; a bare
     # "<5" (a lab result below the limit) is left as typed.
     closing = text.rfind(">")
-    for index, char in enumerate(text):
-        if char in _ALWAYS or (char == "<" and index < closing):
-            out.append("\\" + char)
-        else:
-            out.append(char)
-    escaped = _ENTITY.sub(r"\\&", "".join(out))
+    if closing > 0:
+        before, after = text[:closing], text[closing:]
+        escaped = _ALWAYS_OR_ANGLE.sub(_BACKSLASHED, before) + _ALWAYS.sub(_BACKSLASHED, after)
+    else:
+        escaped = _ALWAYS.sub(_BACKSLASHED, text)
+    if "&" in escaped:
+        escaped = _ENTITY.sub(r"\\&", escaped)
     return _escape_line_start(escaped)
 
 
 def _escape_line_start(text: str) -> str:
     first = text[0]
+    if first not in _LINE_START_MARKS and not first.isdigit():
+        return text  # the common case: no block syntax can start here
     if first == ">":
         return "\\" + text
     if first in "-+=" and (len(text) == 1 or text[1] in f" {first}"):
