@@ -33,11 +33,24 @@ def make_environment(template_dirs: Sequence[Path], *, sandboxed: bool) -> jinja
 
     Strict about undefined names; `None` cannot be printed by accident.
     """
-    folders = tuple(Path(folder).resolve() for folder in template_dirs)
-    for folder in folders:
+    given = tuple(Path(folder) for folder in template_dirs)
+    # Absolute folders are resolved and checked once per process (a note is rendered per case, and
+    # that cost several `stat` calls each time); a relative one depends on the working directory.
+    folders = _checked(given) if all(folder.is_absolute() for folder in given) else _check(given)
+    return _build_environment(folders, sandboxed)
+
+
+@functools.lru_cache(maxsize=16)
+def _checked(folders: tuple[Path, ...]) -> tuple[Path, ...]:
+    return _check(folders)  # a missing folder raises, and is not cached
+
+
+def _check(folders: tuple[Path, ...]) -> tuple[Path, ...]:
+    resolved = tuple(folder.resolve() for folder in folders)
+    for folder in resolved:
         if not folder.is_dir():
             raise TemplateError("template folder does not exist", template=str(folder))
-    return _build_environment(folders, sandboxed)
+    return resolved
 
 
 @functools.lru_cache(maxsize=16)
