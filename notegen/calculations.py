@@ -8,6 +8,7 @@ and source, so a note can show its working.
 
 from __future__ import annotations
 
+import functools
 import math
 from decimal import ROUND_HALF_UP, Decimal
 from typing import NamedTuple
@@ -240,8 +241,20 @@ def round_half_up(value: float, digits: int) -> float:
     Python's `round` works on the binary value (8.25 -> 8.2, 7.485 -> 7.48), so a figure rounded
     with it could read differently in the reading's sentences than in the note's tables.
     """
-    exact = Decimal(repr(value)).quantize(Decimal(1).scaleb(-digits), rounding=ROUND_HALF_UP)
+    text = repr(value)
+    if type(value) is float and "e" not in text:
+        point = text.find(".")
+        if point >= 0 and len(text) - point - 1 <= digits:
+            # Already at most `digits` decimals (most lab values): quantizing would be exact and
+            # give back this same float, so the Decimal round trip is skipped.
+            return value
+    exact = Decimal(text).quantize(_quantum(digits), rounding=ROUND_HALF_UP)
     return float(exact)
+
+
+@functools.cache
+def _quantum(digits: int) -> Decimal:
+    return Decimal(1).scaleb(-digits)
 
 
 def format_value(value: float, unit: str = "") -> str:
