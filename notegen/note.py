@@ -124,14 +124,16 @@ def render_markdown(assessment: Assessment, options: DraftOptions, *, template: 
     from notegen.render.templating import make_environment, render_template
     from notegen.resources import templates_dir
 
-    context = note_context(_completed(assessment), options)
     if template is None:
+        # The shipped templates do not read `assessment` (the whole dump, ~0.14 ms a note).
+        context = note_context(_completed(assessment), options, with_assessment=False)
         env = make_environment([templates_dir()], sandboxed=False)
         text = render_template(env, BRIEF_TEMPLATE if options.brief else NOTE_TEMPLATE, context)
     else:
         path = Path(template)
         if not path.is_file():
             raise TemplateError("template file not found", template=str(template))
+        context = note_context(_completed(assessment), options)
         # The service's folder first, then the shipped one, so its template can include our parts.
         env = make_environment([path.resolve().parent, templates_dir()], sandboxed=True)
         text = render_template(env, path, context)
@@ -146,12 +148,18 @@ def note_title(case: Case) -> str:
 # The template context --------------------------------------------------------------------------
 
 
-def note_context(assessment: Assessment, options: DraftOptions) -> dict[str, Any]:
-    """Everything a note template may use, as plain data; text is raw and escaped by the template."""
+def note_context(
+    assessment: Assessment, options: DraftOptions, *, with_assessment: bool = True
+) -> dict[str, Any]:
+    """Everything a note template may use, as plain data; text is raw and escaped by the template.
+
+    `with_assessment=False` leaves out `assessment`, the whole assessment as JSON data, for
+    templates known not to read it; a service's template always gets it.
+    """
     reading = assessment.acid_base
     worked_up = assessment.chloride_class is not None
     shown, others = _split_calculations(assessment)
-    return {
+    context: dict[str, Any] = {
         "title": TITLE,
         "label": assessment.case.label,
         "options": {
@@ -159,7 +167,6 @@ def note_context(assessment: Assessment, options: DraftOptions) -> dict[str, Any
             "explain": options.explain,
             "format": str(options.output_format),
         },
-        "assessment": assessment.model_dump(mode="json", by_alias=True),
         "paragraph": assessment.paragraph or draft_paragraph(assessment),
         "critical_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level == "critical"],
         "other_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level != "critical"],
@@ -185,6 +192,9 @@ def note_context(assessment: Assessment, options: DraftOptions) -> dict[str, Any
             "anion_gap": _span(*reading.anion_gap_reference, "mmol/L"),
         },
     }
+    if with_assessment:
+        context["assessment"] = assessment.model_dump(mode="json", by_alias=True)
+    return context
 
 
 def _labelled(row: dict[str, Any]) -> dict[str, Any]:
