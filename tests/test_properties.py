@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 from datetime import datetime, timedelta
 from functools import cache
 from typing import Any
@@ -28,7 +29,7 @@ from notegen import vocabulary as vocab
 from notegen.assessment import Assessment
 from notegen.cli import app
 from notegen.drafting import Drafter, DraftOptions
-from notegen.validation import LAB_SECTIONS, validate_case
+from notegen.validation import LAB_SECTIONS, pco2_fits_other_unit, validate_case
 
 FORMATS = ("markdown", "text", "html", "json")
 DIURETIC_CLASSES = frozenset({"loop_diuretic", "thiazide_diuretic", "potassium_sparing_diuretic"})
@@ -100,6 +101,16 @@ def lab_value(draw: st.DrawFn, field: str, system: str, low: float | None = None
     return f"{shown} {unit}".strip()
 
 
+def _plain_number(value: Any) -> float | None:
+    """The number of a generated value in any of its forms (bare, "2.6 mmol/L", mapping), or None."""
+    if isinstance(value, dict):
+        value = value.get("value")
+    if isinstance(value, str):
+        match = re.match(r"\s*([-+]?[0-9.]+)", value)
+        return float(match.group(1)) if match else None
+    return float(value) if isinstance(value, int | float) else None
+
+
 @st.composite
 def section(draw: st.DrawFn, name: str, system: str) -> dict[str, Any]:
     fields = draw(st.lists(st.sampled_from(LAB_SECTIONS[name]), unique=True, max_size=len(LAB_SECTIONS[name])))
@@ -115,6 +126,12 @@ def section(draw: st.DrawFn, name: str, system: str) -> dict[str, Any]:
             values.update(ph=ph, pco2=pco2 if system == "conventional" else f"{pco2} mmHg", hco3=hco3)
     if name == "gas" and draw(st.booleans()):
         values["sample"] = draw(st.sampled_from(["arterial", "venous", "Arterial"]))
+    if name == "gas" and isinstance(values.get("pco2"), int | float):
+        # a bare PCO2 that fits its gas only in the other unit is refused by validation (it asks for
+        # the unit), so such a gas is not a valid case
+        ph, hco3 = _plain_number(values.get("ph")), _plain_number(values.get("hco3"))
+        if ph is not None and hco3 is not None:
+            assume(pco2_fits_other_unit(ph, float(values["pco2"]), hco3, system) is None)
     return values
 
 
@@ -141,8 +158,9 @@ def medication(draw: st.DrawFn, allow_diuretics: bool = True) -> Any:
 # Any text a case file may hold, template syntax and markup included; not control characters or
 # bidirectional overrides, which validation refuses (tests/bad_inputs covers those).
 label_text = st.text(
-    alphabet=st.characters(exclude_categories=("Cs", "Cc"), exclude_characters="\u202a\u202b\u202c\u202d\u202e"
-                           "\u2066\u2067\u2068\u2069"),
+    alphabet=st.characters(
+        exclude_categories=("Cs", "Cc"), exclude_characters="\u202a\u202b\u202c\u202d\u202e\u2066\u2067\u2068\u2069"
+    ),
     min_size=1,
     max_size=60,
 )
