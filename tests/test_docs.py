@@ -42,3 +42,21 @@ def test_every_sample_the_readme_names_exists() -> None:
     for word in README.read_text(encoding="utf-8").split():
         if word.startswith("samples/") and not word.endswith("/"):
             assert (root / word).exists(), word
+
+
+def test_readme_console_examples_print_what_the_readme_shows(tmp_path: Path) -> None:
+    # Each ```console block: "$ notegen ..." then the exact output (stdout and stderr together).
+    import shlex
+
+    text = README.read_text(encoding="utf-8")
+    blocks = [block.split("```", 1)[0] for block in text.split("```console\n")[1:]]
+    assert blocks, "the README shows no example output"
+    (tmp_path / "typo.yaml").write_text("chem:\n  creatinine: 130 mg/dL\n", encoding="utf-8")
+    for block in blocks:
+        command, _, shown = block.partition("\n")
+        arguments = shlex.split(command.removeprefix("$ notegen "))
+        arguments = [str(README.parent / a) if a.startswith("samples/") else a for a in arguments]
+        arguments = [str(tmp_path / a) if a == "typo.yaml" else a for a in arguments]
+        result = CliRunner().invoke(app, arguments)
+        printed = (result.stdout + result.stderr).replace(str(tmp_path) + "/", "")
+        assert printed.rstrip("\n") == shown.rstrip("\n"), command
