@@ -15,6 +15,7 @@ from .acidbase_model import AcidBaseReading
 from .alerts import Alert
 from .calculations import Calculation
 from .case import Case
+from .trend import TrendSeries
 
 SCHEMA_VERSION = "1.0"
 
@@ -109,6 +110,7 @@ class Assessment(BaseModel):
     next_tests: tuple[SuggestedTest, ...] = ()
     management: tuple[str, ...] = ()
     warnings: tuple[str, ...] = ()  # missing data and input notices, in words
+    trend: tuple[TrendSeries, ...] = ()  # serial results, oldest first, for analytes measured twice or more
     trace: tuple[TraceEntry, ...] = ()
     paragraph: str = ""  # the assessment paragraph as drafted
 

@@ -17,6 +17,7 @@ from .acidbase_model import AcidBaseReading
 from .assessment import Assessment, _warnings
 from .calculations import compute_calculations
 from .case import Case
+from .trend import build_trend
 
 if TYPE_CHECKING:
     from .engine import RulePack
@@ -80,6 +81,7 @@ class Drafter:
             next_tests=rules.next_tests if rules is not None else (),
             trace=rules.trace if rules is not None else (),
             warnings=_warnings(case, reading),
+            trend=build_trend(case),
         )
         from .note import complete_assessment
 

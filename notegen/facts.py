@@ -129,6 +129,15 @@ def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
     return facts
 
 
+def urine_chloride_range(case: Case) -> dict[str, Fact]:
+    """The lowest and highest urine chloride across serial samples (a swing marks an intermittent diuretic)."""
+    values = [u.cl for u in (*case.earlier_urine, case.urine) if u.cl is not None]
+    if len(values) < 2:
+        missing = MissingFact("fewer than two urine chloride results")
+        return {"urine_cl_lowest": missing, "urine_cl_highest": missing}
+    return {"urine_cl_lowest": NumberFact(min(values), "mmol/L"), "urine_cl_highest": NumberFact(max(values), "mmol/L")}
+
+
 def derive_facts(
     case: Case,
     reading: AcidBaseReading,
@@ -172,6 +181,7 @@ def derive_facts(
         facts["bp_reading"] = TextFact(f"{context.bp.systolic}/{context.bp.diastolic} mmHg")
     else:
         facts["systolic_bp"] = facts["diastolic_bp"] = facts["bp_reading"] = MissingFact()
+    facts.update(urine_chloride_range(case))
     facts["volume"] = TextFact(context.volume) if context.volume != "unknown" else MissingFact()
     for finding in FINDINGS:
         facts[finding] = BooleanFact(finding in context.findings)

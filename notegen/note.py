@@ -27,6 +27,7 @@ from notegen.errors import TemplateError, UsageError
 from notegen.management import management_considerations
 from notegen.prose import draft_paragraph
 from notegen.render.filters import format_number, join_words, ph_text, sentence_case, trimmed_number
+from notegen.trend import TrendSeries
 
 if TYPE_CHECKING:
     from notegen.drafting import DraftOptions
@@ -148,6 +149,23 @@ def note_title(case: Case) -> str:
 # The template context --------------------------------------------------------------------------
 
 
+def _trend_row(series: TrendSeries) -> dict[str, str]:
+    """One analyte as "7.48 (06:00) -> 7.53 (14:00)": value, then time of day, date when it changes."""
+    parts: list[str] = []
+    last_day = None
+    for point in series.points:
+        value = ph_text(point.value) if series.field.endswith(".ph") else trimmed_number(point.value, 1)
+        if point.taken_at is None:
+            parts.append(value)
+            continue
+        day = point.taken_at.date()
+        when = point.taken_at.strftime("%H:%M") if day == last_day else point.taken_at.strftime("%Y-%m-%d %H:%M")
+        last_day = day
+        parts.append(f"{value} ({when})")
+    unit = f" {series.unit}" if series.unit else ""
+    return {"label": series.label, "unit": unit.strip(), "text": " \u2192 ".join(parts) + unit}
+
+
 def note_context(
     assessment: Assessment, options: DraftOptions, *, with_assessment: bool = True
 ) -> dict[str, Any]:
@@ -172,6 +190,7 @@ def note_context(
         "other_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level != "critical"],
         "values": [_value_row(m, assessment.case) for m in assessment.case.measurements],
         "values_have_times": any(m.taken_at is not None for m in assessment.case.measurements),
+        "trend": [_trend_row(t) for t in assessment.trend],
         "context_items": _context_items(assessment.case),
         "warnings": [sentence_case(text) for text in assessment.warnings],
         "calculations": [_calculation_row(c) for c in shown],

@@ -109,7 +109,7 @@ def allowed_numbers(assessment: Assessment) -> set[float]:
         elif isinstance(value, str) and _WORKING_TEXT.search(path):
             allowed |= set(_numbers(value))  # 3. WORKING and 5. CITATIONS
         elif isinstance(value, str) and path.endswith(".taken_at"):
-            allowed |= {abs(n) for n in _numbers(value)}  # 1. MEASURED: dates and times of results
+            allowed |= {abs(n) for n in _numbers(value.replace("T", " "))}  # 1. MEASURED: dates and times of results
     case = assessment.case
     for text in (case.label or "", *(med.name for med in case.context.meds), *case.notices):
         allowed |= {*_numbers(text), *(abs(n) for n in _numbers(text))}  # 8. INPUT TEXT
