@@ -51,7 +51,26 @@ def draft_paragraph(assessment: Assessment) -> str:
     sentences += _other_disorders(reading, said)
     sentences += _alkalosis(assessment)
     sentences += _next_tests(assessment)
-    return " ".join(sentence for sentence in sentences if sentence)
+    return _with_reported_kpa(" ".join(sentence for sentence in sentences if sentence), assessment)
+
+
+def _with_reported_kpa(text: str, assessment: Assessment) -> str:
+    """Where the PCO2 was reported in kPa, the gas values give it as reported, then in mmHg."""
+    reading = assessment.acid_base
+    if reading.pco2 is None:
+        return text
+    reported = [
+        m
+        for m in assessment.case.measurements
+        if m.field == "gas.pco2" and m.reported_unit == "kPa" and abs(m.value - reading.pco2) < 0.05
+    ]
+    if not reported:
+        return text
+    shown = f"{trimmed_number(reported[-1].reported_value, 2)} kPa ({_mmhg(reading.pco2)})"
+    for name in ("PaCO2", "PCO2"):
+        text = text.replace(f"({name} {_mmhg(reading.pco2)},", f"({name} {shown},", 1)
+        text = text.replace(f", {name} {_mmhg(reading.pco2)},", f", {name} {shown},", 1)
+    return text
 
 
 # Numbers ---------------------------------------------------------------------------------------

@@ -207,7 +207,7 @@ def test_ketoacidosis_hides_an_alkalosis() -> None:
 def test_venous_gas_softens_the_compensation_verdict() -> None:
     text = draft_paragraph(sample("venous_si_units"))
     assert text.startswith(
-        "The venous gas (pH 7.46, PCO2 45.8 mmHg, HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
+        "The venous gas (pH 7.46, PCO2 6.1 kPa (45.8 mmHg), HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
         "The venous PCO2 of 45.8 mmHg would fit the 43.6–47.6 mmHg that the 0.7 rule predicts, but a venous "
         "PCO2 cannot confirm compensation; an arterial gas would settle it if that matters."
     )
@@ -633,3 +633,8 @@ def test_any_gas_reads_as_sentences_with_sensible_numbers(
     text = draft_paragraph(assess(data))
     assert_well_formed(text)
     assert "pH " in text
+
+
+def test_a_pco2_reported_in_kpa_is_given_as_reported_then_in_mmhg() -> None:
+    text = draft_paragraph(assess({"units": "si", "gas": {"sample": "arterial", "ph": 7.52, "pco2": 6.4, "hco3": 38}}))
+    assert text.startswith("The arterial gas (pH 7.52, PaCO2 6.4 kPa (48 mmHg), HCO3 38 mmol/L)")
