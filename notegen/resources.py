@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from functools import lru_cache
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
     from yaml import SafeLoader
@@ -46,3 +46,12 @@ def safe_yaml_loader() -> type[SafeLoader]:
     import yaml
 
     return getattr(yaml, "CSafeLoader", yaml.SafeLoader)
+
+
+def read_yaml_safely(stream: Any) -> Any:
+    """Parse one YAML document from text or a stream with `safe_yaml_loader()`: plain types only."""
+    loader = safe_yaml_loader()(stream)
+    try:
+        return loader.get_single_data()
+    finally:
+        loader.dispose()

@@ -11,9 +11,7 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-import yaml
-
-from .resources import rules_dir, safe_yaml_loader
+from .resources import read_yaml_safely, rules_dir
 
 
 @dataclass(frozen=True)
@@ -42,7 +40,7 @@ def fold(text: str) -> str:
 
 def _load(path: Path) -> dict[str, Any]:
     with path.open(encoding="utf-8") as handle:
-        data = yaml.load(handle, Loader=safe_yaml_loader())  # a safe loader: plain YAML types only
+        data = read_yaml_safely(handle)  # plain YAML types only
     if not isinstance(data, dict):
         raise ValueError(f"{path}: expected a mapping at the top")
     return data
