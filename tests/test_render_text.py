@@ -24,6 +24,10 @@ def test_headings_are_plain_lines() -> None:
     )
 
 
+def test_a_heading_that_holds_a_colon_gets_no_second_one() -> None:
+    assert markdown_to_text("### Gastric acid loss: likely\n\nBody.\n") == "Gastric acid loss: likely\n\nBody.\n"
+
+
 def test_inline_markup_leaves_no_markdown_symbols() -> None:
     source = (
         "Some **bold**, *em*, `code`, \\*starred\\*, &amp; a [link](https://example.org/x) "

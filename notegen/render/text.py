@@ -104,7 +104,8 @@ class _TextRenderer:
         text = _one_line(self.inline_of(node))
         if node.tag in ("h1", "h2"):
             text = _upper_case(text)
-        elif text and text[-1] not in ".:?!":
+        elif text and text[-1] not in ".:?!" and ":" not in text:
+            # "Gastric acid loss: likely" already reads as a lead-in; a second colon would not
             text += ":"
         return self.wrap(text, width)
 
