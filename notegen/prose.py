@@ -245,6 +245,14 @@ def _metabolic_primary(
             f"The {pco2} would fit the {span} that {rule} predicts, but a venous PCO2 cannot confirm "
             "compensation; an arterial gas would settle it if that matters.",
         ], False
+    if added is not None and reading.pco2 < expected.low:
+        said.add(added)
+        # Below a range that runs past what ventilation usually delivers (about 55 mmHg, Galla 2000).
+        return [
+            f"{gas} shows a primary {word}; the {pco2} is below the {span} that {rule} predicts, but "
+            f"near the usual ceiling of respiratory compensation, so an added {WORDS[added]} is possible, "
+            "not established."
+        ], False
     if added is not None:
         said.add(added)
         return [

@@ -638,3 +638,11 @@ def test_any_gas_reads_as_sentences_with_sensible_numbers(
 def test_a_pco2_reported_in_kpa_is_given_as_reported_then_in_mmhg() -> None:
     text = draft_paragraph(assess({"units": "si", "gas": {"sample": "arterial", "ph": 7.52, "pco2": 6.4, "hco3": 38}}))
     assert text.startswith("The arterial gas (pH 7.52, PaCO2 6.4 kPa (48 mmHg), HCO3 38 mmol/L)")
+
+
+def test_pco2_below_a_range_past_the_ceiling_is_not_said_to_lie_within_it() -> None:
+    # HCO3 52: the 0.7 rule (Berend 2014) predicts 57.6-61.6 mmHg, beyond the usual ceiling of about
+    # 55 mmHg (Galla 2000); PaCO2 53 is below the range but near the ceiling.
+    text = draft_paragraph(assess({"gas": {"sample": "arterial", "ph": 7.62, "pco2": 53, "hco3": 52}}))
+    assert "the PaCO2 of 53 mmHg is below the 57.6–61.6 mmHg that the 0.7 rule predicts, but near the usual" in text
+    assert "lies within" not in text
