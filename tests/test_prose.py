@@ -646,3 +646,22 @@ def test_pco2_below_a_range_past_the_ceiling_is_not_said_to_lie_within_it() -> N
     text = draft_paragraph(assess({"gas": {"sample": "arterial", "ph": 7.62, "pco2": 53, "hco3": 52}}))
     assert "the PaCO2 of 53 mmHg is below the 57.6–61.6 mmHg that the 0.7 rule predicts, but near the usual" in text
     assert "lies within" not in text
+
+
+@settings(max_examples=300, deadline=None, derandomize=True)
+@given(ph=st.floats(6.9, 7.7), pco2=st.floats(15, 110), hco3=st.floats(4, 60))
+def test_within_above_and_below_say_what_the_numbers_say(ph: float, pco2: float, hco3: float) -> None:
+    # Every "within / above / below the A–B mmHg" the paragraph states must hold for the PCO2 it names.
+    assume(pco2_fits_other_unit(round(ph, 3), pco2, hco3, "conventional") is None)
+    assessment = assess({"gas": {"sample": "arterial", "ph": round(ph, 3), "pco2": pco2, "hco3": hco3}})
+    text = draft_paragraph(assessment)
+    measured = assessment.acid_base.pco2
+    pattern = r"PaCO2 of ([\d.]+) mmHg (lies within|is above|is below) the ([\d.]+)–([\d.]+) mmHg"
+    for shown, relation, low, high in re.findall(pattern, text):
+        assert measured is not None and abs(float(shown) - measured) < 0.051
+        if relation == "lies within":
+            assert float(low) - 0.051 <= measured <= float(high) + 0.051, text
+        elif relation == "is above":
+            assert measured > float(high) - 0.051, text
+        else:
+            assert measured < float(low) + 0.051, text
