@@ -138,6 +138,12 @@ def render_markdown(assessment: Assessment, options: DraftOptions, *, template: 
         # The service's folder first, then the shipped one, so its template can include our parts.
         env = make_environment([path.resolve().parent, templates_dir()], sandboxed=True)
         text = render_template(env, path, context)
+        # Every note carries the shipped disclaimer: a service layout that leaves it out (or replaces
+        # the part with its own wording) gets it at the end.
+        shipped = make_environment([templates_dir()], sandboxed=False)
+        disclaimer = render_template(shipped, "parts/disclaimer_line.md.j2", context).strip()
+        if disclaimer not in text:
+            text = f"{text.rstrip()}\n\n{disclaimer}\n"
     # Templates may leave runs of blank lines around optional sections; in Markdown they mean nothing.
     return _BLANK_RUNS.sub("\n\n", text).strip("\n") + "\n"
 

@@ -76,3 +76,23 @@ def test_a_service_threshold_changes_the_note(tmp_path: Path) -> None:
     assert shipped.exit_code == 0 and ours.exit_code == 0, ours.output
     assert '"anion_gap_status": "normal"' in shipped.stdout
     assert '"anion_gap_status": "high"' in ours.stdout
+
+
+def test_the_example_service_folder_is_consistent_and_takes_effect() -> None:
+    # samples/service reads urine chloride below 25 mmol/L as responsive (some texts use 25; Luke & Galla 2012).
+    assert runner.invoke(app, ["check-pack", "samples/service"]).exit_code == 0
+    result = runner.invoke(
+        app,
+        [
+            "draft",
+            "samples/thiazide_and_vomiting.yaml",
+            "--brief",
+            "--rules",
+            "samples/service",
+            "--template",
+            "samples/service/consult_note.md.j2",
+        ],
+    )
+    assert result.exit_code == 0, result.output
+    assert result.stdout.startswith("# Nephrology consult: acid-base\n")
+    assert "Urine chloride 14 mmol/L, below 25 mmol/L, makes the alkalosis chloride-responsive." in result.stdout

@@ -376,6 +376,17 @@ def test_service_template_renders_in_the_sandbox(tmp_path: Path) -> None:
     assert text.startswith("ACID-BASE (METABOLIC_ALKALOSIS)")
 
 
+def test_service_template_without_the_disclaimer_gets_it_appended(tmp_path: Path) -> None:
+    template = tmp_path / "bare.md.j2"
+    template.write_text("{{ paragraph | md }}\n", encoding="utf-8")
+    note = render_note(sample("gastric_suction"), DraftOptions(), template=template)
+    assert note.startswith("The arterial gas (pH 7.49")
+    assert note.endswith(
+        "\n\n*Draft from the values given, for the responsible clinician to check against the chart and sign. "
+        "Reference ranges vary by laboratory; adults only; local protocols take precedence.*\n"
+    )
+
+
 def test_service_template_cannot_reach_python_internals(tmp_path: Path) -> None:
     template = tmp_path / "evil.md.j2"
     template.write_text("ok\n{{ paragraph.__class__.__mro__ }}\n", encoding="utf-8")
