@@ -15,6 +15,7 @@ from pydantic import BaseModel, ConfigDict
 Sex = Literal["female", "male"]
 Sample = Literal["arterial", "venous"]
 Volume = Literal["low", "normal", "high", "unknown"]
+Level = Literal["low", "normal", "high"]
 UnitSystem = Literal["conventional", "si"]
 
 # The unit every value is held in after validation (conventional units).
@@ -146,6 +147,11 @@ class Context(BaseModel):
     volume: Volume = "unknown"
     meds: tuple[Medication, ...] = ()
     findings: tuple[str, ...] = ()  # canonical finding ids, e.g. "vomiting"
+    # Results read against the laboratory's own range, since assays and units differ widely.
+    renin: Level | None = None
+    aldosterone: Level | None = None
+    diuretic_screen: Literal["positive", "negative"] | None = None  # urine screen for loop/thiazide drugs
+    cortisol_excess: bool | None = None  # the result of an evaluation for cortisol excess
 
 
 class Case(BaseModel):

@@ -52,7 +52,6 @@ NAME_FACTS = {
     "alkali_names": ("alkali",),
     "mineralocorticoid_names": ("mineralocorticoid", "glycyrrhizin"),
 }
-NOT_IN_CASE = "not held by the case model"
 
 
 def urine_calcium_creatinine_ratio(urine_calcium: float, urine_creatinine: float) -> float:
@@ -153,10 +152,14 @@ def derive_facts(
         "k": _number(case, "chem.k", chem.k, "mmol/L"),
         "mg": _number(case, "chem.mg", chem.mg, "mg/dL"),
         "hco3": NumberFact(reading.hco3, "mmol/L") if reading.hco3 is not None else MissingFact("no bicarbonate"),
-        "renin": MissingFact(NOT_IN_CASE),
-        "aldosterone": MissingFact(NOT_IN_CASE),
-        "cortisol_excess": MissingFact(NOT_IN_CASE),
-        "diuretic_screen_positive": MissingFact(NOT_IN_CASE),
+        "renin": TextFact(context.renin) if context.renin else MissingFact("not given"),
+        "aldosterone": TextFact(context.aldosterone) if context.aldosterone else MissingFact("not given"),
+        "cortisol_excess": (
+            BooleanFact(context.cortisol_excess) if context.cortisol_excess is not None else MissingFact("not given")
+        ),
+        "diuretic_screen_positive": (
+            BooleanFact(context.diuretic_screen == "positive") if context.diuretic_screen else MissingFact("not given")
+        ),
     }
     if reading.pco2 is not None and reading.sample in ("arterial", "unstated"):
         facts["arterial_pco2"] = NumberFact(reading.pco2, "mmHg")

@@ -311,6 +311,14 @@ def _context_items(case: Case) -> list[dict[str, str]]:
     items.append({"label": "Medications", "text": "; ".join(meds) if meds else "none given"})
     findings = [finding_label(f) for f in case.context.findings]
     items.append({"label": "Findings", "text": join_words(findings) if findings else "none given"})
+    context = case.context
+    results = [
+        ("Renin", context.renin),
+        ("Aldosterone", context.aldosterone),
+        ("Urine diuretic screen", context.diuretic_screen),
+        ("Cortisol excess", None if context.cortisol_excess is None else ("yes" if context.cortisol_excess else "no")),
+    ]
+    items.extend({"label": label, "text": value} for label, value in results if value is not None)
     return items
 
 

@@ -110,7 +110,14 @@ def _lab_section(section: str, description: str) -> dict[str, Any]:
 def case_schema() -> dict[str, Any]:
     """The schema of a case file (YAML or JSON), as `notegen draft` reads it."""
     from notegen.validation_base import MAX_TEXT
-    from notegen.validation_context import MAX_MEDICATIONS, SEX_WORDS, VOLUME_WORDS
+    from notegen.validation_context import (
+        LEVEL_WORDS,
+        MAX_MEDICATIONS,
+        SCREEN_WORDS,
+        SEX_WORDS,
+        VOLUME_WORDS,
+        YES_NO,
+    )
 
     medication = {
         "anyOf": [
@@ -200,6 +207,15 @@ def case_schema() -> dict[str, Any]:
                                 {"type": "string"},
                                 {"type": "null"},
                             ],
+                        },
+                        "renin": _nullable(_words(sorted(LEVEL_WORDS), "low, normal or high against the lab's range")),
+                        "aldosterone": _nullable(
+                            _words(sorted(LEVEL_WORDS), "low, normal or high against the lab's range")
+                        ),
+                        "diuretic_screen": _nullable(_words(sorted(SCREEN_WORDS), "urine diuretic screen result")),
+                        "cortisol_excess": {
+                            "description": "Result of an evaluation for cortisol excess (yes or no).",
+                            "anyOf": [{"type": "boolean"}, _words(sorted(YES_NO), "yes or no"), {"type": "null"}],
                         },
                     },
                 }

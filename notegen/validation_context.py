@@ -24,7 +24,17 @@ from .validation_base import (
 )
 
 PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
-CONTEXT_KEYS = ("bp", "volume", "meds", "findings")
+CONTEXT_KEYS = ("bp", "volume", "meds", "findings", "renin", "aldosterone", "diuretic_screen", "cortisol_excess")
+LEVEL_WORDS = {
+    "low": "low",
+    "suppressed": "low",
+    "normal": "normal",
+    "high": "high",
+    "raised": "high",
+    "elevated": "high",
+}
+SCREEN_WORDS = {"positive": "positive", "detected": "positive", "negative": "negative", "not detected": "negative"}
+YES_NO = {"yes": True, "true": True, "present": True, "no": False, "false": False, "absent": False}
 MAX_MEDICATIONS = 200
 
 SEX_WORDS = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
@@ -173,6 +183,24 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                 col.problem(path, f"{_shown(item)} is not one of low, normal, high, unknown")
             else:
                 values["volume"] = volume
+        elif key in ("renin", "aldosterone"):
+            level = LEVEL_WORDS.get(str(item).strip().lower())
+            if level is None:
+                col.problem(path, f"{_shown(item)} is not low, normal or high (read against your laboratory's range)")
+            else:
+                values[key] = level
+        elif key == "diuretic_screen":
+            screen = SCREEN_WORDS.get(str(item).strip().lower())
+            if screen is None:
+                col.problem(path, f"{_shown(item)} is not positive or negative")
+            else:
+                values[key] = screen
+        elif key == "cortisol_excess":
+            answer = item if isinstance(item, bool) else YES_NO.get(str(item).strip().lower())
+            if answer is None:
+                col.problem(path, f"{_shown(item)} is not yes or no")
+            else:
+                values[key] = answer
         elif key == "meds":
             items = [m.strip() for m in item.split(",")] if isinstance(item, str) else item
             if not isinstance(items, list):

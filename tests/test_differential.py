@@ -430,3 +430,40 @@ def test_secondary_hyperaldosteronism_is_left_out_when_the_case_is_silent() -> N
     # No volume status given: nothing to infer it from, and not reported as undetermined either.
     result = evaluate(alkalosis_case(urine_cl=12, volume="unknown"))
     assert "secondary_aldosteronism" not in {f.factor for f in result.maintenance}
+
+
+def test_renin_and_aldosterone_when_given_split_the_hypertensive_side_and_are_not_suggested_again() -> None:
+    # Low renin with high aldosterone in a hypertensive chloride-resistant alkalosis: primary aldosteronism
+    # pattern (Luke & Galla, JASN 2012); the test that would provide them is no longer suggested.
+    from notegen.drafting import Drafter
+    from notegen.validation import validate_case
+
+    data = {
+        "gas": {"sample": "arterial", "ph": 7.47, "pco2": 44, "hco3": 32},
+        "chem": {"na": 143, "k": 2.7, "cl": 101, "creatinine": 0.8},
+        "patient": {"age": 46, "sex": "female"},
+        "urine": {"cl": 88},
+        "context": {"bp": "172/104", "volume": "normal"},
+    }
+    before = Drafter().assess(validate_case(data))
+    assert "renin_aldosterone" in [t.test for t in before.next_tests]
+    data["context"] = {**data["context"], "renin": "low", "aldosterone": "high"}
+    after = Drafter().assess(validate_case(data))
+    assert "renin_aldosterone" not in [t.test for t in after.next_tests]
+    assert after.differential[0].cause == "mineralocorticoid_excess"
+    assert any("Renin low with aldosterone high" in e.text for e in after.differential[0].supporting)
+
+
+def test_a_positive_urine_diuretic_screen_counts_for_a_diuretic() -> None:
+    from notegen.drafting import Drafter
+    from notegen.validation import validate_case
+
+    data = {
+        "gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 34},
+        "chem": {"na": 138, "k": 3.0, "cl": 92},
+        "urine": {"cl": 70},
+        "context": {"bp": "104/60", "volume": "low", "diuretic_screen": "positive"},
+    }
+    cause = next(c for c in Drafter().assess(validate_case(data)).differential if c.cause == "diuretic")
+    assert "screen_positive" in [e.id for e in cause.supporting]
+    assert cause.tier == "likely"

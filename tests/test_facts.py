@@ -40,8 +40,8 @@ def test_values_units_and_bounds() -> None:
 
 def test_what_the_case_does_not_hold_is_missing_with_a_reason() -> None:
     facts = facts_of(alkalosis_case(sample="venous", bp=None))
-    assert facts["renin"] == MissingFact("not held by the case model")
-    assert facts["diuretic_screen_positive"] == MissingFact("not held by the case model")
+    assert facts["renin"] == MissingFact("not given")
+    assert facts["diuretic_screen_positive"] == MissingFact("not given")
     assert facts["arterial_pco2"] == MissingFact("venous sample; its PCO2 is not converted")
     assert facts["systolic_bp"] == MissingFact()
     assert facts["volume"] == MissingFact()  # "unknown" in the case

@@ -164,3 +164,24 @@ def test_an_explicit_pco2_unit_is_taken_as_given() -> None:
 
 def test_mmhg_typed_into_an_si_case_is_refused() -> None:
     assert "did you mean 48 mmHg?" in _problem({"units": "si", "gas": {"ph": 7.52, "pco2": 48, "hco3": 38}})
+
+
+def test_categorical_results_read_against_the_laboratory_range() -> None:
+    case = validate_case(
+        {
+            "context": {
+                "renin": "Suppressed",
+                "aldosterone": "raised",
+                "diuretic_screen": "negative",
+                "cortisol_excess": "no",
+            }
+        }
+    )
+    context = case.context
+    assert (context.renin, context.aldosterone, context.diuretic_screen, context.cortisol_excess) == (
+        "low",
+        "high",
+        "negative",
+        False,
+    )
+    assert "is not low, normal or high" in _problem({"context": {"renin": "12 ng/mL/h"}})
