@@ -52,6 +52,16 @@ VOLUME_WORDS = {
 }
 
 
+# Context fields given as one word from a small table: (table, what the message says is expected).
+WORD_FIELDS: dict[str, tuple[Mapping[str, Any], str]] = {
+    "volume": (VOLUME_WORDS, "one of low, normal, high, unknown"),
+    "renin": (LEVEL_WORDS, "low, normal or high (read against your laboratory's range)"),
+    "aldosterone": (LEVEL_WORDS, "low, normal or high (read against your laboratory's range)"),
+    "diuretic_screen": (SCREEN_WORDS, "positive or negative"),
+    "cortisol_excess": (YES_NO, "yes or no"),
+}
+
+
 def validate_patient(raw: Any, col: _Collector) -> Patient:
     if raw is None:
         return Patient()
@@ -177,30 +187,13 @@ def validate_context(raw: Any, col: _Collector) -> Context:
             continue
         elif key == "bp":
             values["bp"] = _blood_pressure(item, col)
-        elif key == "volume":
-            volume = VOLUME_WORDS.get(str(item).strip().lower())
-            if volume is None:
-                col.problem(path, f"{_shown(item)} is not one of low, normal, high, unknown")
+        elif key in WORD_FIELDS:
+            table, expected = WORD_FIELDS[key]
+            word = item if isinstance(item, bool) and key == "cortisol_excess" else table.get(str(item).strip().lower())
+            if word is None:
+                col.problem(path, f"{_shown(item)} is not {expected}")
             else:
-                values["volume"] = volume
-        elif key in ("renin", "aldosterone"):
-            level = LEVEL_WORDS.get(str(item).strip().lower())
-            if level is None:
-                col.problem(path, f"{_shown(item)} is not low, normal or high (read against your laboratory's range)")
-            else:
-                values[key] = level
-        elif key == "diuretic_screen":
-            screen = SCREEN_WORDS.get(str(item).strip().lower())
-            if screen is None:
-                col.problem(path, f"{_shown(item)} is not positive or negative")
-            else:
-                values[key] = screen
-        elif key == "cortisol_excess":
-            answer = item if isinstance(item, bool) else YES_NO.get(str(item).strip().lower())
-            if answer is None:
-                col.problem(path, f"{_shown(item)} is not yes or no")
-            else:
-                values[key] = answer
+                values[key] = word
         elif key == "meds":
             items = [m.strip() for m in item.split(",")] if isinstance(item, str) else item
             if not isinstance(items, list):
