@@ -7,6 +7,7 @@ only this model, and the JSON output is this model dumped.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from typing import Literal
 
 from pydantic import BaseModel, ConfigDict, Field
@@ -115,15 +116,15 @@ class Assessment(BaseModel):
     paragraph: str = ""  # the assessment paragraph as drafted
 
 
-def _warnings(case: Case, reading: AcidBaseReading) -> tuple[str, ...]:
-    """What is missing or was not used, in words, without repeats."""
+def _warnings(case: Case, reading: AcidBaseReading, calculations: Mapping[str, Calculation]) -> tuple[str, ...]:
+    """What is missing or was not used, in words, without repeats; `calculations` are the case's, already computed."""
     from .calculations import missing_calculations
 
     seen: list[str] = []
     extra: list[str] = []
     if case.chem.creatinine is not None:
         # a creatinine without age or sex leaves the eGFR, and the GFR branch of the rules, open
-        egfr = missing_calculations(case).get("egfr")
+        egfr = missing_calculations(case, done=calculations).get("egfr")
         if egfr is not None:
             extra.append(f"eGFR {egfr}.")
     for text in (*reading.missing, *extra, *case.notices):

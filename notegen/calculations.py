@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import functools
 import math
+from collections.abc import Mapping
 from decimal import ROUND_HALF_UP, Decimal
 from typing import NamedTuple
 
@@ -257,9 +258,16 @@ def _quantum(digits: int) -> Decimal:
     return Decimal(1).scaleb(-digits)
 
 
+@functools.lru_cache(maxsize=4096, typed=True)  # a case formats the same few values again and again
 def format_value(value: float, unit: str = "") -> str:
     """A number as a clinician reads it: at most 3 decimals (half away from zero), no trailing zeros, then the unit."""
-    text = f"{round_half_up(value, 3):.3f}".rstrip("0").rstrip(".")
+    text = repr(value)
+    point = text.find(".")
+    if type(value) is not float or point < 0 or "e" in text or len(text) - point - 1 > 3 or not -1e12 < value < 1e12:
+        text = f"{round_half_up(value, 3):.3f}"
+    # else the shortest form has at most 3 decimals (most lab values) and the float's spacing is far
+    # below 0.0005, so it is exactly what formatting to 3 decimals gives, less the trailing zeros
+    text = text.rstrip("0").rstrip(".")
     if text == "-0":
         text = "0"
     return f"{text} {unit}".strip()
@@ -572,9 +580,15 @@ def compute_calculations(case: Case, settings: AcidBaseSettings | None = None) -
     return out
 
 
-def missing_calculations(case: Case, settings: AcidBaseSettings | None = None) -> dict[str, str]:
-    """For each core calculation not computed, what it lacks, in words."""
-    done = compute_calculations(case, settings)
+def missing_calculations(
+    case: Case, settings: AcidBaseSettings | None = None, *, done: Mapping[str, Calculation] | None = None
+) -> dict[str, str]:
+    """For each core calculation not computed, what it lacks, in words.
+
+    `done` is the case's `compute_calculations` result when the caller has it already.
+    """
+    if done is None:
+        done = compute_calculations(case, settings)
     needs = {
         "calculated_ph": "a gas PaCO2 and bicarbonate",
         "anion_gap": "sodium, chloride and a bicarbonate (gas or panel total CO2)",

@@ -80,7 +80,7 @@ class Drafter:
             maintenance=rules.maintenance if rules is not None else (),
             next_tests=rules.next_tests if rules is not None else (),
             trace=rules.trace if rules is not None else (),
-            warnings=_warnings(case, reading),
+            warnings=_warnings(case, reading, calculations),
             trend=build_trend(case),
         )
         from .note import complete_assessment

@@ -63,11 +63,8 @@ def build_trend(case: Case) -> tuple[TrendSeries, ...]:
     series: list[TrendSeries] = []
     by_section = {name: _samples(case, name) for name in ("gas", "chem", "urine")}
     for section, name, label, unit in TREND_FIELDS:
-        points = tuple(
-            TrendPoint(taken_at=s.taken_at, value=value)
-            for s in by_section[section]
-            if (value := getattr(s, name)) is not None
-        )
-        if len(points) >= 2:
+        found = [(s.taken_at, value) for s in by_section[section] if (value := getattr(s, name)) is not None]
+        if len(found) >= 2:  # most cases hold one result of each: no series, and no points built
+            points = tuple(TrendPoint(taken_at=taken_at, value=value) for taken_at, value in found)
             series.append(TrendSeries(field=f"{section}.{name}", label=label, unit=unit, points=points))
     return tuple(series)

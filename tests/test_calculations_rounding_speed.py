@@ -63,3 +63,8 @@ def test_infinity_is_refused_as_before(value: float) -> None:
         reference_round_half_up(value, 1)
     with pytest.raises(InvalidOperation):
         round_half_up(value, 1)
+
+
+@pytest.mark.parametrize("value", [2.0**43 + 0.001, -(2.0**44) - 0.002, 999999999999.999, 1e12 + 0.5, -0.0, 140.0, 7.4])
+def test_format_value_matches_near_its_shortcut_limit(value: float) -> None:
+    assert format_value(value, "mmol/L") == reference_format_value(value, "mmol/L")
