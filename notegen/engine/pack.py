@@ -7,6 +7,8 @@ names its provenance in `source` (a published source, or "common practice").
 
 `read_pack(dirs)` layers the folders in order: the first is the base (the shipped pack), each later
 one (a service's own) adds or overrides items by id; see `notegen.engine.source` for the rules.
+`read_pack(dirs, located=False)` reads faster, without line numbers: for a pack expected to be sound,
+read again with them when it has a problem (see `notegen.differential`).
 """
 
 from __future__ import annotations
@@ -28,6 +30,7 @@ from notegen.engine.source import (
     find_duplicate_ids,
     locate,
     read_yaml,
+    where_of,
 )
 
 Strength = Literal["strong", "moderate", "weak"]
@@ -221,7 +224,7 @@ def _pack_files(folder: Path) -> list[Path]:
     return sorted(p for p in folder.rglob("*") if p.suffix in {".yaml", ".yml"} and p.is_file())
 
 
-def read_folder(folder: Path, problems: list[Problem]) -> SourceDict | None:
+def read_folder(folder: Path, problems: list[Problem], *, located: bool = True) -> SourceDict | None:
     """Read and join one folder's files; problems are appended, None when nothing usable."""
     if not folder.is_dir():
         problems.append((str(folder), None, "no such pack folder"))
@@ -230,21 +233,22 @@ def read_folder(folder: Path, problems: list[Problem]) -> SourceDict | None:
     if not files:
         problems.append((str(folder), None, "the folder holds no .yaml files"))
         return None
-    documents: list[SourceDict] = []
+    documents: list[dict[str, Any]] = []
     for path in files:
         try:
-            data = read_yaml(path)
+            data = read_yaml(path, located=located)
         except PackSourceError as exc:
             problems.append(_problem(exc.where, exc.message))
             continue
         if data is None:
             continue
-        if not isinstance(data, SourceDict):
+        if not isinstance(data, dict):
             problems.append((str(path), 1, "a pack file is a mapping of sections (facts:, trees:, ...)"))
             continue
         for key in data:
             if key not in SECTIONS:
-                problems.append(_problem(data.where_of(key), f"unknown section `{key}`; sections are {list(SECTIONS)}"))
+                message = f"unknown section `{key}`; sections are {list(SECTIONS)}"
+                problems.append(_problem(where_of(data, key), message))
         documents.append(data)
     try:
         combined = combine_files(documents, (str(folder), None))
@@ -257,15 +261,19 @@ def read_folder(folder: Path, problems: list[Problem]) -> SourceDict | None:
     return combined
 
 
-def read_pack(dirs: Sequence[Path]) -> tuple[PackSpec | None, list[Problem]]:
-    """Layer the folders and validate the result; returns the spec (None on failure) and problems."""
+def read_pack(dirs: Sequence[Path], *, located: bool = True) -> tuple[PackSpec | None, list[Problem]]:
+    """Layer the folders and validate the result; returns the spec (None on failure) and problems.
+
+    Without `located` the spec and the problems carry no line numbers (and problems found through
+    positions may merge): read again with them to report a problem.
+    """
     problems: list[Problem] = []
     if not dirs:
         return None, [("<pack>", None, "no pack folder given")]
     overlay = Overlay()
     merged: SourceDict | None = None
     for folder in dirs:
-        data = read_folder(Path(folder), problems)
+        data = read_folder(Path(folder), problems, located=located)
         if data is None:
             continue
         if merged is None:
