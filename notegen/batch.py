@@ -243,6 +243,10 @@ def run_batch(
             write_atomically(target, note)
         else:
             sys.stdout.write(note if note.endswith("\n") else note + "\n")
+            if jsonl:
+                # A program that keeps one process open and writes a case at a time reads each result
+                # as soon as it is drafted, not when a pipe's buffer fills (see the README).
+                sys.stdout.flush()
     progress.clear()
     summary = f"{drafted} drafted, {rejected} rejected"
     print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=errors)
