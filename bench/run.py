@@ -32,6 +32,9 @@ from cases import generate  # noqa: E402
 
 SAMPLE = ROOT / "samples" / "gastric_suction.yaml"
 FLOOR = "import pydantic, jinja2, yaml"
+# The same imports, then what any program that validates with pydantic pays before its own code: the
+# first model class (pydantic's `import pydantic` alone is lazy and loads almost nothing of it).
+FLOOR_WITH_MODEL = FLOOR + "\nfrom pydantic import BaseModel\nclass M(BaseModel):\n    x: int\nM(x=1)"
 
 
 def _child_environment(pycache: Path) -> dict[str, str]:
@@ -66,13 +69,16 @@ def _run(command: Sequence[str], env: dict[str, str]) -> tuple[float, float]:
 def cold_start(runs: int, env: dict[str, str]) -> dict[str, float]:
     """Medians of wall and CPU time, floor and note interleaved."""
     floor = [sys.executable, "-c", FLOOR]
+    model = [sys.executable, "-c", FLOOR_WITH_MODEL]
     draft = [*_notegen_command(), "draft", str(SAMPLE.relative_to(ROOT)), "--format", "text"]
+    commands = (("floor", floor), ("model", model), ("draft", draft))
     for _ in range(2):  # compile bytecode, warm the file cache
-        _run(floor, env)
-        _run(draft, env)
-    times: dict[str, list[float]] = {"floor": [], "draft": [], "floor cpu": [], "draft cpu": []}
+        for _, command in commands:
+            _run(command, env)
+    times: dict[str, list[float]] = {name: [] for name, _ in commands}
+    times.update({f"{name} cpu": [] for name, _ in commands})
     for _ in range(runs):
-        for name, command in (("floor", floor), ("draft", draft)):
+        for name, command in commands:
             wall, cpu = _run(command, env)
             times[name].append(wall)
             times[f"{name} cpu"].append(cpu)
@@ -103,6 +109,7 @@ def _best_per_case(action: Callable[[Any], object], items: Sequence[Any], rounds
 
 def batch(count: int, rounds: int) -> dict[str, dict[str, float]]:
     """Seconds per note: the whole pipeline, and validating and rendering alone (see README)."""
+    from notegen.calculations import compute_calculations
     from notegen.drafting import Drafter, DraftOptions
     from notegen.loading import parse_json
     from notegen.note import complete_assessment, render_note
@@ -134,22 +141,63 @@ def batch(count: int, rounds: int) -> dict[str, dict[str, float]]:
         validate_case(parse_json(job[0], "bench"))
         return complete_assessment(job[1]).model_dump_json(by_alias=True) + "\n"
 
-    for name, full, alone in (
-        ("json lines", full_json, render_json_only),
-        ("markdown", full_markdown, render_markdown_only),
+    def calculate_and_render_json(job: tuple[str, Any]) -> object:
+        # everything but the acid-base reading and the rule walk (the calculations computed, as the note shows them)
+        compute_calculations(validate_case(parse_json(job[0], "bench")), drafter.settings)
+        return complete_assessment(job[1]).model_dump_json(by_alias=True) + "\n"
+
+    def calculate_and_render_markdown(job: tuple[str, Any]) -> object:
+        compute_calculations(validate_case(parse_json(job[0], "bench")), drafter.settings)
+        return render_note(job[1], markdown)
+
+    for name, full, alone, calculated in (
+        ("json lines", full_json, render_json_only, calculate_and_render_json),
+        ("markdown", full_markdown, render_markdown_only, calculate_and_render_markdown),
     ):
         full(jobs[0])
         alone(jobs[0])
-        figures[name] = {"full": float("inf"), "alone": float("inf")}
+        calculated(jobs[0])
+        figures[name] = {"full": float("inf"), "alone": float("inf"), "calculated": float("inf")}
         for _ in range(rounds):  # interleaved, best of each
             figures[name]["full"] = min(figures[name]["full"], _best_per_case(full, jobs, 1))
             figures[name]["alone"] = min(figures[name]["alone"], _best_per_case(alone, jobs, 1))
+            figures[name]["calculated"] = min(figures[name]["calculated"], _best_per_case(calculated, jobs, 1))
     return figures
 
 
 def cli_batch(path: Path, env: dict[str, str]) -> float:
     """Wall seconds of `notegen draft --jsonl FILE --format json`, start-up included."""
     return _run([*_notegen_command(), "draft", "--jsonl", str(path), "--format", "json"], env)[0]
+
+
+def resident_pipe(count: int, env: dict[str, str]) -> dict[str, float]:
+    """Seconds per result when one `notegen draft --jsonl - --format json` process is kept open.
+
+    The sample case is written as one JSON line at a time and its result read back before the next
+    is written, as a dictation pipeline would; the first result includes the process's start-up.
+    """
+    from notegen.loading import parse_yaml
+
+    line = json.dumps(parse_yaml(SAMPLE.read_text(encoding="utf-8"), SAMPLE.name), default=str) + "\n"
+    command = [*_notegen_command(), "draft", "--jsonl", "-", "--format", "json"]
+    times: list[float] = []
+    started = time.perf_counter()
+    with subprocess.Popen(
+        command, env=env, cwd=ROOT, stdin=subprocess.PIPE, stdout=subprocess.PIPE, stderr=subprocess.DEVNULL
+    ) as process:
+        assert process.stdin is not None and process.stdout is not None
+        for _ in range(count + 1):
+            process.stdin.write(line.encode())
+            process.stdin.flush()
+            if not process.stdout.readline():
+                raise RuntimeError(f"{' '.join(command)} ended early")
+            now = time.perf_counter()
+            times.append(now - started)
+            started = now
+        process.stdin.close()
+        process.wait()
+    warm = sorted(times[1:])
+    return {"first": times[0], "median": statistics.median(warm), "p95": warm[int(len(warm) * 0.95)]}
 
 
 def pack_load(env: dict[str, str], repeats: int) -> dict[str, float]:
@@ -264,6 +312,10 @@ def main(argv: Sequence[str] | None = None) -> None:
         print(f"  notegen draft {SAMPLE.relative_to(ROOT)} --format text: {cold['draft'] * 1e3:7.1f} ms")
         print(f"  ratio {cold['draft'] / cold['floor']:.2f} (target <= 1.3)")
         print(
+            f"  the floor plus one pydantic model (BaseModel, one class, one validation): {cold['model'] * 1e3:.1f} ms,"
+            f" ratio {cold['model'] / cold['floor']:.2f} before any notegen code"
+        )
+        print(
             f"  CPU time (user + system), less sensitive to a busy machine: floor {cold['floor cpu'] * 1e3:.1f} ms, "
             f"note {cold['draft cpu'] * 1e3:.1f} ms, ratio {cold['draft cpu'] / cold['floor cpu']:.2f}"
         )
@@ -281,12 +333,24 @@ def main(argv: Sequence[str] | None = None) -> None:
                 f"  {name:>10}: {1 / seconds['full']:7.0f} notes/s ({seconds['full'] * 1e3:.2f} ms/note); "
                 f"validate+render only {seconds['alone'] * 1e3:.2f} ms/note; ratio {ratio:.2f} (target <= 2)"
             )
+            print(
+                f"  {'':>10}  with the calculations in the baseline (all but the reading and the walk): "
+                f"{seconds['calculated'] * 1e3:.2f} ms/note; ratio {seconds['full'] / seconds['calculated']:.2f}"
+            )
         census = folder / f"cases-{count}.jsonl"
         census.write_text("".join(json.dumps(case) + "\n" for case in generate(count)), encoding="utf-8")
         wall = cli_batch(census, env)
         print(
             f"  command line: notegen draft --jsonl ({count} lines) --format json: {wall:.2f} s, "
             f"{count / wall:.0f} notes/s with start-up (target >= 1000)"
+        )
+
+        pipe = resident_pipe(200 if not args.quick else 50, env)
+        print("\none process kept open, one case written at a time (notegen draft --jsonl - --format json):")
+        print(
+            f"  first result, start-up included: {pipe['first'] * 1e3:.1f} ms; each later result: median "
+            f"{pipe['median'] * 1e3:.2f} ms, 95th percentile {pipe['p95'] * 1e3:.2f} ms "
+            f"(import floor {cold['floor'] * 1e3:.1f} ms)"
         )
 
         load = pack_load(env, 20)
