@@ -37,6 +37,12 @@ def templates_dir() -> Path:
     return data_dir("templates")
 
 
+def compiled_templates_dir() -> Path | None:
+    """The shipped templates compiled to Python modules when the wheel was built; None in a source checkout."""
+    packed = _PACKAGE / "_data" / "templates_compiled"
+    return packed if packed.is_dir() else None
+
+
 def safe_yaml_loader() -> type[SafeLoader]:
     """PyYAML's safe loader, on libyaml's parser when PyYAML was built with it.
 

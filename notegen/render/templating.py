@@ -7,6 +7,9 @@ only as context values, never as template source, so text such as
 
 A service's own template runs in Jinja's immutable sandbox: it can read the
 context but not reach Python internals or change the values it is given.
+
+The shipped templates alone (not in the sandbox) use the modules compiled when the
+wheel was built, when they match (`notegen.render.compiled_templates`).
 """
 
 from __future__ import annotations
@@ -57,11 +60,46 @@ def _check(folders: tuple[Path, ...]) -> tuple[Path, ...]:
 def _build_environment(folders: tuple[Path, ...], sandboxed: bool) -> jinja2.Environment:
     import jinja2
 
+    from notegen.resources import compiled_templates_dir, templates_dir
+
+    # Only an installed wheel has compiled templates; code compiled outside the sandbox skips the
+    # sandbox's own checks of `*` and `**` (jinja2 compiles those operators differently there).
+    compiled = None if sandboxed else compiled_templates_dir()
+    if compiled is not None and folders == (templates_dir().resolve(),):
+        return shipped_environment(folders[0], compiled)
+    return new_environment(jinja2.FileSystemLoader([str(folder) for folder in folders]), sandboxed=sandboxed)
+
+
+def shipped_environment(folder: Path, compiled: Path | None) -> jinja2.Environment:
+    """The environment of the shipped templates in `folder`, outside the sandbox.
+
+    It loads the modules in `compiled` (built with the wheel) when they were compiled by the running
+    jinja2 from these very sources; otherwise, or for a template they lack, it compiles from source.
+    """
+    import jinja2
+
+    source: jinja2.BaseLoader = jinja2.FileSystemLoader([str(folder)])
+    if compiled is None:
+        return new_environment(source, sandboxed=False)
+    from notegen.render.compiled_templates import compiled_loader
+
+    modules = compiled_loader(folder, compiled)
+    loader = source if modules is None else jinja2.ChoiceLoader([modules, source])
+    return new_environment(loader, sandboxed=False)
+
+
+def new_environment(loader: jinja2.BaseLoader, *, sandboxed: bool) -> jinja2.Environment:
+    """An environment with the note settings and filters; the wheel's build compiles the shipped templates with it.
+
+    Strict about undefined names; `None` cannot be printed by accident.
+    """
+    import jinja2
+
     environment_class: type[jinja2.Environment] = jinja2.Environment
     if sandboxed:
         environment_class = _bounded_sandbox()
     environment = environment_class(
-        loader=jinja2.FileSystemLoader([str(folder) for folder in folders]),
+        loader=loader,
         undefined=jinja2.StrictUndefined,
         autoescape=False,
         trim_blocks=True,
@@ -163,10 +201,8 @@ def _template_name(env: jinja2.Environment, name_or_path: str | Path) -> str:
 def _search_folders(env: jinja2.Environment) -> list[Path]:
     import jinja2
 
-    loader = env.loader
-    if isinstance(loader, jinja2.FileSystemLoader):
-        return [Path(folder) for folder in loader.searchpath]
-    return []
+    loaders = env.loader.loaders if isinstance(env.loader, jinja2.ChoiceLoader) else [env.loader]
+    return [Path(f) for loader in loaders if isinstance(loader, jinja2.FileSystemLoader) for f in loader.searchpath]
 
 
 def _folders_text(env: jinja2.Environment) -> str:
