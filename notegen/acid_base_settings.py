@@ -131,9 +131,9 @@ Problems = list[tuple[str, int | None, str]]
 
 def _parse(text: str) -> tuple[Any, dict[str, int]]:
     """The file's data and the line (1-based) of each top-level key, from one parse."""
-    from notegen.resources import safe_yaml_loader
+    from notegen.resources import strict_yaml_loader
 
-    loader = safe_yaml_loader()(text)
+    loader = strict_yaml_loader()(text)
     try:
         node = loader.get_single_node()
         if node is None:

@@ -139,3 +139,9 @@ class TemplateError(NotegenError):
         if line is not None:
             where += f", line {line}"
         super().__init__(f"{where}: {message}")
+
+
+def printable(key: object) -> str:
+    """A name or key for a message: control characters escaped (a terminal would run them), cut at 60."""
+    text = "".join(char if char.isprintable() else f"\\u{ord(char):04x}" for char in str(key))
+    return text if len(text) <= 60 else f"{text[:57]}..."

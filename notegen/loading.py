@@ -17,7 +17,7 @@ from typing import Any
 
 import yaml
 
-from .errors import CaseFileError
+from .errors import CaseFileError, printable
 
 MAX_BYTES = 2_000_000  # a FHIR bundle (JSON) can be large; the json module reads this in well under a second
 # PyYAML's pure-Python reader takes seconds per megabyte; a YAML case file is a few kilobytes.
@@ -31,12 +31,6 @@ _PLAIN_FLOAT = re.compile(
     r"[-+]?(?:[0-9]+\.[0-9]*|\.[0-9]+)(?:[eE][-+]?[0-9]+)?|[-+]?\.(?:inf|Inf|INF)|\.(?:nan|NaN|NAN)"
 )
 _DATA_ONLY_TAGS = ("binary", "set", "omap", "pairs")
-
-
-def _printable(key: object) -> str:
-    """A key for a message: control characters escaped (a terminal would run them), cut at 60."""
-    text = "".join(char if char.isprintable() else f"\\u{ord(char):04x}" for char in str(key))
-    return text if len(text) <= 60 else f"{text[:57]}..."
 
 
 class _CaseLoader(yaml.SafeLoader):
@@ -147,7 +141,7 @@ class _CaseLoader(yaml.SafeLoader):
             if key in seen:
                 first = seen[key].start_mark.line + 1
                 raise CaseFileError(
-                    f"`{_printable(key)}` is given twice (first on line {first}); keep one value",
+                    f"`{printable(key)}` is given twice (first on line {first}); keep one value",
                     filename=self._filename,
                     line=key_node.start_mark.line + 1,
                     column=key_node.start_mark.column + 1,
@@ -222,7 +216,7 @@ def _refuse_duplicates(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
     result: dict[str, Any] = {}
     for key, value in pairs:
         if key in result:
-            raise ValueError(f"`{_printable(key)}` is given twice; keep one value")
+            raise ValueError(f"`{printable(key)}` is given twice; keep one value")
         result[key] = value
     return result
 

@@ -11,7 +11,7 @@ import functools
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 import yaml
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
@@ -20,7 +20,7 @@ from notegen.acidbase_model import Chronicity, Disorder, Primary
 from notegen.assessment import Assessment, ChlorideClass
 from notegen.case import CANONICAL_UNITS, Case, Volume
 from notegen.errors import RulePackError
-from notegen.resources import rules_dir, safe_yaml_loader
+from notegen.resources import rules_dir, strict_yaml_loader
 
 __all__ = ["Consideration", "load_considerations", "management_considerations"]
 
@@ -133,32 +133,12 @@ class Consideration(BaseModel):
 # Loading ---------------------------------------------------------------------------------------
 
 
-if TYPE_CHECKING:
-    _SafeLoader = yaml.SafeLoader
-else:
-    # libyaml's parser when PyYAML has it (about ten times faster), with the same safe constructors.
-    _SafeLoader = safe_yaml_loader()
-
-
-class _NoDuplicatesLoader(_SafeLoader):
-    """Safe loader that refuses a key given twice: the second `says:` must not silently win."""
-
-    def construct_mapping(self, node: yaml.MappingNode, deep: bool = False) -> dict[Any, Any]:
-        seen: set[object] = set()
-        for key_node, _ in node.value:
-            key = self.construct_object(key_node, deep=deep)
-            if key in seen:
-                raise yaml.constructor.ConstructorError(None, None, f"`{key}` is given twice", key_node.start_mark)
-            seen.add(key)
-        return super().construct_mapping(node, deep=deep)
-
-
 def _read(path: Path) -> list[tuple[int, Any]]:
     """The entries of `considerations`, each with its line number, from one parse of the file."""
     name = str(path)
     try:
         text = path.read_text(encoding="utf-8")
-        loader = _NoDuplicatesLoader(text)
+        loader = strict_yaml_loader()(text)  # a second `says:` must not silently win
         try:
             root = loader.get_single_node()
             data = loader.construct_document(root) if root is not None else None

@@ -54,9 +54,39 @@ def safe_yaml_loader() -> type[SafeLoader]:
     return getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 
 
+@lru_cache(maxsize=1)
+def strict_yaml_loader() -> type[SafeLoader]:
+    """`safe_yaml_loader()` that also refuses a key given twice in one mapping.
+
+    Plain YAML keeps the last of two equal keys, so a setting, a label or a `says:` written twice
+    would silently lose the first; a rule file must say each thing once.
+    """
+    import yaml
+
+    from notegen.errors import printable
+
+    class StrictLoader(safe_yaml_loader()):  # type: ignore[misc]
+        def construct_mapping(self, node: yaml.MappingNode, deep: bool = False) -> dict[Any, Any]:
+            seen: dict[object, int] = {}
+            for key_node, _ in node.value:
+                key = self.construct_object(key_node, deep=deep)
+                try:
+                    first = seen.get(key)
+                except TypeError:  # an unhashable key: the safe constructor refuses it below
+                    continue
+                if first is not None:
+                    raise yaml.constructor.ConstructorError(
+                        None, None, f"`{printable(key)}` is given twice (first on line {first})", key_node.start_mark
+                    )
+                seen[key] = key_node.start_mark.line + 1
+            return dict(super().construct_mapping(node, deep=deep))
+
+    return StrictLoader
+
+
 def read_yaml_safely(stream: Any) -> Any:
-    """Parse one YAML document from text or a stream with `safe_yaml_loader()`: plain types only."""
-    loader = safe_yaml_loader()(stream)
+    """Parse one YAML document from text or a stream with `strict_yaml_loader()`: plain types only, no repeated keys."""
+    loader = strict_yaml_loader()(stream)
     try:
         return loader.get_single_data()
     finally:

@@ -137,3 +137,17 @@ def test_every_problem_reported_at_once(tmp_path: Path) -> None:
 def test_missing_folder_rejected(tmp_path: Path) -> None:
     with pytest.raises(RulePackError, match="is not a folder"):
         load_acid_base_settings([tmp_path / "nowhere"])
+
+
+def test_a_setting_given_twice_is_refused_not_silently_replaced(tmp_path: Path) -> None:
+    # plain YAML would keep the second value; a service must not lose a threshold without a word
+    path = _write(tmp_path / "svc", "ph_low: {value: 7.34, source: a}\nph_low: {value: 7.30, source: b}\n")
+    with pytest.raises(RulePackError) as info:
+        load_acid_base_settings([tmp_path / "svc"])
+    assert f"{path}:2: is not valid YAML: `ph_low` is given twice (first on line 1)" in str(info.value)
+
+
+def test_a_field_given_twice_within_a_setting_is_refused(tmp_path: Path) -> None:
+    _write(tmp_path / "svc", "ph_low:\n  value: 7.34\n  source: a\n  value: 7.30\n")
+    with pytest.raises(RulePackError, match="`value` is given twice"):
+        load_acid_base_settings([tmp_path / "svc"])
