@@ -31,10 +31,7 @@ from notegen.assessment import (
 from notegen.calculations import Calculation
 from notegen.case import Case
 from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
-from notegen.engine.checks import check_spec
 from notegen.engine.facts import as_fact, plain_value
-from notegen.engine.pack import read_pack
-from notegen.engine.program import compile_pack
 from notegen.engine.results import EvidenceResult, OpenEvidence
 from notegen.facts import derive_facts
 from notegen.resources import rules_dir
@@ -53,26 +50,13 @@ def load_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> RulePack:
     """Load the shipped pack with any service folders laid over it; `RulePackError` lists every problem."""
     if not rules_dirs:
         return default_alkalosis_pack()
-    return _load(alkalosis_pack_dirs(rules_dirs))
+    return load_pack(alkalosis_pack_dirs(rules_dirs))
 
 
 @lru_cache(maxsize=1)
 def default_alkalosis_pack() -> RulePack:
     """The shipped pack, loaded once per process."""
-    return _load(alkalosis_pack_dirs())
-
-
-def _load(dirs: list[Path]) -> RulePack:
-    """Read the YAML without line numbers (faster); a pack with any problem is loaded again with them.
-
-    The second load is `load_pack` itself, so its `RulePackError` is the one a line-tracking read gives.
-    The loaded pack's items therefore carry no file and line (`where` is unknown); nothing after
-    loading uses them.
-    """
-    spec, problems = read_pack(dirs, located=False)
-    if spec is not None and not problems and not check_spec(spec):
-        return compile_pack(spec, dirs)
-    return load_pack(dirs)
+    return load_pack(alkalosis_pack_dirs())
 
 
 def check_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> list[Problem]:

@@ -13,14 +13,12 @@ from notegen.calculations import compute_calculations
 from notegen.case import Case
 from notegen.differential import (
     RuleResult,
-    alkalosis_pack_dirs,
     check_alkalosis_pack,
     default_alkalosis_pack,
     evaluate_alkalosis,
     load_alkalosis_pack,
 )
-from notegen.engine import FactInput, RulePack, load_pack
-from notegen.errors import RulePackError
+from notegen.engine import FactInput, RulePack
 
 
 def evaluate(
@@ -338,39 +336,6 @@ def test_broken_service_pack_is_reported_with_file_and_line(tmp_path: Path) -> N
     problems = check_alkalosis_pack([tmp_path])
     assert any(p[0] == str(folder / "bad.yaml") and p[1] == 4 and "is in mL/min;" in p[2] for p in problems), problems
     assert len(problems) == 1  # one problem, at the setting, not one per condition using it
-
-
-def test_broken_service_pack_fails_to_load_with_the_message_of_a_located_read(tmp_path: Path) -> None:
-    # The pack is read without line numbers first; a problem sends it through `load_pack`, which has them.
-    folder = tmp_path / "alkalosis"
-    folder.mkdir()
-    bad = folder / "bad.yaml"
-    bad.write_text("settings:\n  - id: egfr_maintenance_below\n    value: 30\n    unit: mL/min\n")
-    with pytest.raises(RulePackError) as caught:
-        load_alkalosis_pack([tmp_path])
-    assert str(caught.value) == (
-        f"{bad}:4: setting `egfr_maintenance_below` is in mL/min; fact `egfr`, compared with it, is in mL/min/1.73 m2"
-    )
-    with pytest.raises(RulePackError) as located:
-        load_pack(alkalosis_pack_dirs([tmp_path]))
-    assert str(caught.value) == str(located.value)
-
-
-def test_duplicate_key_in_a_service_pack_is_refused_with_file_and_line(tmp_path: Path) -> None:
-    folder = tmp_path / "alkalosis"
-    folder.mkdir()
-    bad = folder / "bad.yaml"
-    bad.write_text(
-        "settings:\n  - id: urine_cl_responsive_below\n    value: 25\n    value: 15\n    source: our service\n"
-    )
-    with pytest.raises(RulePackError) as caught:
-        load_alkalosis_pack([tmp_path])
-    assert str(caught.value) == f"{bad}:4: duplicate key `value` in one mapping"
-
-
-def test_shipped_pack_is_read_without_line_numbers() -> None:
-    # It passed its checks when read with them (test_shipped_pack_passes_its_checks).
-    assert default_alkalosis_pack().spec.pack.where == ("<pack>", None)
 
 
 def test_mineralocorticoid_activity_only_with_its_source_in_view() -> None:

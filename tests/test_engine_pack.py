@@ -3,16 +3,11 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Any
 
 import pytest
 
-from notegen.engine import Problem, check_pack, load_pack
-from notegen.engine.checks import check_spec
-from notegen.engine.pack import read_folder, read_pack
-from notegen.engine.source import Overlay, PackSourceError, read_yaml
+from notegen.engine import check_pack, load_pack
 from notegen.errors import RulePackError
-from notegen.resources import rules_dir
 
 PACKS = Path(__file__).parent / "fixtures" / "packs"
 PLANTS = PACKS / "plants"
@@ -133,61 +128,3 @@ def test_kind_checks_on_conditions(tmp_path: Path) -> None:
     assert "factor `c`: unknown factor group `nowhere`" in messages
     assert "placeholder `{nothing}` names no fact, setting or tree" in messages
     assert any("`flooded` is not an outcome of tree `watering_need`" in m for m in messages)
-
-
-# Reading without line numbers (`located=False`), the fast read of a pack expected to be sound.
-
-
-@pytest.mark.parametrize("folder", [PLANTS, SERVICE, rules_dir() / "alkalosis"], ids=["plants", "service", "shipped"])
-def test_a_read_without_line_numbers_builds_the_same_data(folder: Path) -> None:
-    fast_problems: list[Problem] = []
-    fast = read_folder(folder, fast_problems, located=False)
-    located = read_folder(folder, [])
-    assert fast_problems == []
-    assert fast == located  # plain dicts and lists against SourceDict and SourceList
-    assert located is not None and located.where_of("settings")[1] is not None
-
-
-def test_an_overlay_read_without_line_numbers_gives_the_same_pack() -> None:
-    def layered(located: bool) -> Any:
-        folders = [read_folder(folder, [], located=located) for folder in (PLANTS, SERVICE)]
-        return Overlay().merge(*folders)
-
-    assert layered(located=False) == layered(located=True)
-    fast, fast_problems = read_pack([PLANTS, SERVICE], located=False)
-    located, problems = read_pack([PLANTS, SERVICE])
-    assert fast_problems == problems == []
-    assert fast is not None and located is not None
-    for section in ("facts", "settings", "tests"):  # sections without conditions, which dump as data
-        assert [i.model_dump() for i in getattr(fast, section)] == [i.model_dump() for i in getattr(located, section)]
-    assert [s.where for s in fast.settings] == [("<pack>", None)] * len(fast.settings)
-
-
-@pytest.mark.parametrize(("folder", "filename", "line", "words"), BROKEN_CASES, ids=[c[0] for c in BROKEN_CASES])
-def test_a_read_without_line_numbers_finds_a_problem_in_every_broken_pack(
-    folder: str, filename: str, line: int, words: str
-) -> None:
-    # A caller reads again with line numbers for the message; what matters here is that it is told to.
-    spec, problems = read_pack([PLANTS, BROKEN / folder], located=False)
-    assert problems or (spec is not None and check_spec(spec))
-
-
-def test_a_read_without_line_numbers_refuses_duplicate_and_non_text_keys(tmp_path: Path) -> None:
-    path = tmp_path / "x.yaml"
-    path.write_text("settings:\n  - id: a\n    value: 1\n    value: 2\n")
-    with pytest.raises(PackSourceError) as caught:
-        read_yaml(path, located=False)
-    assert (caught.value.where, caught.value.message) == ((str(path), 4), "duplicate key `value` in one mapping")
-    path.write_text("settings:\n  - id: a\n    3: 2\n")
-    with pytest.raises(PackSourceError, match="keys must be text"):
-        read_yaml(path, located=False)
-
-
-def test_a_read_without_line_numbers_refuses_ordered_maps_pairs_and_sets(tmp_path: Path) -> None:
-    # The located read builds these as plain lists and sets, so the fast read cannot mirror them.
-    path = tmp_path / "x.yaml"
-    for text in ("causes: !!omap [{a: 1}]\n", "causes: !!pairs [{a: 1}]\n", "causes: !!set {a}\n"):
-        path.write_text(text)
-        with pytest.raises(PackSourceError):
-            read_yaml(path, located=False)
-        assert read_yaml(path)["causes"] in ([("a", 1)], {"a"})

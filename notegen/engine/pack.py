@@ -7,8 +7,6 @@ names its provenance in `source` (a published source, or "common practice").
 
 `read_pack(dirs)` layers the folders in order: the first is the base (the shipped pack), each later
 one (a service's own) adds or overrides items by id; see `notegen.engine.source` for the rules.
-`read_pack(dirs, located=False)` reads faster, without line numbers: for a pack expected to be sound,
-read again with them when it has a problem (see `notegen.differential`).
 """
 
 from __future__ import annotations
@@ -30,7 +28,6 @@ from notegen.engine.source import (
     find_duplicate_ids,
     locate,
     read_yaml,
-    where_of,
 )
 
 Strength = Literal["strong", "moderate", "weak"]
@@ -224,7 +221,7 @@ def _pack_files(folder: Path) -> list[Path]:
     return sorted(p for p in folder.rglob("*") if p.suffix in {".yaml", ".yml"} and p.is_file())
 
 
-def read_folder(folder: Path, problems: list[Problem], *, located: bool = True) -> SourceDict | None:
+def read_folder(folder: Path, problems: list[Problem]) -> SourceDict | None:
     """Read and join one folder's files; problems are appended, None when nothing usable."""
     if not folder.is_dir():
         problems.append((str(folder), None, "no such pack folder"))
@@ -233,22 +230,21 @@ def read_folder(folder: Path, problems: list[Problem], *, located: bool = True) 
     if not files:
         problems.append((str(folder), None, "the folder holds no .yaml files"))
         return None
-    documents: list[dict[str, Any]] = []
+    documents: list[SourceDict] = []
     for path in files:
         try:
-            data = read_yaml(path, located=located)
+            data = read_yaml(path)
         except PackSourceError as exc:
             problems.append(_problem(exc.where, exc.message))
             continue
         if data is None:
             continue
-        if not isinstance(data, dict):
+        if not isinstance(data, SourceDict):
             problems.append((str(path), 1, "a pack file is a mapping of sections (facts:, trees:, ...)"))
             continue
         for key in data:
             if key not in SECTIONS:
-                message = f"unknown section `{key}`; sections are {list(SECTIONS)}"
-                problems.append(_problem(where_of(data, key), message))
+                problems.append(_problem(data.where_of(key), f"unknown section `{key}`; sections are {list(SECTIONS)}"))
         documents.append(data)
     try:
         combined = combine_files(documents, (str(folder), None))
@@ -261,19 +257,15 @@ def read_folder(folder: Path, problems: list[Problem], *, located: bool = True) 
     return combined
 
 
-def read_pack(dirs: Sequence[Path], *, located: bool = True) -> tuple[PackSpec | None, list[Problem]]:
-    """Layer the folders and validate the result; returns the spec (None on failure) and problems.
-
-    Without `located` the spec and the problems carry no line numbers (and problems found through
-    positions may merge): read again with them to report a problem.
-    """
+def read_pack(dirs: Sequence[Path]) -> tuple[PackSpec | None, list[Problem]]:
+    """Layer the folders and validate the result; returns the spec (None on failure) and problems."""
     problems: list[Problem] = []
     if not dirs:
         return None, [("<pack>", None, "no pack folder given")]
     overlay = Overlay()
     merged: SourceDict | None = None
     for folder in dirs:
-        data = read_folder(Path(folder), problems, located=located)
+        data = read_folder(Path(folder), problems)
         if data is None:
             continue
         if merged is None:

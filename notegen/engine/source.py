@@ -6,11 +6,6 @@ Duplicate keys inside one mapping are an error rather than PyYAML's silent last-
 The parser is libyaml's when PyYAML was built with it (the same safe constructors, about ten
 times faster than the pure-Python parser, which is the fallback).
 
-`read_yaml(..., located=False)` builds plain dicts and lists instead, for a pack expected to be
-sound (the shipped one): it refuses the same keys, and is read again with positions only when
-something is wrong, for the message. Every function below takes either kind of data; positions
-of plain data are unknown.
-
 Layering (`overlay`) works on this raw data, before validation:
 - a list whose items are mappings with an `id` is merged by id: an item with a known id
   updates that item field by field, an item with a new id is appended, and `drop: true` removes one;
@@ -78,57 +73,10 @@ class SourceList(list[Any]):
         return self.where
 
 
-UNKNOWN: Where = ("<pack>", None)
-
-
-def where_is(data: Any) -> Where:
-    """Where a mapping or list was written; unknown for data read without positions."""
-    return data.where if isinstance(data, SourceDict | SourceList) else UNKNOWN
-
-
-def where_of(data: Any, key: str | int) -> Where:
-    """Where `data[key]` was written; unknown for data read without positions."""
-    if isinstance(data, SourceDict) and isinstance(key, str):
-        return data.where_of(key)
-    if isinstance(data, SourceList) and isinstance(key, int):
-        return data.where_of(key)
-    return UNKNOWN
-
-
-def _key_wheres(data: dict[str, Any]) -> dict[str, Where]:
-    return dict(data.key_where) if isinstance(data, SourceDict) else {}
-
-
-def _item_wheres(data: list[Any]) -> list[Where]:
-    return [where_of(data, index) for index in range(len(data))]
-
-
 class _LineLoader(_SafeLoader):
     """A safe loader that records positions; constructs nothing beyond plain YAML types."""
 
     filename = "<pack>"
-
-
-class _PlainLoader(_SafeLoader):
-    """The fast read: plain dicts and lists, refusing the same keys as `_LineLoader`.
-
-    It also refuses `!!omap`, `!!pairs` and `!!set`, which `_LineLoader` builds as a plain list or set:
-    so a list here is always what `_LineLoader` builds as a `SourceList`, a dict a `SourceDict`, and
-    layering and validation treat both reads alike.
-    """
-
-    filename = "<pack>"
-
-
-def _key(loader: _LineLoader | _PlainLoader, key_node: yaml.Node, data: dict[str, Any]) -> tuple[str, Where]:
-    """A mapping key and its position; a key that is not text, or is already in `data`, is refused."""
-    key = loader.construct_object(key_node, deep=True)
-    where = (loader.filename, key_node.start_mark.line + 1)
-    if not isinstance(key, str):
-        raise PackSourceError(where, f"keys must be text, not {key!r}")
-    if key in data:
-        raise PackSourceError(where, f"duplicate key `{key}` in one mapping")
-    return key, where
 
 
 def _construct_mapping(loader: _LineLoader, node: yaml.MappingNode) -> Iterator[SourceDict]:
@@ -136,22 +84,14 @@ def _construct_mapping(loader: _LineLoader, node: yaml.MappingNode) -> Iterator[
     yield data
     loader.flatten_mapping(node)
     for key_node, value_node in node.value:
-        key, where = _key(loader, key_node, data)
+        key = loader.construct_object(key_node, deep=True)
+        where = (loader.filename, key_node.start_mark.line + 1)
+        if not isinstance(key, str):
+            raise PackSourceError(where, f"keys must be text, not {key!r}")
+        if key in data:
+            raise PackSourceError(where, f"duplicate key `{key}` in one mapping")
         data[key] = loader.construct_object(value_node, deep=True)
         data.key_where[key] = where
-
-
-def _construct_plain_mapping(loader: _PlainLoader, node: yaml.MappingNode) -> Iterator[dict[str, Any]]:
-    data: dict[str, Any] = {}
-    yield data
-    loader.flatten_mapping(node)
-    for key_node, value_node in node.value:
-        key, _ = _key(loader, key_node, data)
-        data[key] = loader.construct_object(value_node, deep=True)
-
-
-def _refuse_tag(loader: _PlainLoader, node: yaml.Node) -> None:
-    raise PackSourceError((loader.filename, node.start_mark.line + 1), f"`{node.tag}` is not read on the fast path")
 
 
 def _construct_sequence(loader: _LineLoader, node: yaml.SequenceNode) -> Iterator[SourceList]:
@@ -164,23 +104,16 @@ def _construct_sequence(loader: _LineLoader, node: yaml.SequenceNode) -> Iterato
 
 _LineLoader.add_constructor("tag:yaml.org,2002:map", _construct_mapping)
 _LineLoader.add_constructor("tag:yaml.org,2002:seq", _construct_sequence)
-_PlainLoader.add_constructor("tag:yaml.org,2002:map", _construct_plain_mapping)
-for _tag in ("omap", "pairs", "set"):
-    _PlainLoader.add_constructor(f"tag:yaml.org,2002:{_tag}", _refuse_tag)
 
 
-def read_yaml(path: Path, display_name: str | None = None, *, located: bool = True) -> Any:
-    """Parse one YAML file safely; errors name the file and line.
-
-    With `located` (the default) mappings and lists are `SourceDict`/`SourceList` that know their
-    positions; without it they are plain, which is faster, for a file expected to be sound.
-    """
+def read_yaml(path: Path, display_name: str | None = None) -> Any:
+    """Parse one YAML file safely, keeping positions; errors name the file and line."""
     name = display_name or str(path)
     try:
         text = path.read_text(encoding="utf-8")
     except OSError as exc:
         raise PackSourceError((name, None), f"cannot read the file: {exc.strerror or exc}") from exc
-    loader = _LineLoader(text) if located else _PlainLoader(text)
+    loader = _LineLoader(text)
     loader.filename = name
     try:
         return loader.get_single_data()
@@ -210,7 +143,7 @@ def find_duplicate_ids(value: Any, problems: list[tuple[Where, str]], path: str 
         for index, item in enumerate(value):
             if isinstance(item, dict) and "id" in item:
                 item_id = item["id"]
-                here = where_of(item, "id")
+                here = item.where_of("id") if isinstance(item, SourceDict) else ("<pack>", None)
                 if item_id in seen:
                     first = seen[item_id]
                     problems.append((here, f"duplicate id `{item_id}` in `{path}` (first at {first[0]}:{first[1]})"))
@@ -219,18 +152,18 @@ def find_duplicate_ids(value: Any, problems: list[tuple[Where, str]], path: str 
             find_duplicate_ids(item, problems, f"{path}[{index}]")
 
 
-def combine_files(documents: list[dict[str, Any]], where: Where) -> SourceDict:
+def combine_files(documents: list[SourceDict], where: Where) -> SourceDict:
     """Join the files of one folder: lists are concatenated, a mapping section may appear once."""
     combined = SourceDict(where=where)
     for document in documents:
         for key, value in document.items():
-            key_at = where_of(document, key)
+            key_at = document.where_of(key)
             if key not in combined:
                 combined[key] = value
                 combined.key_where[key] = key_at
-            elif isinstance(combined[key], list) and isinstance(value, list):
-                joined = SourceList(combined[key], where=where_is(combined[key]))
-                joined.item_where = _item_wheres(combined[key]) + _item_wheres(value)
+            elif isinstance(combined[key], SourceList) and isinstance(value, SourceList):
+                joined = SourceList(combined[key], where=combined[key].where)
+                joined.item_where = list(combined[key].item_where) + list(value.item_where)
                 joined.extend(value)
                 combined[key] = joined
             else:
@@ -247,13 +180,13 @@ class Overlay:
         self.added: list[tuple[str, str, Where]] = []
 
     def merge(self, base: Any, top: Any, key: str = "", path: str = "") -> Any:
-        if isinstance(base, list) and isinstance(top, list) and (_is_id_list(base) or _is_id_list(top)):
+        if isinstance(base, SourceList) and isinstance(top, SourceList) and (_is_id_list(base) or _is_id_list(top)):
             return self._merge_by_id(base, top, path)
-        if isinstance(base, dict) and isinstance(top, dict) and (key in MERGED_MAPPINGS or key == ""):
-            merged = SourceDict(base, where=where_is(base))
-            merged.key_where = _key_wheres(base)
+        if isinstance(base, SourceDict) and isinstance(top, SourceDict) and (key in MERGED_MAPPINGS or key == ""):
+            merged = SourceDict(base, where=base.where)
+            merged.key_where = dict(base.key_where)
             for child_key, value in top.items():
-                merged.key_where[child_key] = where_of(top, child_key)
+                merged.key_where[child_key] = top.where_of(child_key)
                 if child_key in base:
                     merged[child_key] = self.merge(
                         base[child_key], value, child_key, f"{path}.{child_key}" if path else child_key
@@ -263,21 +196,20 @@ class Overlay:
             return merged
         return top
 
-    def _merge_by_id(self, base: list[Any], top: list[Any], path: str) -> SourceList:
+    def _merge_by_id(self, base: SourceList, top: SourceList, path: str) -> SourceList:
         items: list[Any] = list(base)
-        wheres = _item_wheres(base)
+        wheres: list[Where] = list(base.item_where) + [base.where] * (len(base) - len(base.item_where))
         index = {item.get("id"): i for i, item in enumerate(items) if isinstance(item, dict)}
         dropped: set[int] = set()
         for position, item in enumerate(top):
-            at = where_of(top, position)
-            if not isinstance(item, dict) or "id" not in item:
+            at = top.where_of(position)
+            if not isinstance(item, SourceDict) or "id" not in item:
                 raise PackSourceError(at, f"an overlay item in `{path}` needs an `id` saying what it changes or adds")
             item_id = item["id"]
             drop = item.get("drop", False)
             if "drop" in item:
-                kept = SourceDict({k: v for k, v in item.items() if k != "drop"}, where=where_is(item))
-                kept.key_where = {k: w for k, w in _key_wheres(item).items() if k != "drop"}
-                item = kept
+                item = SourceDict({k: v for k, v in item.items() if k != "drop"}, where=item.where)
+                item.key_where = {k: w for k, w in top[position].key_where.items() if k != "drop"}
             if item_id in index:
                 if drop is True:
                     dropped.add(index[item_id])
@@ -290,7 +222,7 @@ class Overlay:
                 index[item_id] = len(items)
                 items.append(item)
                 wheres.append(at)
-        merged = SourceList(where=where_is(base))
+        merged = SourceList(where=base.where)
         for i, (item, at) in enumerate(zip(items, wheres, strict=True)):
             if i not in dropped:
                 merged.append(item)
