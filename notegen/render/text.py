@@ -1,7 +1,10 @@
 """Plain text for dictation and terminals, derived from the Markdown note.
 
-The text is built from markdown-it-py's syntax tree rather than by stripping
-symbols from the source, so it always says what the Markdown says:
+The text is built from the Markdown's syntax tree rather than by stripping
+symbols from the source, so it always says what the Markdown says. The tree
+comes from notegen's own strict parser when the document is one it reads with
+certainty (what the shipped templates write; see `notegen.render._subset`), and
+from markdown-it-py otherwise; both give the same tree, so the same text:
 
 - level 1 and 2 headings in capitals, deeper ones as "Heading:" lines;
 - paragraphs wrapped at `width`; a hard line break starts a new line;
@@ -16,10 +19,11 @@ from __future__ import annotations
 
 import re
 import textwrap
-from collections.abc import Callable
-from typing import TYPE_CHECKING
+from collections.abc import Callable, Mapping, Sequence
+from typing import TYPE_CHECKING, Protocol
 
 from notegen.render._parser import markdown_parser
+from notegen.render._subset import parse_note_markdown
 from notegen.render.ascii_fold import NO_BREAK_SPACE, fold_to_ascii
 
 if TYPE_CHECKING:
@@ -35,17 +39,51 @@ _SPACES = re.compile(r"[ \t\r\f\v]+")
 _BREAK = object()  # a thematic break among rendered blocks
 
 
+class MarkdownNode(Protocol):
+    """What the renderer reads from a node of either parser's tree (markdown-it's SyntaxTreeNode)."""
+
+    @property
+    def type(self) -> str: ...
+    @property
+    def tag(self) -> str: ...
+    @property
+    def content(self) -> str: ...
+    @property
+    def attrs(self) -> Mapping[str, str | int | float]: ...
+    @property
+    def hidden(self) -> bool: ...
+    @property
+    def children(self) -> Sequence[MarkdownNode]: ...
+
+
 def markdown_to_text(markdown: str, *, width: int = 80, ascii_only: bool = False) -> str:
     """Return the Markdown as plain text wrapped at `width`, ending with one newline."""
-    if width < MIN_WIDTH:
-        raise ValueError(f"width must be at least {MIN_WIDTH} characters, got {width}")
+    _check_width(width)
+    blocks: Sequence[MarkdownNode] | None = parse_note_markdown(markdown)
+    if blocks is None:
+        blocks = markdown_it_blocks(markdown)
+    return blocks_to_text(blocks, width=width, ascii_only=ascii_only)
+
+
+def markdown_it_blocks(markdown: str) -> list[SyntaxTreeNode]:
+    """The top-level blocks of any Markdown, read by markdown-it-py (imported on first use)."""
     from markdown_it.tree import SyntaxTreeNode
 
-    tree = SyntaxTreeNode(markdown_parser().parse(markdown))
+    return SyntaxTreeNode(markdown_parser().parse(markdown)).children
+
+
+def blocks_to_text(blocks: Sequence[MarkdownNode], *, width: int, ascii_only: bool) -> str:
+    """Plain text from a parsed document's top-level blocks, wrapped at `width`, ending with one newline."""
+    _check_width(width)
     renderer = _TextRenderer(fold_to_ascii if ascii_only else _unchanged)
-    lines = renderer.blocks(tree.children, width, tight=False)
+    lines = renderer.blocks(blocks, width, tight=False)
     text = "\n".join(line.rstrip() for line in lines).replace(NO_BREAK_SPACE, " ")
     return text.strip("\n") + "\n"
+
+
+def _check_width(width: int) -> None:
+    if width < MIN_WIDTH:
+        raise ValueError(f"width must be at least {MIN_WIDTH} characters, got {width}")
 
 
 def _unchanged(text: str) -> str:
@@ -58,7 +96,7 @@ class _TextRenderer:
 
     # Blocks ---------------------------------------------------------------
 
-    def blocks(self, nodes: list[SyntaxTreeNode], width: int, *, tight: bool) -> list[str]:
+    def blocks(self, nodes: Sequence[MarkdownNode], width: int, *, tight: bool) -> list[str]:
         """Render sibling blocks, parted by a blank line (none inside a tight list item)."""
         rendered: list[list[str] | object] = [self.block(node, width) for node in nodes]
         lines: list[str] = []
@@ -79,7 +117,7 @@ class _TextRenderer:
             lines.extend(block)
         return lines
 
-    def block(self, node: SyntaxTreeNode, width: int) -> list[str] | object:
+    def block(self, node: MarkdownNode, width: int) -> list[str] | object:
         kind = node.type
         if kind == "paragraph":
             return self.wrap(self.inline_of(node), width)
@@ -100,7 +138,7 @@ class _TextRenderer:
         # Anything a future parser option adds still shows its text.
         return self.wrap(self.fold(node.content), width) if node.content else []
 
-    def heading(self, node: SyntaxTreeNode, width: int) -> list[str]:
+    def heading(self, node: MarkdownNode, width: int) -> list[str]:
         text = _one_line(self.inline_of(node))
         if node.tag in ("h1", "h2"):
             text = _upper_case(text)
@@ -109,7 +147,7 @@ class _TextRenderer:
             text += ":"
         return self.wrap(text, width)
 
-    def list_(self, node: SyntaxTreeNode, width: int) -> list[str]:
+    def list_(self, node: MarkdownNode, width: int) -> list[str]:
         items = node.children
         if node.type == "ordered_list":
             start = int(node.attrs.get("start", 1))
@@ -129,7 +167,7 @@ class _TextRenderer:
             lines.extend(" " * hang + line if line else "" for line in body[1:])
         return lines
 
-    def table(self, node: SyntaxTreeNode, width: int) -> list[str]:
+    def table(self, node: MarkdownNode, width: int) -> list[str]:
         rows: list[list[str]] = []
         aligns: list[str] = []
         header_rows = 0
@@ -172,7 +210,7 @@ class _TextRenderer:
 
     # Inline ---------------------------------------------------------------
 
-    def inline_of(self, node: SyntaxTreeNode) -> str:
+    def inline_of(self, node: MarkdownNode) -> str:
         """The text of a block's inline content, folded; "\\n" marks a hard break."""
         parts: list[str] = []
         for child in node.children:
@@ -182,7 +220,7 @@ class _TextRenderer:
                 parts.append(self.inline_part(child))
         return self.fold(_SPACES.sub(" ", "".join(parts)))
 
-    def inline_part(self, node: SyntaxTreeNode) -> str:
+    def inline_part(self, node: MarkdownNode) -> str:
         kind = node.type
         if kind in ("text", "text_special", "code_inline", "html_inline"):
             return node.content
@@ -218,7 +256,7 @@ def _upper_case(text: str) -> str:
     return "".join(char if char in "\u00b5\u03bc" else char.upper() for char in text)
 
 
-def _alignment(cell: SyntaxTreeNode) -> str:
+def _alignment(cell: MarkdownNode) -> str:
     style = str(cell.attrs.get("style", ""))
     for align in ("right", "center"):
         if f"text-align:{align}" in style:
