@@ -68,5 +68,5 @@ lap("Markdown from the Jinja2 templates (compiled on first use)")
 from notegen.render.text import markdown_to_text  # noqa: E402
 
 markdown_to_text(markdown, width=options.width, ascii_only=options.ascii_only)
-lap("plain text from the Markdown (markdown-it-py)")
+lap("plain text from the Markdown")
 print(json.dumps(stages))
