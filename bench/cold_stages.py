@@ -64,7 +64,7 @@ options = DraftOptions(output_format="text")
 from notegen.note import render_markdown  # noqa: E402
 
 markdown = render_markdown(assessment, options)
-lap("Markdown from the Jinja2 templates (compiled on first use)")
+lap("Markdown from the Jinja2 templates (precompiled in a wheel; compiled on first use in a checkout)")
 from notegen.render.text import markdown_to_text  # noqa: E402
 
 markdown_to_text(markdown, width=options.width, ascii_only=options.ascii_only)
