@@ -66,6 +66,18 @@ def _run(command: Sequence[str], env: dict[str, str]) -> tuple[float, float]:
     return wall, usage.ru_utime + usage.ru_stime
 
 
+def _installed(env: dict[str, str]) -> str:
+    """Which notegen the commands run: a wheel ships its templates precompiled, a checkout compiles them."""
+    code = (
+        "import notegen, notegen.resources as r; "
+        "print(notegen.__file__, 'yes' if r.compiled_templates_dir() else 'no (compiled in every process)')"
+    )
+    output = subprocess.run(
+        [sys.executable, "-c", code], env=env, cwd=BENCH, check=True, capture_output=True, text=True
+    ).stdout.split()
+    return f"notegen under test: {Path(output[0]).parent}; shipped templates precompiled: {' '.join(output[1:])}"
+
+
 def cold_start(runs: int, env: dict[str, str]) -> dict[str, float]:
     """Medians of wall and CPU time, floor and note interleaved."""
     floor = [sys.executable, "-c", FLOOR]
@@ -305,6 +317,7 @@ def main(argv: Sequence[str] | None = None) -> None:
     with tempfile.TemporaryDirectory(prefix="notegen-bench-") as scratch:
         folder = Path(scratch)
         env = _child_environment(folder / "pycache")
+        print(_installed(env))
 
         cold = cold_start(runs, env)
         print(f"\ncold start, median of {runs} interleaved runs (bytecode compiled, as installed):")
