@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import json
 import re
-from pathlib import Path
+from pathlib import Path, PurePath
 from typing import Any
 
 import yaml
@@ -277,8 +277,15 @@ def decode(raw: bytes, filename: str) -> str:
 
 
 def parse_text(text: str, filename: str, *, max_depth: int = MAX_DEPTH) -> Any:
-    """Parse case text as JSON when it looks like JSON, otherwise as YAML."""
-    if text.lstrip().startswith(("{", "[")):
+    """Parse case text as its file name says (.yaml or .yml, .json); otherwise as JSON when it looks like JSON.
+
+    A YAML file may start with `{` (a flow mapping such as `{gas: {ph: 7.5}}`): it is still YAML, and
+    its mistakes are reported as YAML mistakes.
+    """
+    suffix = PurePath(str(filename)).suffix.lower()
+    if suffix in (".yaml", ".yml"):
+        return parse_yaml(text, filename)
+    if suffix == ".json" or text.lstrip().startswith(("{", "[")):
         return parse_json(text, filename, max_depth=max_depth)
     return parse_yaml(text, filename)
 
