@@ -20,7 +20,7 @@ from pathlib import Path
 from typing import BinaryIO, TextIO
 
 from .drafting import Drafter, DraftOptions
-from .errors import CaseFileError, InputError, NotegenError, UsageError
+from .errors import CaseFileError, InputError, NotegenError, UsageError, printable
 from .loading import MAX_BYTES, parse_json
 from .validation import validate_case
 
@@ -156,6 +156,19 @@ def _is_terminal(stream: TextIO) -> bool:
         return False
 
 
+def _note_header(source: str, case_label: str | None, options: DraftOptions) -> str:
+    """The line that opens one of several notes written to standard output: its input, and its case label."""
+    from .render.ascii_fold import fold_to_ascii
+    from .render.markdown_escape import escape_markdown
+
+    name = printable(source, None) + (f": {printable(case_label, None)}" if case_label else "")
+    if options.output_format == "markdown":
+        name = escape_markdown(name)
+    elif options.ascii_only:
+        name = fold_to_ascii(name)
+    return f"=== {name} ==="
+
+
 def _note_stem(label: str, jsonl: bool) -> str:
     """The note's file name without extension: the case file's, and the line number for JSON Lines."""
     name = label.rsplit(":", 1)[0] if jsonl else label
@@ -187,6 +200,8 @@ def run_batch(
             out_dir.mkdir(parents=True, exist_ok=True)
         except OSError as exc:
             raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
+    if out_dir is None and options.output_format == "html":
+        raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
     drafted = rejected = failed = 0
     extension = _EXTENSIONS[options.output_format]
     written: dict[Path, str] = {}
@@ -242,6 +257,10 @@ def run_batch(
             written[target] = label
             write_atomically(target, note)
         else:
+            if not single_line:
+                # Several notes in one stream: each starts with a line naming its case, so that no
+                # note can be taken for the one before it (a brief note names no case of its own).
+                sys.stdout.write(("\n" if drafted > 1 else "") + _note_header(label, case.label, options) + "\n\n")
             sys.stdout.write(note if note.endswith("\n") else note + "\n")
             if jsonl:
                 # A program that keeps one process open and writes a case at a time reads each result

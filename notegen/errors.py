@@ -141,7 +141,7 @@ class TemplateError(NotegenError):
         super().__init__(f"{where}: {message}")
 
 
-def printable(key: object) -> str:
-    """A name or key for a message: control characters escaped (a terminal would run them), cut at 60."""
+def printable(key: object, limit: int | None = 60) -> str:
+    """A name or key for a message: control characters escaped (a terminal would run them), cut at `limit`."""
     text = "".join(char if char.isprintable() else f"\\u{ord(char):04x}" for char in str(key))
-    return text if len(text) <= 60 else f"{text[:57]}..."
+    return text if limit is None or len(text) <= limit else f"{text[: limit - 3]}..."

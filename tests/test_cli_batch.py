@@ -209,3 +209,41 @@ def test_json_lines_progress_counts_the_cases_done(tmp_path: Path) -> None:
     assert status == 0
     assert terminal.getvalue().startswith("\rnotegen: drafting, 0 done")
     assert terminal.getvalue().endswith("\rnotegen: 2 drafted, 0 rejected\n")
+
+
+def test_several_notes_on_standard_output_each_open_with_their_case() -> None:
+    # a brief note names no case: run together, two patients' notes could be taken for one
+    result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--format", "text", "--brief"])
+    assert result.exit_code == 0, result.output
+    headers = [line for line in result.stdout.splitlines() if line.startswith("=== ")]
+    assert headers == [
+        f"=== {GASTRIC}: demo C: nasogastric suction after surgery ===",
+        f"=== {THIAZIDE}: demo A: thiazide and vomiting ===",
+    ]
+    first, second = result.stdout.split(headers[1] + "\n\n")
+    assert first == headers[0] + "\n\n" + _single(GASTRIC, "--format", "text", "--brief") + "\n"
+    assert second == _single(THIAZIDE, "--format", "text", "--brief")
+
+
+def test_a_markdown_note_header_is_escaped_and_names_the_line(tmp_path: Path) -> None:
+    cases = tmp_path / "cases.jsonl"
+    cases.write_text(_case_line("bed *4*") + "\n" + _case_line("bed 5") + "\n", encoding="utf-8")
+    result = runner.invoke(app, ["draft", "--jsonl", str(cases), "--brief", "--format", "text"])
+    assert result.exit_code == 0, result.output
+    headers = [line for line in result.stdout.splitlines() if line.startswith("=== ")]
+    assert headers == [f"=== {cases}:1: bed *4* ===", f"=== {cases}:2: bed 5 ==="]  # full path, not cut
+    markdown = runner.invoke(app, ["draft", "--jsonl", str(cases), "--brief"])
+    assert markdown.exit_code == 0, markdown.output
+    first = markdown.stdout.splitlines()[0]
+    assert first.startswith("=== ") and first.endswith(": bed \\*4\\* ===")  # no emphasis in the header
+
+
+def test_several_html_notes_need_a_folder(tmp_path: Path) -> None:
+    result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--format", "html"])
+    assert result.exit_code == 2
+    assert result.stdout == ""
+    assert "several HTML notes need --out FOLDER" in result.stderr
+    out = tmp_path / "pages"
+    result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--format", "html", "--out", str(out)])
+    assert result.exit_code == 0, result.output
+    assert sorted(p.name for p in out.iterdir()) == ["gastric_suction.html", "thiazide_and_vomiting.html"]
