@@ -114,6 +114,8 @@ def _draft(
 
         if paste is not None or assignments:
             raise UsageError("--paste and --set apply to a single case, not to a batch")
+        if output is not None:
+            raise UsageError("--output writes one note; for several cases give --out FOLDER (one note per case)")
         return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
     from .intake import read_case
     from .loading import MAX_BYTES
