@@ -430,7 +430,9 @@ def _alkalosis(assessment: Assessment) -> list[str]:
             ]
         if reading.primary == "undetermined":
             return ["No metabolic alkalosis is established on these values, so no alkalosis differential was drawn."]
-        return ["There is no metabolic alkalosis, so no alkalosis differential applies."]
+        # Nothing to say: the reading has named the disorder (or found none), and the note's
+        # differential section says why no alkalosis work-up follows; the pasted paragraph stays about the patient.
+        return []
     return [
         *_chloride(assessment),
         *_causes(assessment.differential, assessment.maintenance),

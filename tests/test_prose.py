@@ -241,7 +241,7 @@ def test_normal_gas() -> None:
     )
     assert text == (
         "The arterial gas (pH 7.40, PaCO2 40 mmHg, HCO3 24 mmol/L) lies within the reference ranges, with no "
-        "acid-base disorder on these values. There is no metabolic alkalosis, so no alkalosis differential applies."
+        "acid-base disorder on these values."
     )
 
 
@@ -665,3 +665,17 @@ def test_within_above_and_below_say_what_the_numbers_say(ph: float, pco2: float,
             assert measured > float(high) - 0.051, text
         else:
             assert measured < float(low) + 0.051, text
+
+
+def test_an_acidosis_paragraph_stays_about_the_patient() -> None:
+    # Winter's formula 1.5 x 11 + 8 = 24.5 +/- 2 (Albert, Dell & Winters, Ann Intern Med 1967)
+    text = draft_paragraph(
+        assess(
+            {
+                "gas": {"sample": "arterial", "ph": 7.25, "pco2": 26, "hco3": 11},
+                "chem": {"na": 138, "cl": 100, "albumin": 4},
+            }
+        )
+    )
+    assert "primary metabolic acidosis with appropriate respiratory compensation" in text
+    assert "differential" not in text  # the note's differential section says why none follows
