@@ -199,6 +199,8 @@ def note_context(
         "trend": [_trend_row(t) for t in assessment.trend],
         "context_items": _context_items(assessment.case),
         "warnings": [sentence_case(text) for text in assessment.warnings],
+        # what was given but set aside or read with a caveat (pasted lines, unknown words, older results)
+        "input_notices": [sentence_case(text) for text in assessment.case.notices],
         "calculations": [_calculation_row(c) for c in shown],
         "other_calculations": [_calculation_row(c) for c in others],
         "alkalosis_worked_up": worked_up,

@@ -188,3 +188,11 @@ def test_column_row_with_missing_cells_is_listed() -> None:
                                     {"k": {"value": 3.4}, "taken_at": "2024-03-02T06:00:00"}]}
     assert parsed.unused == ["line 4: 'CO2 36' has 1 value(s) for 2 time columns; cannot tell which value "
                              "belongs to which time"]
+
+
+def test_an_unplaced_ph_line_is_named_as_a_clinician_writes_it() -> None:
+    parsed = parse_paste("pH 7.47\nUrine Cl 45\n")
+    assert parsed.unused == [
+        "line 1: 'pH 7.47' could be blood or urine pH: the paste holds urine values and this line has no "
+        "URINE heading or 'urine' in its name"
+    ]

@@ -252,6 +252,25 @@ def test_brief_is_the_paragraph_the_alerts_and_one_line_of_caution() -> None:
     assert len(blocks) == 5 and "#" not in brief
 
 
+def test_brief_keeps_what_was_given_but_not_used() -> None:
+    # a pasted line set aside, or a word notegen does not know, changes how the paragraph reads
+    assessment = assess(
+        {
+            "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
+            "context": {"meds": ["an unlisted tablet"]},
+        }
+    )
+    brief = draft(assessment, brief=True)
+    blocks = brief.strip("\n").split("\n\n")
+    at = blocks.index("**About the input:**")
+    assert blocks[at + 1] == (
+        "- Medication 'an unlisted tablet' is not in notegen's vocabulary; it was kept but not reasoned with"
+    )
+    assert blocks[at + 2].startswith("*Draft from the values given")
+    plain = assess({"gas": {"sample": "arterial", "ph": 7.4, "pco2": 40, "hco3": 24}})
+    assert "About the input" not in draft(plain, brief=True)
+
+
 def test_explain_adds_the_reasoning() -> None:
     assessment = worked_up(sample("thiazide_and_vomiting"))
     explained = draft(assessment, explain=True)

@@ -24,6 +24,9 @@ from notegen.errors import InputError, PasteError
 from notegen.inputs.base import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
 from notegen.inputs.vocabulary import Heading, Vocabulary, load_vocabulary, normalise
 
+# How an analyte id reads in a message, where the id is not already the word ("ph" is pH).
+_ANALYTE_WORDS = {"ph": "pH", "pco2": "PCO2", "paco2": "PaCO2", "total_co2": "total CO2"}
+
 _TIME = r"(?:[T ]\s*(?P<{p}h>\d{{1,2}}):(?P<{p}mi>\d{{2}})(?::(?P<{p}s>\d{{2}}))?)?"
 _MONTHS = "jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec"
 _DATE_PATTERNS = [
@@ -361,7 +364,7 @@ class _PasteReader:
         candidates: set[str] = set(analyte.fields)
         marker = lab_line.marker
         heading = lab_line.block.heading
-        label = lab_line.analyte.replace("_", " ")
+        label = _ANALYTE_WORDS.get(lab_line.analyte, lab_line.analyte.replace("_", " "))
         if marker == "urine":
             candidates &= {"urine"}
             if not candidates:
@@ -381,7 +384,8 @@ class _PasteReader:
             if evidence is None:
                 return None
             if "urine" in candidates and self.has_urine:
-                return (f"could be serum or urine {label}: the paste holds urine values and this line has "
+                blood = "blood" if lab_line.analyte == "ph" else "serum"
+                return (f"could be {blood} or urine {label}: the paste holds urine values and this line has "
                         "no URINE heading or 'urine' in its name")
             blood_side = (candidates - {"urine"}) & evidence
             if len(blood_side) != 1:
