@@ -104,7 +104,7 @@ def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
             facts[name] = BooleanFact(False)
     for name, classes in NAME_FACTS.items():
         listed = _of_classes(meds, classes)
-        facts[name] = TextFact(", ".join(m.generic or m.name for m in listed)) if listed else MissingFact()
+        facts[name] = TextFact(_and_list([m.generic or m.name for m in listed])) if listed else MissingFact()
 
     diuretics = _of_classes(meds, tuple(DIURETIC_WINDOWS))
     timed = [m.last_dose_hours for m in diuretics if m.last_dose_hours is not None]
@@ -190,3 +190,8 @@ def derive_facts(
         facts[finding] = BooleanFact(finding in context.findings)
     facts.update(medication_facts(case, pack))
     return facts
+
+
+def _and_list(words: list[str]) -> str:
+    """"a", "a and b", "a, b and c": names as a sentence lists them."""
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]

@@ -7,7 +7,7 @@ from alkalosis_cases import alkalosis_case, med
 
 from notegen.acidbase import read_acid_base
 from notegen.calculations import compute_calculations
-from notegen.case import Case
+from notegen.case import Case, Medication
 from notegen.differential import default_alkalosis_pack
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
 from notegen.facts import derive_facts, urine_calcium_creatinine_ratio
@@ -86,3 +86,11 @@ def test_medication_names_for_sentences() -> None:
     assert facts["diuretic_names"] == TextFact("furosemide")
     assert facts["loop_or_thiazide_hours"] == NumberFact(2, "h")
     assert facts["glycyrrhizin_listed"] == BooleanFact(True)
+
+
+def test_several_medication_names_read_as_a_list_in_a_sentence() -> None:
+    two = facts_of(alkalosis_case(meds=(med("furosemide", 2), med("hydrochlorothiazide", 30))))
+    assert two["diuretic_names"] == TextFact("furosemide and hydrochlorothiazide")
+    bumetanide = Medication(name="bumetanide", generic="bumetanide", classes=("loop_diuretic",), last_dose_hours=5)
+    three = facts_of(alkalosis_case(meds=(med("furosemide", 2), med("hydrochlorothiazide", 30), bumetanide)))
+    assert three["diuretic_names"] == TextFact("furosemide, hydrochlorothiazide and bumetanide")
