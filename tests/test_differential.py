@@ -249,6 +249,16 @@ def test_urine_chloride_reason_names_the_class() -> None:
     assert "chloride class (now unknown; could be responsive, resistant or indeterminate)" in why
 
 
+def test_renin_reason_reads_as_a_sentence() -> None:
+    # the tree's outcome labels are written to follow "now" and "could be"
+    result = evaluate(alkalosis_case(urine_cl=60, k=2.8, bp=(170, 100)))
+    renin = next(t for t in result.next_tests if t.test == "renin_aldosterone")
+    assert (
+        "chloride-resistant subtype (now hypertensive, subtype still open; could be a primary aldosteronism "
+        "pattern, renin-driven or low renin with low aldosterone)"
+    ) in renin.why
+
+
 def test_missing_data_is_open_not_against() -> None:
     result = evaluate(alkalosis_case(findings=("vomiting",), k=None))
     k_mg = next(c for c in result.differential if c.cause == "potassium_magnesium_depletion")
