@@ -262,7 +262,7 @@ def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
         converted = (
             "unchanged" if same else f"{qualifier}{_three_figures(measurement.value)} {measurement.unit}".strip()
         )
-    taken = measurement.taken_at.isoformat(timespec="minutes") if measurement.taken_at else ""
+    taken = measurement.taken_at.isoformat(sep=" ", timespec="minutes") if measurement.taken_at else ""
     return {
         "field": field,
         "label": _field_label(field, case),

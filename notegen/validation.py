@@ -351,7 +351,8 @@ def _choose_current(
         if len(items) > 1 and items[chosen].get("taken_at"):
             col.notices.append(
                 f"{section}: {len(items)} results given; the latest complete one "
-                f"({items[chosen]['taken_at'].isoformat(timespec='minutes')}) is read, earlier ones feed the trend"
+                f"({items[chosen]['taken_at'].isoformat(sep=' ', timespec='minutes')}) is read, "
+                "earlier ones feed the trend"
             )
     times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
     if len(times) > 1:
@@ -361,7 +362,7 @@ def _choose_current(
                 when = current[section].get("taken_at")
                 if when is not None and newest - when > timedelta(hours=window_hours):
                     col.notices.append(
-                        f"{section} results from {when.isoformat(timespec='minutes')} are more than "
+                        f"{section} results from {when.isoformat(sep=' ', timespec='minutes')} are more than "
                         f"{_fmt(window_hours)} hours older than the newest results and were not combined with them"
                     )
                     earlier[section].append(current.pop(section))
