@@ -611,5 +611,6 @@ def missing_calculations(
     elif "egfr" in out and usable(case.chem.creatinine):
         lacking = [word for word, value in (("age", age), ("sex", case.patient.sex)) if value is None]
         if lacking:
-            out["egfr"] = f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} is not"
+            verb = "are" if len(lacking) > 1 else "is"
+            out["egfr"] = f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} {verb} not"
     return out

@@ -289,3 +289,6 @@ def test_missing_egfr_says_which_of_age_and_sex_is_lacking() -> None:
         "not calculated: serum creatinine is given, but the patient's sex is not"
     )
     assert missing_calculations(Case())["egfr"] == "needs serum creatinine, age and sex"
+    assert missing_calculations(Case(chem=Chem(creatinine=1.4)))["egfr"] == (
+        "not calculated: serum creatinine is given, but the patient's age and sex are not"
+    )
