@@ -612,5 +612,7 @@ def missing_calculations(
         lacking = [word for word, value in (("age", age), ("sex", case.patient.sex)) if value is None]
         if lacking:
             verb = "are" if len(lacking) > 1 else "is"
-            out["egfr"] = f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} {verb} not"
+            out["egfr"] = (
+                f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} {verb} not"
+            )
     return out
