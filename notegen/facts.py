@@ -19,6 +19,7 @@ from notegen.calculations import CREATININE_MOLAR_MASS, Calculation
 from notegen.case import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
+from notegen.render.filters import join_words
 
 CALCIUM_MOLAR_MASS = 40.078  # g/mol (IUPAC standard atomic weight)
 
@@ -104,7 +105,7 @@ def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
             facts[name] = BooleanFact(False)
     for name, classes in NAME_FACTS.items():
         listed = _of_classes(meds, classes)
-        facts[name] = TextFact(_and_list([m.generic or m.name for m in listed])) if listed else MissingFact()
+        facts[name] = TextFact(join_words(m.generic or m.name for m in listed)) if listed else MissingFact()
 
     diuretics = _of_classes(meds, tuple(DIURETIC_WINDOWS))
     timed = [m.last_dose_hours for m in diuretics if m.last_dose_hours is not None]
@@ -191,7 +192,3 @@ def derive_facts(
     facts.update(medication_facts(case, pack))
     return facts
 
-
-def _and_list(words: list[str]) -> str:
-    """"a", "a and b", "a, b and c": names as a sentence lists them."""
-    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
