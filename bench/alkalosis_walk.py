@@ -13,11 +13,11 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from notegen.acidbase import read_acid_base  # noqa: E402
-from notegen.calculations import compute_calculations  # noqa: E402
-from notegen.differential import default_alkalosis_pack, evaluate_alkalosis  # noqa: E402
+from notegen.acidbase.calculations import compute_calculations  # noqa: E402
+from notegen.acidbase.reading import read_acid_base  # noqa: E402
 from notegen.engine import walk  # noqa: E402
-from notegen.facts import derive_facts  # noqa: E402
+from notegen.workup.alkalosis import default_alkalosis_pack, evaluate_alkalosis  # noqa: E402
+from notegen.workup.facts import derive_facts  # noqa: E402
 from tests.alkalosis_cases import alkalosis_case, med  # noqa: E402
 
 CASES = {

@@ -34,14 +34,14 @@ lap("pydantic BaseModel (pydantic's own package import is lazy)")
 import importlib.metadata  # noqa: E402, F401
 
 lap("importlib.metadata (pydantic looks up plugins on the first model)")
-from notegen.cli import _plain_draft_arguments  # noqa: E402
+from notegen.cli.app import _plain_draft_arguments  # noqa: E402
 
 arguments = _plain_draft_arguments(["draft", sys.argv[1], "--format", "text"])
-lap("notegen.cli, reading the arguments")
-from notegen.drafting import Drafter, DraftOptions  # noqa: E402
+lap("notegen.cli.app, reading the arguments")
+from notegen.pipeline import Drafter, DraftOptions  # noqa: E402
 
 lap("import the models, calculations and acid-base reading")
-from notegen.intake import read_case  # noqa: E402
+from notegen.intake.read import read_case  # noqa: E402
 
 case = read_case(sys.argv[1])
 lap("read and validate the case file")
@@ -50,9 +50,9 @@ settings = drafter.settings
 lap("acid-base settings (rules/acid_base.yaml)")
 pack = drafter.alkalosis_pack
 lap("rule pack: import the engine; read, validate, check, compile")
-from notegen.acidbase import read_acid_base  # noqa: E402
-from notegen.calculations import compute_calculations  # noqa: E402
-from notegen.differential import evaluate_alkalosis  # noqa: E402
+from notegen.acidbase.calculations import compute_calculations  # noqa: E402
+from notegen.acidbase.reading import read_acid_base  # noqa: E402
+from notegen.workup.alkalosis import evaluate_alkalosis  # noqa: E402
 
 calculations = compute_calculations(case, settings)
 reading = read_acid_base(case, settings)
@@ -61,7 +61,7 @@ lap("calculations, acid-base reading, rule walk")
 assessment = drafter.assess(case)
 lap("assessment: paragraph and management (rules/management.yaml)")
 options = DraftOptions(output_format="text")
-from notegen.note import render_markdown  # noqa: E402
+from notegen.note.writer import render_markdown  # noqa: E402
 
 markdown = render_markdown(assessment, options)
 lap("Markdown from the Jinja2 templates (precompiled in a wheel; compiled on first use in a checkout)")

@@ -32,7 +32,7 @@ def _report(profiler: cProfile.Profile, lines: int) -> None:
 def cold() -> None:
     profiler = cProfile.Profile()
     profiler.enable()
-    from notegen.cli import main
+    from notegen.cli.app import main
 
     main(["draft", str(ROOT / "samples" / "gastric_suction.yaml"), "--format", "text", "--output", "/dev/null"])
     profiler.disable()
@@ -40,9 +40,9 @@ def cold() -> None:
 
 
 def batch(output_format: str, count: int) -> None:
-    from notegen.drafting import Drafter, DraftOptions
-    from notegen.loading import parse_json
-    from notegen.validation import validate_case
+    from notegen.case.validation import validate_case
+    from notegen.intake.files import parse_json
+    from notegen.pipeline import Drafter, DraftOptions
 
     lines = [json.dumps(case) for case in generate(count)]
     drafter = Drafter()

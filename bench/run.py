@@ -49,7 +49,7 @@ def _notegen_command() -> list[str]:
     script = Path(sys.executable).with_name("notegen")
     if script.is_file():
         return [str(script)]  # the console script a user runs
-    return [sys.executable, "-c", "import sys; from notegen.cli import main; sys.argv[0] = 'notegen'; main()"]
+    return [sys.executable, "-c", "import sys; from notegen.cli.app import main; sys.argv[0] = 'notegen'; main()"]
 
 
 def _run(command: Sequence[str], env: dict[str, str]) -> tuple[float, float]:
@@ -121,11 +121,11 @@ def _best_per_case(action: Callable[[Any], object], items: Sequence[Any], rounds
 
 def batch(count: int, rounds: int) -> dict[str, dict[str, float]]:
     """Seconds per note: the whole pipeline, and validating and rendering alone (see README)."""
-    from notegen.calculations import compute_calculations
-    from notegen.drafting import Drafter, DraftOptions
-    from notegen.loading import parse_json
-    from notegen.note import complete_assessment, render_note
-    from notegen.validation import validate_case
+    from notegen.acidbase.calculations import compute_calculations
+    from notegen.case.validation import validate_case
+    from notegen.intake.files import parse_json
+    from notegen.note.writer import complete_assessment, render_note
+    from notegen.pipeline import Drafter, DraftOptions
 
     lines = [json.dumps(case) for case in generate(count)]
     drafter = Drafter()
@@ -188,7 +188,7 @@ def resident_pipe(count: int, env: dict[str, str]) -> dict[str, float]:
     The sample case is written as one JSON line at a time and its result read back before the next
     is written, as a dictation pipeline would; the first result includes the process's start-up.
     """
-    from notegen.loading import parse_yaml
+    from notegen.intake.files import parse_yaml
 
     line = json.dumps(parse_yaml(SAMPLE.read_text(encoding="utf-8"), SAMPLE.name), default=str) + "\n"
     command = [*_notegen_command(), "draft", "--jsonl", "-", "--format", "json"]
@@ -218,8 +218,8 @@ def pack_load(env: dict[str, str], repeats: int) -> dict[str, float]:
 import json, statistics, time
 from pathlib import Path
 from notegen.engine import load_pack
-from notegen.differential import alkalosis_pack_dirs
-from notegen.acid_base_settings import load_acid_base_settings
+from notegen.workup.alkalosis import alkalosis_pack_dirs
+from notegen.knowledge.settings import load_acid_base_settings
 dirs = alkalosis_pack_dirs()
 started = time.perf_counter(); load_pack(dirs); first = time.perf_counter() - started
 times = []
@@ -289,8 +289,8 @@ def _scaled_case(kind: str, size: int) -> dict[str, Any]:
 
 def scaling(rounds: int) -> dict[str, tuple[int, int, float]]:
     """How the time of one note grows when a list in the case grows fourfold (4.0 = linear)."""
-    from notegen.drafting import Drafter, DraftOptions
-    from notegen.validation import validate_case
+    from notegen.case.validation import validate_case
+    from notegen.pipeline import Drafter, DraftOptions
 
     drafter = Drafter()
     options = DraftOptions(output_format="markdown")

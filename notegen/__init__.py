@@ -14,30 +14,30 @@ from typing import TYPE_CHECKING, Any
 __version__ = "0.1.0"
 
 _EXPORTS: dict[str, str] = {
-    "AcidBaseReading": "notegen.acidbase_model",
-    "AcidBaseSettings": "notegen.acid_base_settings",
-    "Alert": "notegen.alerts",
-    "Assessment": "notegen.assessment",
-    "Calculation": "notegen.calculations",
-    "Case": "notegen.case",
+    "AcidBaseReading": "notegen.acidbase.model",
+    "AcidBaseSettings": "notegen.knowledge.settings",
+    "Alert": "notegen.acidbase.alert",
+    "Assessment": "notegen.assess.model",
+    "Calculation": "notegen.acidbase.calculations",
+    "Case": "notegen.case.model",
     "CaseFileError": "notegen.errors",
     "CaseValueError": "notegen.errors",
-    "DraftOptions": "notegen.drafting",
-    "Drafter": "notegen.drafting",
+    "DraftOptions": "notegen.pipeline",
+    "Drafter": "notegen.pipeline",
     "InputError": "notegen.errors",
     "NotegenError": "notegen.errors",
     "PasteError": "notegen.errors",
     "RulePackError": "notegen.errors",
     "TemplateError": "notegen.errors",
     "UsageError": "notegen.errors",
-    "check_rule_folders": "notegen.drafting",
-    "compute_calculations": "notegen.calculations",
-    "evaluate_alkalosis": "notegen.differential",
-    "load_acid_base_settings": "notegen.acid_base_settings",
-    "read_acid_base": "notegen.acidbase",
-    "read_case": "notegen.intake",
-    "render_note": "notegen.note",
-    "validate_case": "notegen.validation",
+    "check_rule_folders": "notegen.pipeline",
+    "compute_calculations": "notegen.acidbase.calculations",
+    "evaluate_alkalosis": "notegen.workup.alkalosis",
+    "load_acid_base_settings": "notegen.knowledge.settings",
+    "read_acid_base": "notegen.acidbase.reading",
+    "read_case": "notegen.intake.read",
+    "render_note": "notegen.note.writer",
+    "validate_case": "notegen.case.validation",
 }
 
 __all__ = [
@@ -68,15 +68,13 @@ __all__ = [
 ]
 
 if TYPE_CHECKING:
-    from notegen.acid_base_settings import AcidBaseSettings, load_acid_base_settings
-    from notegen.acidbase import read_acid_base
-    from notegen.acidbase_model import AcidBaseReading
-    from notegen.alerts import Alert
-    from notegen.assessment import Assessment
-    from notegen.calculations import Calculation, compute_calculations
-    from notegen.case import Case
-    from notegen.differential import evaluate_alkalosis
-    from notegen.drafting import Drafter, DraftOptions, check_rule_folders
+    from notegen.acidbase.alert import Alert
+    from notegen.acidbase.calculations import Calculation, compute_calculations
+    from notegen.acidbase.model import AcidBaseReading
+    from notegen.acidbase.reading import read_acid_base
+    from notegen.assess.model import Assessment
+    from notegen.case.model import Case
+    from notegen.case.validation import validate_case
     from notegen.errors import (
         CaseFileError,
         CaseValueError,
@@ -87,9 +85,11 @@ if TYPE_CHECKING:
         TemplateError,
         UsageError,
     )
-    from notegen.intake import read_case
-    from notegen.note import render_note
-    from notegen.validation import validate_case
+    from notegen.intake.read import read_case
+    from notegen.knowledge.settings import AcidBaseSettings, load_acid_base_settings
+    from notegen.note.writer import render_note
+    from notegen.pipeline import Drafter, DraftOptions, check_rule_folders
+    from notegen.workup.alkalosis import evaluate_alkalosis
 
 
 def __getattr__(name: str) -> Any:

@@ -35,7 +35,7 @@ def schema_text(kind: str) -> str:
 
 def output_schema() -> dict[str, Any]:
     """The schema of `notegen draft --format json`: the `Assessment` as dumped by alias."""
-    from notegen.assessment import Assessment
+    from notegen.assess.model import Assessment
 
     body = Assessment.model_json_schema(by_alias=True, mode="serialization")
     return {"$schema": DRAFT, "title": "notegen JSON output", **{k: v for k, v in body.items() if k != "title"}}
@@ -77,8 +77,9 @@ def _lab_value(description: str) -> dict[str, Any]:
 
 
 def _lab_section(section: str, description: str) -> dict[str, Any]:
-    from notegen import units, vocabulary
-    from notegen.validation import LAB_SECTIONS
+    from notegen.case import units
+    from notegen.case.validation import LAB_SECTIONS
+    from notegen.knowledge import vocabulary
 
     fields = vocabulary.fields()
     properties: dict[str, Any] = {
@@ -109,8 +110,8 @@ def _lab_section(section: str, description: str) -> dict[str, Any]:
 
 def case_schema() -> dict[str, Any]:
     """The schema of a case file (YAML or JSON), as `notegen draft` reads it."""
-    from notegen.validation_base import MAX_TEXT
-    from notegen.validation_context import (
+    from notegen.case.checks import MAX_TEXT
+    from notegen.case.context import (
         LEVEL_WORDS,
         MAX_MEDICATIONS,
         SCREEN_WORDS,

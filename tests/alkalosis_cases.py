@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from notegen.case import BloodPressure, Case, Chem, Context, Gas, Measurement, Medication, Patient, Urine
+from notegen.case.model import BloodPressure, Case, Chem, Context, Gas, Measurement, Medication, Patient, Urine
 
 # Classes as the medication vocabulary assigns them (rules/vocabulary/medications.yaml).
 CLASSES = {

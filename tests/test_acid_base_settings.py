@@ -7,15 +7,15 @@ from pathlib import Path
 import pytest
 import yaml
 
-from notegen.acid_base_settings import (
+from notegen.acidbase.reading import read_acid_base
+from notegen.case.model import Case, Chem, Gas
+from notegen.errors import RulePackError
+from notegen.knowledge.settings import (
     SETTING_NAMES,
     SHIPPED_ORIGIN,
     default_acid_base_settings,
     load_acid_base_settings,
 )
-from notegen.acidbase import read_acid_base
-from notegen.case import Case, Chem, Gas
-from notegen.errors import RulePackError
 from notegen.resources import rules_dir
 
 

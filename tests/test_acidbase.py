@@ -13,9 +13,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from notegen.acidbase import read_acid_base
-from notegen.acidbase_model import AcidBaseReading
-from notegen.case import Case, Chem, Gas
+from notegen.acidbase.model import AcidBaseReading
+from notegen.acidbase.reading import read_acid_base
+from notegen.case.model import Case, Chem, Gas
 
 
 def _ph(pco2: float, hco3: float) -> float:

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import pytest
 
-from notegen.differential import default_alkalosis_pack
 from notegen.engine import BooleanFact, FactInput, NumberFact, WalkResult, walk
+from notegen.workup.alkalosis import default_alkalosis_pack
 
 PACK = default_alkalosis_pack()
 
@@ -300,7 +300,7 @@ def test_blood_pressure_reads_as_a_reading() -> None:
 
 
 def test_no_sentence_holds_a_separator_the_paragraph_uses() -> None:
-    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.prose).
+    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.note.paragraph).
     for cause in PACK.spec.causes:
         for item in (*cause.evidence.supporting, *cause.evidence.opposing):
             assert not set(item.says) & set(";:()"), (cause.id, item.id, item.says)

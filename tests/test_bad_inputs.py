@@ -13,9 +13,9 @@ import pytest
 import yaml
 from typer.testing import CliRunner
 
-from notegen.cli import app
+from notegen.case.validation import validate_case
+from notegen.cli.app import app
 from notegen.errors import CaseValueError
-from notegen.validation import validate_case
 
 CORPUS = Path(__file__).parent / "bad_inputs"
 MANIFEST: list[dict[str, Any]] = yaml.safe_load((CORPUS / "manifest.yaml").read_text(encoding="utf-8"))

@@ -6,7 +6,7 @@ import os
 import stat
 from pathlib import Path
 
-from notegen.batch import write_atomically
+from notegen.cli.batch import write_atomically
 
 
 def test_written_note_follows_the_umask_and_leaves_no_temporary_file(tmp_path: Path) -> None:

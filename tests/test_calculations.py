@@ -6,7 +6,7 @@ import math
 
 import pytest
 
-from notegen.calculations import (
+from notegen.acidbase.calculations import (
     CREATININE_MOLAR_MASS,
     anion_gap,
     calculated_osmolality,
@@ -32,7 +32,7 @@ from notegen.calculations import (
     osmolal_gap,
     urine_potassium_creatinine_ratio,
 )
-from notegen.case import Case, Chem, Gas, Patient, Urine
+from notegen.case.model import Case, Chem, Gas, Patient, Urine
 from notegen.errors import CaseValueError, InputError
 
 # --- Blood gas arithmetic ---------------------------------------------------------------------------
@@ -282,7 +282,7 @@ def test_format_value(value: float, unit: str, text: str) -> None:
 
 
 def test_missing_egfr_says_which_of_age_and_sex_is_lacking() -> None:
-    from notegen.calculations import missing_calculations
+    from notegen.acidbase.calculations import missing_calculations
 
     case = Case(patient=Patient(age=66), chem=Chem(creatinine=1.4))
     assert missing_calculations(case)["egfr"] == (

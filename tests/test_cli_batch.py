@@ -9,9 +9,9 @@ from pathlib import Path
 
 from typer.testing import CliRunner
 
-from notegen.batch import run_batch
-from notegen.cli import app
-from notegen.drafting import Drafter, DraftOptions
+from notegen.cli.app import app
+from notegen.cli.batch import run_batch
+from notegen.pipeline import Drafter, DraftOptions
 
 ROOT = Path(__file__).parent.parent
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))

@@ -6,7 +6,7 @@ from pathlib import Path
 
 from typer.testing import CliRunner
 
-from notegen.cli import app
+from notegen.cli.app import app
 
 runner = CliRunner()
 

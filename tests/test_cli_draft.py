@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from notegen.cli import app
+from notegen.cli.app import app
 
 runner = CliRunner()
 SAMPLE = "samples/gastric_suction.yaml"
@@ -98,7 +98,7 @@ def test_help_has_an_example() -> None:
 
 
 def test_standard_input_past_the_size_limit_is_refused() -> None:
-    from notegen.loading import MAX_BYTES
+    from notegen.intake.files import MAX_BYTES
 
     result = runner.invoke(app, ["draft", "-"], input=b"#" * (MAX_BYTES + 10))
     assert result.exit_code == 2

@@ -6,9 +6,9 @@ from pathlib import Path
 
 from typer.testing import CliRunner
 
-from notegen.cli import app
-from notegen.loading import parse_text
-from notegen.validation import validate_case
+from notegen.case.validation import validate_case
+from notegen.cli.app import app
+from notegen.intake.files import parse_text
 
 runner = CliRunner()
 

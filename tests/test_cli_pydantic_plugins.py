@@ -24,19 +24,19 @@ def _run(code: str, **extra: str) -> str:
 
 
 def test_the_command_turns_plugins_off() -> None:
-    code = f"sys.argv = ['notegen', 'draft', {SAMPLE!r}, '--format', 'text']\nfrom notegen.cli import main\nmain()\n"
+    code = f"sys.argv = ['notegen', 'draft', {SAMPLE!r}, '--format', 'text']\nfrom notegen.cli.app import main\nmain()\n"
     assert _run(code) == "plugins: __all__"
 
 
 def test_a_value_the_user_set_is_kept() -> None:
-    code = f"sys.argv = ['notegen', 'draft', {SAMPLE!r}]\nfrom notegen.cli import main\nmain()\n"
+    code = f"sys.argv = ['notegen', 'draft', {SAMPLE!r}]\nfrom notegen.cli.app import main\nmain()\n"
     assert _run(code, PYDANTIC_DISABLE_PLUGINS="some_plugin") == "plugins: some_plugin"
 
 
 def test_a_caller_of_main_or_the_library_keeps_its_plugins() -> None:
     code = (
-        f"from notegen.cli import main\nmain(['draft', {SAMPLE!r}])\n"
-        f"from notegen.drafting import Drafter\nfrom notegen.intake import read_case\n"
+        f"from notegen.cli.app import main\nmain(['draft', {SAMPLE!r}])\n"
+        f"from notegen.pipeline import Drafter\nfrom notegen.intake.read import read_case\n"
         f"Drafter().draft(read_case({SAMPLE!r}))\n"
     )
     assert _run(code) == "plugins: None"

@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from notegen.cli import _plain_draft_arguments, app, main
+from notegen.cli.app import _plain_draft_arguments, app, main
 
 ROOT = Path(__file__).parent.parent
 SAMPLE = str(ROOT / "samples" / "gastric_suction.yaml")
@@ -100,7 +100,7 @@ def test_a_plain_call_reads_every_option() -> None:
 def test_a_plain_call_imports_no_cli_framework() -> None:
     code = (
         "import sys\n"
-        "from notegen.cli import main\n"
+        "from notegen.cli.app import main\n"
         f"status = main(['draft', {SAMPLE!r}, '--format', 'text'])\n"
         "loaded = sorted(m for m in sys.modules if m.split('.')[0] in {'typer', 'click', 'rich'})\n"
         "print(status, loaded, file=sys.stderr)\n"
@@ -115,7 +115,7 @@ def test_the_command_in_its_own_process_prints_what_typer_would(argv: list[str])
     # main() without arguments is the console script: the path that also tunes the garbage collector
     code = (
         "import gc, sys\n"
-        "from notegen.cli import main\n"
+        "from notegen.cli.app import main\n"
         f"sys.argv = ['notegen', *{argv!r}]\n"
         "status = main()\n"
         "print(status, gc.isenabled(), file=sys.stderr)\n"

@@ -21,7 +21,7 @@ CASES = [
     {"case": "first", "gas": {"sample": "arterial", "ph": 7.52, "pco2": 47, "hco3": 37}},
     {"case": "second", "gas": {"sample": "arterial", "ph": 7.30, "pco2": 30, "hco3": 14}},
 ]
-COMMAND = "import sys; from notegen.cli import main; sys.exit(main())"  # as the console script runs it
+COMMAND = "import sys; from notegen.cli.app import main; sys.exit(main())"  # as the console script runs it
 WAIT = 60.0  # seconds for one result: generous for a busy 2-core machine; the first includes start-up
 
 

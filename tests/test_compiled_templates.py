@@ -14,10 +14,10 @@ import jinja2
 import pytest
 
 import notegen
-from notegen.drafting import Drafter, DraftOptions
 from notegen.errors import TemplateError
-from notegen.intake import read_case
-from notegen.note import BRIEF_TEMPLATE, NOTE_TEMPLATE, note_context
+from notegen.intake.read import read_case
+from notegen.note.writer import BRIEF_TEMPLATE, NOTE_TEMPLATE, note_context
+from notegen.pipeline import Drafter, DraftOptions
 from notegen.render import make_environment, markdown_to_html_page, markdown_to_text, render_template
 from notegen.render.compiled_templates import MANIFEST, ShippedModuleLoader, compile_templates, compiled_loader
 from notegen.render.templating import shipped_environment
@@ -176,8 +176,8 @@ def test_an_installed_layout_drafts_every_sample_the_same_through_its_compiled_t
     compile_templates(site / "notegen" / "_data" / "templates", site / "notegen" / "_data" / "templates_compiled")
     script = (
         "import json, sys\n"
-        "from notegen.drafting import Drafter, DraftOptions\n"
-        "from notegen.intake import read_case\n"
+        "from notegen.pipeline import Drafter, DraftOptions\n"
+        "from notegen.intake.read import read_case\n"
         "from notegen.render import make_environment\n"
         "from notegen.resources import templates_dir\n"
         "loader = make_environment([templates_dir()], sandboxed=False).loader\n"

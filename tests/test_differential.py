@@ -8,17 +8,17 @@ from typing import Any
 import pytest
 from alkalosis_cases import alkalosis_case, med
 
-from notegen.acidbase import read_acid_base
-from notegen.calculations import compute_calculations
-from notegen.case import Case
-from notegen.differential import (
+from notegen.acidbase.calculations import compute_calculations
+from notegen.acidbase.reading import read_acid_base
+from notegen.case.model import Case
+from notegen.engine import FactInput, RulePack
+from notegen.workup.alkalosis import (
     RuleResult,
     check_alkalosis_pack,
     default_alkalosis_pack,
     evaluate_alkalosis,
     load_alkalosis_pack,
 )
-from notegen.engine import FactInput, RulePack
 
 
 def evaluate(
@@ -384,7 +384,7 @@ SAMPLE_LEADS: dict[str, set[str] | None] = {
 
 @pytest.mark.parametrize("stem", sorted(SAMPLE_LEADS), ids=sorted(SAMPLE_LEADS))
 def test_each_sample_leads_with_the_cause_a_nephrologist_would_name(stem: str) -> None:
-    from notegen.intake import read_case
+    from notegen.intake.read import read_case
 
     result = evaluate(read_case(str(SAMPLES / f"{stem}.yaml")))
     leads = SAMPLE_LEADS[stem]
@@ -399,14 +399,14 @@ def test_each_sample_leads_with_the_cause_a_nephrologist_would_name(stem: str) -
 
 
 def test_alkali_with_kidney_disease_is_maintained_by_the_low_gfr() -> None:
-    from notegen.intake import read_case
+    from notegen.intake.read import read_case
 
     result = evaluate(read_case(str(SAMPLES / "alkali_kidney_disease.yaml")))
     assert "reduced_gfr" in {f.factor for f in result.maintenance if f.status == "present"}
 
 
 def test_hidden_alkalosis_of_ketoacidosis_is_worked_up() -> None:
-    from notegen.intake import read_case
+    from notegen.intake.read import read_case
 
     result = evaluate(read_case(str(SAMPLES / "ketoacidosis_with_vomiting.yaml")))
     # Delta ratio 8 (Rastegar, JASN 2007): the alkalosis hidden by the acidosis is established.
@@ -445,8 +445,8 @@ def test_secondary_hyperaldosteronism_is_left_out_when_the_case_is_silent() -> N
 def test_renin_and_aldosterone_when_given_split_the_hypertensive_side_and_are_not_suggested_again() -> None:
     # Low renin with high aldosterone in a hypertensive chloride-resistant alkalosis: primary aldosteronism
     # pattern (Luke & Galla, JASN 2012); the test that would provide them is no longer suggested.
-    from notegen.drafting import Drafter
-    from notegen.validation import validate_case
+    from notegen.case.validation import validate_case
+    from notegen.pipeline import Drafter
 
     data = {
         "gas": {"sample": "arterial", "ph": 7.47, "pco2": 44, "hco3": 32},
@@ -465,8 +465,8 @@ def test_renin_and_aldosterone_when_given_split_the_hypertensive_side_and_are_no
 
 
 def test_a_positive_urine_diuretic_screen_counts_for_a_diuretic() -> None:
-    from notegen.drafting import Drafter
-    from notegen.validation import validate_case
+    from notegen.case.validation import validate_case
+    from notegen.pipeline import Drafter
 
     data = {
         "gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 34},

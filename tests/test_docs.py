@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 from typer.testing import CliRunner
 
-from notegen.cli import app
+from notegen.cli.app import app
 
 README = Path(__file__).resolve().parent.parent / "README.md"
 COMMANDS = sorted(command.name or command.callback.__name__ for command in app.registered_commands if command.callback)

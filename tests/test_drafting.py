@@ -9,11 +9,11 @@ from pathlib import Path
 
 import pytest
 
-from notegen.differential import evaluate_alkalosis
-from notegen.drafting import Drafter, DraftOptions, _alkalosis_to_work_up
+from notegen.case.validation import validate_case
 from notegen.errors import RulePackError
-from notegen.intake import read_case
-from notegen.validation import validate_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions, _alkalosis_to_work_up
+from notegen.workup.alkalosis import evaluate_alkalosis
 
 ROOT = Path(__file__).parent.parent
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
@@ -45,7 +45,7 @@ def test_a_note_without_an_alkalosis_never_loads_the_rule_engine() -> None:
         "import sys\n"
         "from notegen import Drafter, read_case\n"
         f"note = Drafter().draft(read_case({str(ROOT / 'samples' / 'chronic_co2_retention.yaml')!r}))\n"
-        "print(sorted(m for m in sys.modules if m.startswith(('notegen.engine', 'notegen.differential'))))\n"
+        "print(sorted(m for m in sys.modules if m.startswith(('notegen.engine', 'notegen.workup.alkalosis'))))\n"
     )
     result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert result.stdout == "[]\n"

@@ -216,7 +216,7 @@ def test_facts_are_checked_never_coerced(facts: dict[str, object], words: str) -
 def test_engine_imports_nothing_clinical_or_cli() -> None:
     code = (
         "import sys, notegen.engine; "
-        "bad = [m for m in sys.modules if m in ('typer', 'click', 'jinja2', 'notegen.case', 'notegen.cli')]; "
+        "bad = [m for m in sys.modules if m in ('typer', 'click', 'jinja2', 'notegen.case.model', 'notegen.cli.app')]; "
         "print(bad)"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout

@@ -5,12 +5,12 @@ from __future__ import annotations
 import pytest
 from alkalosis_cases import alkalosis_case, med
 
-from notegen.acidbase import read_acid_base
-from notegen.calculations import compute_calculations
-from notegen.case import Case, Medication
-from notegen.differential import default_alkalosis_pack
+from notegen.acidbase.calculations import compute_calculations
+from notegen.acidbase.reading import read_acid_base
+from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
-from notegen.facts import derive_facts, urine_calcium_creatinine_ratio
+from notegen.workup.alkalosis import default_alkalosis_pack
+from notegen.workup.facts import derive_facts, urine_calcium_creatinine_ratio
 
 PACK = default_alkalosis_pack()
 

@@ -20,13 +20,13 @@ import pytest
 import yaml
 from typer.testing import CliRunner
 
-from notegen.batch import run_batch, write_atomically
-from notegen.case import Case
-from notegen.cli import app
-from notegen.drafting import Drafter, DraftOptions
+from notegen.case.model import Case
+from notegen.cli.app import app
+from notegen.cli.batch import run_batch, write_atomically
 from notegen.errors import CaseFileError, NotegenError, UsageError
-from notegen.intake import read_case
-from notegen.loading import MAX_BYTES, MAX_DEPTH, MAX_YAML_CHARS, MAX_YAML_NODES, parse_text
+from notegen.intake.files import MAX_BYTES, MAX_DEPTH, MAX_YAML_CHARS, MAX_YAML_NODES, parse_text
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions
 
 ROOT = Path(__file__).parent.parent
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))

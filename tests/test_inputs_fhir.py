@@ -17,7 +17,7 @@ from typing import Any
 import pytest
 
 from notegen.errors import InputError
-from notegen.inputs.fhir import load_loinc_table, looks_like_fhir, read_fhir
+from notegen.intake.fhir import load_loinc_table, looks_like_fhir, read_fhir
 
 FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
 
@@ -192,14 +192,14 @@ def test_every_code_says_where_it_was_checked() -> None:
 
 
 def test_importing_the_reader_does_not_import_fhir_resources() -> None:
-    code = "import sys, notegen.inputs.fhir, notegen.inputs; print('fhir.resources' in sys.modules)"
+    code = "import sys, notegen.intake.fhir, notegen.intake; print('fhir.resources' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True,
                          cwd=Path(__file__).parent.parent)
     assert out.stdout.strip() == "False"
 
 
 def test_every_lab_field_has_a_code() -> None:
-    from notegen.case import Chem, Gas, Urine
+    from notegen.case.model import Chem, Gas, Urine
 
     fields = {entry.field for entry in load_loinc_table().codes.values()}
     for section, model in (("gas", Gas), ("chem", Chem), ("urine", Urine)):

@@ -7,7 +7,7 @@ import copy
 import pytest
 
 from notegen.errors import UsageError
-from notegen.inputs.overrides import apply_overrides, override_provenance
+from notegen.intake.overrides import apply_overrides, override_provenance
 
 
 def test_overrides_build_a_case_from_nothing() -> None:

@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 
 from notegen.errors import PasteError
-from notegen.inputs.paste import parse_paste
+from notegen.intake.paste import parse_paste
 
 FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 import pytest
 
 from notegen.errors import CaseFileError
-from notegen.loading import decode, parse_text
+from notegen.intake.files import decode, parse_text
 
 
 def _error(text: str, filename: str = "case.yaml") -> str:

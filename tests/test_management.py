@@ -9,12 +9,12 @@ from typing import Any
 
 import pytest
 
-from notegen.assessment import Assessment, CauseEntry, FactorEntry
-from notegen.drafting import Drafter
+from notegen.assess.considerations import load_considerations, management_considerations, select_considerations
+from notegen.assess.model import Assessment, CauseEntry, FactorEntry
+from notegen.case.validation import validate_case
 from notegen.errors import RulePackError
-from notegen.intake import read_case
-from notegen.management import load_considerations, management_considerations, select_considerations
-from notegen.validation import validate_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 

@@ -41,11 +41,11 @@ import yaml
 from hypothesis import given
 from test_properties import _profile, case_file
 
-from notegen.assessment import Assessment
-from notegen.case import Case
-from notegen.drafting import Drafter, DraftOptions
-from notegen.intake import read_case
-from notegen.validation import validate_case
+from notegen.assess.model import Assessment
+from notegen.case.model import Case
+from notegen.case.validation import validate_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions
 
 ROOT = Path(__file__).parent.parent
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from notegen.drafting import Drafter, DraftOptions
-from notegen.intake import read_case
-from notegen.note import complete_assessment, note_context
+from notegen.intake.read import read_case
+from notegen.note.writer import complete_assessment, note_context
+from notegen.pipeline import Drafter, DraftOptions
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 

@@ -24,12 +24,12 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from notegen import units as u
-from notegen import vocabulary as vocab
-from notegen.assessment import Assessment
-from notegen.cli import app
-from notegen.drafting import Drafter, DraftOptions
-from notegen.validation import LAB_SECTIONS, pco2_fits_other_unit, validate_case
+from notegen.assess.model import Assessment
+from notegen.case import units as u
+from notegen.case.validation import LAB_SECTIONS, pco2_fits_other_unit, validate_case
+from notegen.cli.app import app
+from notegen.knowledge import vocabulary as vocab
+from notegen.pipeline import Drafter, DraftOptions
 
 FORMATS = ("markdown", "text", "html", "json")
 DIURETIC_CLASSES = frozenset({"loop_diuretic", "thiazide_diuretic", "potassium_sparing_diuretic"})

@@ -15,11 +15,11 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from notegen.assessment import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest
-from notegen.drafting import Drafter
-from notegen.intake import read_case
-from notegen.prose import draft_paragraph
-from notegen.validation import pco2_fits_other_unit, validate_case
+from notegen.assess.model import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest
+from notegen.case.validation import pco2_fits_other_unit, validate_case
+from notegen.intake.read import read_case
+from notegen.note.paragraph import draft_paragraph
+from notegen.pipeline import Drafter
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 

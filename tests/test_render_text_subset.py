@@ -20,12 +20,12 @@ from hypothesis import given
 from hypothesis import strategies as st
 from test_properties import _profile, alkalosis_case_file, case_file
 
-from notegen.drafting import Drafter, DraftOptions
-from notegen.intake import read_case
+from notegen.case.validation import validate_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions
 from notegen.render import escape_markdown
 from notegen.render._subset import parse_note_markdown
 from notegen.render.text import MarkdownNode, blocks_to_text, markdown_it_blocks, markdown_to_text
-from notegen.validation import validate_case
 
 ROOT = Path(__file__).resolve().parents[1]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
@@ -469,8 +469,8 @@ def test_markdown_it_still_reads_what_the_fast_parser_declines() -> None:
 def test_a_text_note_from_a_fresh_interpreter_never_imports_markdown_it() -> None:
     program = (
         "import sys\n"
-        "from notegen.drafting import Drafter, DraftOptions\n"
-        "from notegen.intake import read_case\n"
+        "from notegen.pipeline import Drafter, DraftOptions\n"
+        "from notegen.intake.read import read_case\n"
         f"text = Drafter().draft(read_case({str(SAMPLES[0])!r}), DraftOptions(output_format='text'))\n"
         "assert 'ACID-BASE ASSESSMENT' in text, text\n"
         "print(sorted(name for name in sys.modules if name.split('.')[0] == 'markdown_it'))\n"

@@ -9,8 +9,8 @@ from pathlib import Path
 
 import pytest
 
-from notegen.drafting import Drafter, DraftOptions
-from notegen.intake import read_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 EXPECTED = SAMPLES / "expected"

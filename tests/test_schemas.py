@@ -11,9 +11,9 @@ import jsonschema
 import pytest
 import yaml
 
-from notegen.drafting import Drafter, DraftOptions
 from notegen.errors import UsageError
-from notegen.intake import read_case
+from notegen.intake.read import read_case
+from notegen.pipeline import Drafter, DraftOptions
 from notegen.schemas import schema_text
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -136,8 +136,8 @@ def test_the_blank_case_file_validates(case_validator: jsonschema.protocols.Vali
 def test_case_schema_refuses_what_the_validator_refuses(
     data: dict[str, Any], case_validator: jsonschema.protocols.Validator
 ) -> None:
+    from notegen.case.validation import validate_case
     from notegen.errors import InputError
-    from notegen.validation import validate_case
 
     assert errors(case_validator, data)
     with pytest.raises(InputError):
@@ -166,7 +166,7 @@ def test_case_schema_refuses_what_the_validator_refuses(
 def test_case_schema_accepts_what_the_validator_accepts(
     data: dict[str, Any], case_validator: jsonschema.protocols.Validator
 ) -> None:
-    from notegen.validation import validate_case
+    from notegen.case.validation import validate_case
 
     validate_case(data)
     assert errors(case_validator, data) == []

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 from typing import Any
 
-from notegen.drafting import Drafter, DraftOptions
-from notegen.trend import build_trend
-from notegen.validation import validate_case
+from notegen.case.trend import build_trend
+from notegen.case.validation import validate_case
+from notegen.pipeline import Drafter, DraftOptions
 
 SERIAL: dict[str, Any] = {
     "gas": [

@@ -12,7 +12,7 @@ from __future__ import annotations
 import pint
 import pytest
 
-from notegen import units as u
+from notegen.case import units as u
 
 ureg = pint.UnitRegistry()
 
@@ -102,7 +102,7 @@ def test_unknown_unit_is_none() -> None:
 
 
 def test_every_field_has_its_canonical_unit_with_factor_one() -> None:
-    from notegen.case import CANONICAL_UNITS
+    from notegen.case.model import CANONICAL_UNITS
 
     assert set(CANONICAL_UNITS) == set(u.FIELD_UNITS)
     for field, canonical in CANONICAL_UNITS.items():

@@ -6,8 +6,8 @@ from typing import Any
 
 import pytest
 
+from notegen.case.validation import validate_case
 from notegen.errors import CaseFileError, CaseValueError
-from notegen.validation import validate_case
 
 
 def _problem(data: Any) -> str:

@@ -18,8 +18,8 @@ EXPECTED = SAMPLES / "expected"
 
 def golden_notes() -> dict[Path, str]:
     """Each sample's golden file path and the Markdown note the code drafts for it now."""
-    from notegen.drafting import Drafter
-    from notegen.intake import read_case
+    from notegen.intake.read import read_case
+    from notegen.pipeline import Drafter
 
     drafter = Drafter()
     return {

@@ -1,6 +1,6 @@
 """A generic YAML rule engine: facts in, a walked decision tree and ranked causes out.
 
-It knows nothing of medicine; the clinical pack under `rules/` and `notegen.facts` give it meaning.
+It knows nothing of medicine; the clinical pack under `rules/` and `notegen.workup.facts` give it meaning.
 
     pack = load_pack([shipped_dir, service_dir])   # later folders override by id
     result = walk(pack, {"soil_moisture": NumberFact(12, "%"), "wilting": True})

@@ -1,0 +1,159 @@
+"""Severity alerts of the acid-base reading: pH, potassium, calcium, magnesium, hypoventilation.
+
+Thresholds come from `AcidBaseSettings`; each message is a sentence for the clinician, phrased as
+considerations, never doses.
+"""
+
+from __future__ import annotations
+
+from notegen.acidbase.alert import Alert, AlertLevel
+from notegen.acidbase.calculations import format_value, round_half_up, usable
+from notegen.case.model import Case
+from notegen.knowledge.settings import AcidBaseSettings
+
+
+def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
+    return [Alert(code=code, level=level, message=" ".join(parts))]
+
+
+def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
+    if ph is None:
+        return []
+    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "")
+    if ph >= s.alkalemia_critical.value:
+        return _alert(
+            "severe_alkalemia", "critical",
+            f"pH {shown} is at or above {format_value(s.alkalemia_critical.value)}: severe alkalemia,",
+            "which carries a high mortality (Anderson & Henrich 1987);",
+            "consider urgent review and monitoring for arrhythmia.",
+        )  # fmt: skip
+    if ph >= s.alkalemia_warning.value:
+        return _alert(
+            "severe_alkalemia", "warning",
+            f"pH {shown} is at or above {format_value(s.alkalemia_warning.value)}: marked alkalemia;",
+            "consider prompt review of its cause and of potassium and ionized calcium.",
+        )  # fmt: skip
+    if ph <= s.acidemia_critical.value:
+        return _alert(
+            "severe_acidemia", "critical",
+            f"pH {shown} is at or below {format_value(s.acidemia_critical.value)}: severe acidemia;",
+            "consider urgent review.",
+        )  # fmt: skip
+    if ph <= s.acidemia_warning.value:
+        return _alert(
+            "severe_acidemia", "warning",
+            f"pH {shown} is at or below {format_value(s.acidemia_warning.value)}: marked acidemia;",
+            "consider prompt review of its cause.",
+        )  # fmt: skip
+    return []
+
+
+def _potassium_alerts(k: float | None, s: AcidBaseSettings) -> list[Alert]:
+    if not usable(k):
+        return []
+    assert k is not None
+    shown = format_value(k, "mmol/L")
+    if k < s.potassium_low_critical.value:
+        return _alert(
+            "severe_hypokalemia", "critical",
+            f"Potassium {shown} is below {format_value(s.potassium_low_critical.value, 'mmol/L')}:",
+            "severe hypokalemia; consider cardiac monitoring and prompt repletion, and check magnesium.",
+        )  # fmt: skip
+    if k < s.potassium_low_warning.value:
+        return _alert(
+            "hypokalemia", "warning",
+            f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:",
+            "hypokalemia, which also sustains a metabolic alkalosis;",
+            "consider repletion and checking magnesium.",
+        )  # fmt: skip
+    if k >= s.potassium_high_critical.value:
+        return _alert(
+            "severe_hyperkalemia", "critical",
+            f"Potassium {shown} is at or above {format_value(s.potassium_high_critical.value, 'mmol/L')}:",
+            "severe hyperkalemia; consider an ECG and urgent treatment, after excluding a hemolyzed sample.",
+        )  # fmt: skip
+    if k >= s.potassium_high_warning.value:
+        return _alert(
+            "hyperkalemia", "warning",
+            f"Potassium {shown} is at or above {format_value(s.potassium_high_warning.value, 'mmol/L')}:",
+            "hyperkalemia; consider an ECG and repeating the sample.",
+        )  # fmt: skip
+    return []
+
+
+def _calcium_alerts(ionized: float | None, alkalemic: bool, s: AcidBaseSettings) -> list[Alert]:
+    if not usable(ionized):
+        return []
+    assert ionized is not None
+    shown = format_value(ionized, "mmol/L")
+    why = ("Alkalemia lowers ionized calcium further.",) if alkalemic else ()
+    if ionized < s.ionized_ca_low_critical.value:
+        return _alert(
+            "low_ionized_calcium", "critical",
+            f"Ionized calcium {shown} is below {format_value(s.ionized_ca_low_critical.value, 'mmol/L')}:",
+            "severe hypocalcemia; consider cardiac monitoring and urgent review.", *why,
+        )  # fmt: skip
+    if ionized < s.ionized_ca_low_warning.value:
+        return _alert(
+            "low_ionized_calcium", "warning",
+            f"Ionized calcium {shown} is below {format_value(s.ionized_ca_low_warning.value, 'mmol/L')};",
+            "consider watching for tetany and arrhythmia.", *why,
+        )  # fmt: skip
+    return []
+
+
+def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
+    if not usable(mg):
+        return []
+    assert mg is not None
+    shown = format_value(mg, "mg/dL")
+    if mg < s.magnesium_low_warning.value:
+        return _alert(
+            "hypomagnesemia", "warning",
+            f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}:",
+            "marked hypomagnesemia; potassium is hard to replete until magnesium is restored.",
+        )  # fmt: skip
+    if mg < s.magnesium_low.value:
+        return _alert(
+            "hypomagnesemia", "info",
+            f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')};",
+            "low magnesium hinders potassium repletion.",
+        )  # fmt: skip
+    return []
+
+
+def _hypoventilation_alert(
+    hco3: float | None, pco2: float | None, venous: bool, s: AcidBaseSettings
+) -> list[Alert]:
+    if hco3 is None or pco2 is None:
+        return []
+    if hco3 < s.bicarbonate_very_high.value or pco2 < s.hypoventilation_pco2.value:
+        return []
+    kind = "venous PCO2" if venous else "PaCO2"
+    return _alert(
+        "high_bicarbonate_hypoventilation", "warning",
+        f"Bicarbonate {format_value(hco3, 'mmol/L')} with {kind} {format_value(pco2, 'mmHg')}:",
+        "hypoventilation with a very high bicarbonate, past the usual limit of respiratory compensation;",
+        "consider an added respiratory acidosis, and review oxygen targets and sedating drugs.",
+    )  # fmt: skip
+
+
+def severity_alerts(
+    case: Case,
+    s: AcidBaseSettings,
+    *,
+    ph: float | None,
+    ph_calculated: bool,
+    pco2: float | None,
+    hco3: float | None,
+    alkalemic: bool,
+    venous: bool,
+) -> list[Alert]:
+    """Alerts for dangerous values, in a fixed order (pH, potassium, calcium, magnesium, ventilation)."""
+    alerts: list[Alert] = []
+    alerts += _ph_alerts(ph, ph_calculated, s)
+    alerts += _potassium_alerts(case.chem.k, s)
+    alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)
+    alerts += _magnesium_alerts(case.chem.mg, s)
+    alerts += _hypoventilation_alert(hco3, pco2, venous, s)
+    return alerts

@@ -1,0 +1,103 @@
+"""Typed result of the acid-base reading (`notegen.acidbase.reading.read_acid_base`)."""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from pydantic import BaseModel, ConfigDict
+
+from notegen.acidbase.alert import Alert
+
+PhStatus = Literal["acidemia", "alkalemia", "normal"]
+Disorder = Literal[
+    "metabolic_alkalosis", "metabolic_acidosis", "respiratory_acidosis", "respiratory_alkalosis"
+]
+Primary = Literal[
+    "metabolic_alkalosis",
+    "metabolic_acidosis",
+    "respiratory_acidosis",
+    "respiratory_alkalosis",
+    "none",
+    "undetermined",
+]
+CompensationStatus = Literal["appropriate", "inappropriate", "uncertain", "not_applicable"]
+# "indeterminate": the acute and chronic ranges overlap at this PaCO2, or a second metabolic
+# disorder moves the bicarbonate so that chronicity cannot be read from it.
+Chronicity = Literal["acute", "chronic", "between", "indeterminate"]
+GapStatus = Literal["high", "normal"]
+AcidosisKind = Literal["high_gap", "normal_gap", "high_and_normal_gap"]
+SampleKind = Literal["arterial", "venous", "unstated"]
+ValueSource = Literal["measured", "calculated", "panel"]
+Consistency = Literal["consistent", "inconsistent", "not_checked"]
+Certainty = Literal["established", "possible"]
+GapBicarbonate = Literal["gas bicarbonate", "panel total CO2"]
+
+_FROZEN = ConfigDict(frozen=True, extra="forbid")
+
+
+class ExpectedRange(BaseModel):
+    """The compensation a published rule predicts: `quantity` is what the rule predicts."""
+
+    model_config = _FROZEN
+
+    quantity: Literal["pco2", "hco3"]
+    value: float
+    low: float
+    high: float
+    unit: str
+    rule: str  # e.g. "Winter's formula", "0.7 rule", "chronic respiratory acidosis rule"
+    source: str
+
+
+class DisorderBasis(BaseModel):
+    """Why a disorder is listed, and how firmly."""
+
+    model_config = _FROZEN
+
+    disorder: Disorder
+    certainty: Certainty
+    basis: str  # a clinical sentence
+
+
+class AcidBaseReading(BaseModel):
+    """The reading of one case. `disorders` holds established disorders, the primary first."""
+
+    model_config = _FROZEN
+
+    # The values the reading used, and where each came from.
+    sample: SampleKind | None  # None: no gas values at all
+    ph: float | None
+    ph_source: ValueSource | None
+    pco2: float | None
+    hco3: float | None
+    hco3_source: ValueSource | None
+    calculated_ph: float | None
+    consistency: Consistency
+
+    ph_status: PhStatus | None
+    ph_bounds: tuple[float, float]
+
+    primary: Primary
+    primary_reason: str
+    disorders: tuple[Disorder, ...]
+    possible_disorders: tuple[Disorder, ...]
+    disorder_basis: tuple[DisorderBasis, ...]
+
+    compensation: CompensationStatus
+    expected: ExpectedRange | None
+    expected_alternatives: tuple[ExpectedRange, ...]  # acute and chronic ranges of a respiratory primary
+    chronicity: Chronicity | None
+
+    anion_gap: float | None
+    anion_gap_corrected: float | None
+    anion_gap_status: GapStatus | None
+    anion_gap_reference: tuple[float, float]
+    anion_gap_bicarbonate: GapBicarbonate | None
+    delta_gap: float | None
+    delta_ratio: float | None
+    delta_ratio_interpretation: str | None
+    metabolic_acidosis_kind: AcidosisKind | None
+
+    missing: tuple[str, ...]
+    alerts: tuple[Alert, ...]
+    findings: tuple[str, ...]

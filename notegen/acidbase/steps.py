@@ -1,0 +1,360 @@
+"""Steps of the acid-base reading shared by `notegen.acidbase.reading`: the working draft, compensation, anion gap.
+
+Split from `acidbase.py` along the seam between reading the gas (there) and judging compensation and
+the gaps (here). Everything here writes its findings into a `ReadingDraft`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from notegen.acidbase.alert import Alert
+from notegen.acidbase.calculations import (
+    anion_gap,
+    corrected_anion_gap,
+    delta_gap,
+    delta_ratio,
+    expected_hco3_acute_respiratory_acidosis,
+    expected_hco3_acute_respiratory_alkalosis,
+    expected_hco3_chronic_respiratory_acidosis,
+    expected_hco3_chronic_respiratory_alkalosis,
+    expected_pco2_metabolic_acidosis,
+    expected_pco2_metabolic_alkalosis,
+    format_value,
+    gap_bicarbonate,
+    round_half_up,
+    usable,
+)
+from notegen.acidbase.model import (
+    Certainty,
+    Chronicity,
+    CompensationStatus,
+    Disorder,
+    DisorderBasis,
+    ExpectedRange,
+    GapStatus,
+    PhStatus,
+    SampleKind,
+    ValueSource,
+)
+from notegen.case.model import Case
+from notegen.knowledge.settings import AcidBaseSettings
+
+EPS = 1e-9  # measured values on a range bound count as inside it
+WORDS: dict[str, str] = {
+    "metabolic_alkalosis": "metabolic alkalosis",
+    "metabolic_acidosis": "metabolic acidosis",
+    "respiratory_acidosis": "respiratory acidosis",
+    "respiratory_alkalosis": "respiratory alkalosis",
+}
+# Bloom et al., Eur J Emerg Med 2014: mean venous-minus-arterial differences.
+VENOUS_PH_OFFSET = 0.033
+
+
+# Figures in sentences round half away from zero, as the note's tables do (`round_half_up`).
+def mm(value: float) -> str:
+    return format_value(round_half_up(value, 1), "mmHg")
+
+
+def mmol(value: float) -> str:
+    return format_value(round_half_up(value, 1), "mmol/L")
+
+
+def span(low: float, high: float, unit: str) -> str:
+    return f"{format_value(round_half_up(low, 1))}-{format_value(round_half_up(high, 1), unit)}"
+
+
+def ph_text(value: float) -> str:
+    return f"{round_half_up(value, 2):.2f}"
+
+
+@dataclass
+class ReadingDraft:
+    """What the reading accumulates as it goes; turned into the frozen model at the end."""
+
+    s: AcidBaseSettings
+    venous: bool
+    findings: list[str] = field(default_factory=list)
+    missing: list[str] = field(default_factory=list)
+    alerts: list[Alert] = field(default_factory=list)
+    bases: list[DisorderBasis] = field(default_factory=list)
+
+    def add(self, disorder: Disorder, basis: str, certainty: Certainty = "established") -> None:
+        for i, known in enumerate(self.bases):
+            if known.disorder == disorder:
+                if known.certainty == "possible" and certainty == "established":
+                    self.bases[i] = DisorderBasis(disorder=disorder, certainty=certainty, basis=basis)
+                return
+        self.bases.append(DisorderBasis(disorder=disorder, certainty=certainty, basis=basis))
+
+    def has(self, disorder: Disorder) -> bool:
+        return any(b.disorder == disorder and b.certainty == "established" for b in self.bases)
+
+
+@dataclass(frozen=True)
+class GasValues:
+    sample: SampleKind | None
+    ph: float | None
+    ph_source: ValueSource | None
+    pco2: float | None
+    hco3: float | None
+    hco3_source: ValueSource | None
+
+
+def metabolic_compensation(
+    primary: Disorder, g: GasValues, w: ReadingDraft
+) -> tuple[CompensationStatus, ExpectedRange]:
+    s = w.s
+    assert g.pco2 is not None and g.hco3 is not None
+    if primary == "metabolic_acidosis":
+        est = expected_pco2_metabolic_acidosis(g.hco3, s.winters_tolerance.value)
+        rule, source = "Winter's formula", "Albert, Dell & Winters, Ann Intern Med 1967"
+    else:
+        est = expected_pco2_metabolic_alkalosis(
+            g.hco3,
+            s.alkalosis_pco2_slope.value,
+            s.alkalosis_pco2_tolerance.value,
+            s.pco2_normal.value,
+            s.hco3_normal.value,
+        )
+        rule, source = "0.7 rule", "Berend, de Vries & Gans, NEJM 2014"
+    expected = ExpectedRange(
+        quantity="pco2",
+        value=round(est.value, 2),
+        low=round(est.low, 2),
+        high=round(est.high, 2),
+        unit="mmHg",
+        rule=rule,
+        source=source,
+    )
+    pco2_word = "venous PCO2" if w.venous else "PaCO2"
+    head = (
+        f"Expected PaCO2 for this {WORDS[primary]} is {span(est.low, est.high, 'mmHg')} ({rule}, {source}); "
+        f"measured {pco2_word} {mm(g.pco2)}"
+    )
+    added: Disorder | None = None
+    if g.pco2 > est.high + EPS:
+        added = "respiratory_acidosis"
+    elif g.pco2 < est.low - EPS:
+        added = "respiratory_alkalosis"
+    if added is None:
+        ceiling = s.alkalosis_pco2_ceiling.value
+        if primary == "metabolic_alkalosis" and g.pco2 > ceiling:
+            w.findings.append(
+                f"{head}: within the rule, but compensation above about {mm(ceiling)} is "
+                "uncommon (Galla 2000); an added respiratory acidosis is possible."
+            )
+            w.add("respiratory_acidosis", f"{pco2_word} above the usual ceiling of compensation", "possible")
+            return "uncertain", expected
+        if w.venous:
+            w.findings.append(
+                f"{head}: it would fit, but a venous PCO2 cannot confirm compensation (see below)."
+            )
+            return "uncertain", expected
+        w.findings.append(f"{head}: compensation is appropriate.")
+        return "appropriate", expected
+    side = "above" if added == "respiratory_acidosis" else "below"
+    ceiling = s.alkalosis_pco2_ceiling.value
+    tolerance = s.alkalosis_pco2_tolerance.value
+    if primary == "metabolic_alkalosis" and added == "respiratory_alkalosis" and g.pco2 >= ceiling - tolerance:
+        # The 0.7 rule runs past what ventilation usually delivers (about 55 mmHg, Galla 2000): a PaCO2
+        # near that ceiling may be maximal compensation rather than an added respiratory alkalosis.
+        w.findings.append(
+            f"{head}, {side} the range, but near the usual ceiling of compensation (about {mm(ceiling)}, "
+            "Galla 2000); an added respiratory alkalosis is possible, not established."
+        )
+        w.add(added, f"{pco2_word} {mm(g.pco2)} is near the usual ceiling of compensation", "possible")
+        return "uncertain", expected
+    if w.venous:
+        w.findings.append(
+            f"{head}, {side} the range; with a venous sample this only suggests an added {WORDS[added]}."
+        )
+        w.add(added, f"venous PCO2 {side} the range expected for the {WORDS[primary]}", "possible")
+        return "uncertain", expected
+    w.findings.append(f"{head}, {side} the range: an added {WORDS[added]}.")
+    w.add(added, f"PaCO2 {mm(g.pco2)} is {side} the {rule} range for the {WORDS[primary]}")
+    return "inappropriate", expected
+
+
+def respiratory_compensation(
+    primary: Disorder, g: GasValues, w: ReadingDraft
+) -> tuple[CompensationStatus, ExpectedRange, tuple[ExpectedRange, ...], Chronicity]:
+    s = w.s
+    assert g.pco2 is not None and g.hco3 is not None
+    tol, n_p, n_h = s.resp_hco3_tolerance.value, s.pco2_normal.value, s.hco3_normal.value
+    if primary == "respiratory_acidosis":
+        acute = expected_hco3_acute_respiratory_acidosis(
+            g.pco2, s.resp_acidosis_acute_slope.value, tol, n_p, n_h
+        )
+        chronic = expected_hco3_chronic_respiratory_acidosis(
+            g.pco2, s.resp_acidosis_chronic_slope.value, tol, n_p, n_h
+        )
+        sources = (s.resp_acidosis_acute_slope.source, s.resp_acidosis_chronic_slope.source)
+    else:
+        acute = expected_hco3_acute_respiratory_alkalosis(
+            g.pco2, s.resp_alkalosis_acute_slope.value, tol, n_p, n_h
+        )
+        chronic = expected_hco3_chronic_respiratory_alkalosis(
+            g.pco2, s.resp_alkalosis_chronic_slope.value, tol, n_p, n_h
+        )
+        sources = (s.resp_alkalosis_acute_slope.source, s.resp_alkalosis_chronic_slope.source)
+    word = WORDS[primary]
+    ranges = tuple(
+        ExpectedRange(
+            quantity="hco3",
+            value=round(e.value, 2),
+            low=round(e.low, 2),
+            high=round(e.high, 2),
+            unit="mmol/L",
+            rule=f"{kind} {word} rule",
+            source=src,
+        )
+        for kind, e, src in (("acute", acute, sources[0]), ("chronic", chronic, sources[1]))
+    )
+    in_acute = acute.low - EPS <= g.hco3 <= acute.high + EPS
+    in_chronic = chronic.low - EPS <= g.hco3 <= chronic.high + EPS
+    lowest = min(acute.low, chronic.low)
+    highest = max(acute.high, chronic.high)
+    both = ExpectedRange(
+        quantity="hco3",
+        value=round((acute.value + chronic.value) / 2, 2),
+        low=round(lowest, 2),
+        high=round(highest, 2),
+        unit="mmol/L",
+        rule=f"acute to chronic {word} rules",
+        source=f"{sources[0]}; {sources[1]}",
+    )
+    head = (
+        f"Expected bicarbonate for a {word} at this PaCO2: acute {span(acute.low, acute.high, 'mmol/L')}, "
+        f"chronic {span(chronic.low, chronic.high, 'mmol/L')}; measured {mmol(g.hco3)}"
+    )
+    chronicity: Chronicity
+    if in_acute and in_chronic:
+        chronicity, expected, verdict = "indeterminate", both, "the acute and chronic ranges overlap here"
+    elif in_acute:
+        chronicity, expected, verdict = "acute", ranges[0], "fits an acute process"
+    elif in_chronic:
+        chronicity, expected, verdict = "chronic", ranges[1], "fits a chronic process"
+    elif lowest < g.hco3 < highest:
+        chronicity, expected = "between", both
+        verdict = "between the acute and chronic ranges (evolving over hours to days, or acute on chronic)"
+    else:
+        added: Disorder = "metabolic_alkalosis" if g.hco3 > highest else "metabolic_acidosis"
+        side = "above" if added == "metabolic_alkalosis" else "below"
+        if w.venous:
+            w.findings.append(
+                f"{head}, {side} both ranges; with a venous sample this only suggests an added "
+                f"{WORDS[added]}."
+            )
+            w.add(added, f"bicarbonate {side} the range expected for the {word}", "possible")
+            return "uncertain", both, ranges, "indeterminate"
+        w.findings.append(
+            f"{head}, {side} both ranges: an added {WORDS[added]}; chronicity cannot be read "
+            "from the bicarbonate."
+        )
+        w.add(added, f"bicarbonate {mmol(g.hco3)} is {side} the compensation expected for the {word}")
+        return "inappropriate", both, ranges, "indeterminate"
+    if w.venous:
+        w.findings.append(f"{head}: {verdict}, though a venous PCO2 cannot confirm it.")
+        return "uncertain", expected, ranges, chronicity
+    w.findings.append(f"{head}: {verdict}; compensation is appropriate.")
+    return "appropriate", expected, ranges, chronicity
+
+
+@dataclass
+class GapResult:
+    value: float | None = None
+    corrected: float | None = None
+    status: GapStatus | None = None
+    bicarbonate: str | None = None
+    delta_gap: float | None = None
+    delta_ratio: float | None = None
+    interpretation: str | None = None
+    normal_gap_acidosis: bool = False
+
+
+def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> GapResult:
+    s, chem, out = w.s, case.chem, GapResult()
+    source = gap_bicarbonate(case)
+    if not (usable(chem.na) and usable(chem.cl)) or source is None:
+        w.missing.append("Anion gap: needs sodium, chloride and a bicarbonate (gas or panel total CO2).")
+        return out
+    assert chem.na is not None and chem.cl is not None
+    hco3, label = source
+    out.bicarbonate = label
+    out.value = anion_gap(chem.na, chem.cl, hco3)
+    used = out.value
+    low, high = s.anion_gap_low.value, s.anion_gap_high.value
+    text = f"Anion gap {mmol(out.value)} (using the {label})"
+    if usable(chem.albumin):
+        assert chem.albumin is not None
+        out.corrected = corrected_anion_gap(
+            out.value, chem.albumin, s.normal_albumin.value, s.albumin_gap_factor.value
+        )
+        used = out.corrected
+        text += (
+            f", {mmol(out.corrected)} corrected for albumin {format_value(chem.albumin, 'g/dL')} "
+            f"(Figge 1998, normal albumin {format_value(s.normal_albumin.value, 'g/dL')})"
+        )
+    else:
+        w.missing.append(
+            "Albumin: not given, so the anion gap is not corrected; a low albumin can hide a "
+            "high-gap acidosis."
+        )
+    out.status = "high" if used > high + EPS else "normal"
+    text += f"; reference {span(low, high, 'mmol/L')}: {out.status}."
+    if used < low - EPS:
+        text = text[:-1] + " (below range: consider a low albumin or a laboratory error)."
+    w.findings.append(text)
+    if out.status != "high":
+        return out
+    w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
+    if ph_status == "alkalemia" and used <= high + 4:
+        w.findings.append(
+            "Alkalemia itself raises the anion gap by a few mmol/L, so a modest rise like this "
+            "may not mean a separate acidosis; a lactate would help."
+        )
+    n_gap, n_hco3 = s.anion_gap_normal.value, s.hco3_normal.value
+    out.delta_gap = delta_gap(used, n_gap)
+    lo, pure, hi = s.delta_ratio_low.value, s.delta_ratio_pure.value, s.delta_ratio_high.value
+    resp_acidosis = w.has("respiratory_acidosis")
+    if hco3 >= n_hco3:
+        out.interpretation = (
+            "bicarbonate has not fallen despite the high gap: a concurrent metabolic "
+            "alkalosis" + (" or the compensation of the respiratory acidosis" if resp_acidosis else "")
+        )
+        w.findings.append(
+            f"Bicarbonate {mmol(hco3)} has not fallen below {mmol(n_hco3)} although the gap "
+            f"is high: {out.interpretation} (Rastegar 2007)."
+        )
+        _add_gap_alkalosis(w, "a high anion gap without a fall in bicarbonate")
+        return out
+    out.delta_ratio = delta_ratio(used, hco3, n_gap, n_hco3)
+    r = out.delta_ratio
+    if r < lo:
+        out.interpretation = "a normal-gap acidosis accompanies the high-gap acidosis"
+        out.normal_gap_acidosis = True
+    elif r < pure:
+        out.interpretation = "a mixed high-gap and normal-gap acidosis is possible"
+    elif r <= hi:
+        out.interpretation = "a high-gap acidosis alone"
+    else:
+        out.interpretation = "a concurrent metabolic alkalosis" + (
+            " or the compensation of a respiratory acidosis" if resp_acidosis else ""
+        )
+        _add_gap_alkalosis(w, f"delta ratio {round_half_up(r, 1):.1f}, above {format_value(hi)}")
+    w.findings.append(
+        f"Delta ratio {r:.1f} ((gap - {format_value(n_gap)}) / ({format_value(n_hco3)} - "
+        f"bicarbonate)): {out.interpretation} (Rastegar 2007)."
+    )
+    if n_hco3 - hco3 < 2:
+        w.findings.append("The bicarbonate has fallen by under 2 mmol/L, so the delta ratio is unstable.")
+    return out
+
+
+def _add_gap_alkalosis(w: ReadingDraft, why: str) -> None:
+    # Rastegar 2007: a high ratio also follows a compensated respiratory acidosis. When that acidosis is
+    # the primary disorder, its compensation is the likelier source of the bicarbonate, so the alkalosis
+    # is only possible; when it is merely a failed compensation of the metabolic acidosis, it is listed.
+    resp_primary = bool(w.bases) and w.bases[0].disorder == "respiratory_acidosis"
+    w.add("metabolic_alkalosis", why, "possible" if resp_primary else "established")

@@ -1,0 +1,76 @@
+"""What every part of case validation shares: limits, the problem collector, and message helpers."""
+
+from __future__ import annotations
+
+import difflib
+import math
+import re
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from typing import Any
+
+from notegen.case.model import Measurement
+
+MAX_TEXT = 500
+DEFAULT_WINDOW_HOURS = 24.0
+# A result time outside these years is a typing error; it also keeps time arithmetic in range.
+YEARS = (1900, 2199)
+
+# Control characters (a terminal runs ESC sequences printed with the note) and the bidirectional
+# overrides that make text display in another order than it reads; tab and newlines are harmless.
+_UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+_VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
+
+
+def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:
+    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+    hint = f"; did you mean `{close[0]}`?" if close else ""
+    return f"not a known key{hint} (known: {', '.join(choices)})"
+
+
+def _fmt(value: float) -> str:
+    return f"{value:.4g}"
+
+
+def _shown(value: Any) -> str:
+    """A user's value echoed in a message, cut short: a 2 MB string must not become a 2 MB message."""
+    text = repr(value)
+    return text if len(text) <= 60 else f"{text[:57]}..."
+
+
+def _key(key: Any) -> str:
+    """A key as it appears in a field path, cut short like `_shown`, its control characters escaped."""
+    text = _UNSAFE_CHARACTER.sub(lambda m: f"\\u{ord(m.group()):04x}", str(key))
+    return text if len(text) <= 60 else f"{text[:57]}..."
+
+
+def _unsafe_character(text: str) -> str | None:
+    """What is wrong with `text` if it holds a character that must not reach a note, else None."""
+    found = _UNSAFE_CHARACTER.search(text)
+    return None if found is None else f"contains the control character U+{ord(found.group()):04X}; remove it"
+
+
+def _finite(value: int | float) -> float | None:
+    """`value` as a float, or None when it is infinite, not a number, or too large for a float."""
+    try:
+        number = float(value)
+    except OverflowError:
+        return None
+    return number if math.isfinite(number) else None
+
+
+@dataclass
+class _Collector:
+    system: str
+    filename: str | None
+    provenance: Mapping[str, str]
+    default_source: str
+    problems: list[tuple[str, str]] = field(default_factory=list)
+    measurements: list[Measurement] = field(default_factory=list)
+    notices: list[str] = field(default_factory=list)
+
+    def problem(self, path: str, text: str) -> None:
+        self.problems.append((path, text))
+
+    def source(self, path: str) -> str:
+        return self.provenance.get(path, self.default_source)

@@ -1,0 +1,440 @@
+"""Plain case data (from a case file, a paste, FHIR or --set) -> the validated `Case`.
+
+Every problem is collected with its field path and reported at once. A value is never
+converted from a unit that was not stated or implied by the case's unit system, and a
+value that fits another unit better is refused with the suggestion, never converted.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from datetime import datetime, timedelta
+from typing import Any
+
+from notegen.case import units as u
+from notegen.case.checks import (
+    _VALUE_TEXT,
+    DEFAULT_WINDOW_HOURS,
+    MAX_TEXT,
+    YEARS,
+    _Collector,
+    _did_you_mean,
+    _finite,
+    _fmt,
+    _key,
+    _shown,
+    _unsafe_character,
+)
+from notegen.case.context import validate_context, validate_patient
+from notegen.case.model import (
+    Case,
+    Chem,
+    Gas,
+    Measurement,
+    Urine,
+)
+from notegen.errors import CaseFileError, CaseValueError
+from notegen.knowledge import vocabulary as vocab
+
+TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
+LAB_SECTIONS: dict[str, tuple[str, ...]] = {
+    "gas": ("ph", "pco2", "hco3", "po2"),
+    "chem": (
+        "na",
+        "k",
+        "cl",
+        "tco2",
+        "bun",
+        "creatinine",
+        "glucose",
+        "albumin",
+        "ca",
+        "ionized_ca",
+        "mg",
+        "phos",
+        "lactate",
+        "osm",
+    ),
+    "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium"),
+}
+
+def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> tuple[float, str, str | None] | None:
+    """Return (number, canonical unit spelling, qualifier) or record a problem."""
+    qualifier: str | None = None
+    unit_text: str | None = None
+    if isinstance(raw, bool) or raw is None:
+        col.problem(path, f"expected a number, got {_shown(raw)}")
+        return None
+    if isinstance(raw, int | float):
+        if _finite(raw) is None and isinstance(raw, int):
+            col.problem(path, "is too large to be a lab value")
+            return None
+        number = float(raw)
+    elif isinstance(raw, str):
+        match = _VALUE_TEXT.match(raw)
+        if not match:
+            col.problem(path, f'{raw[:60]!r} is not a number with an optional unit (e.g. "6.2 kPa")')
+            return None
+        number, unit_text, qualifier = float(match["num"]), match["unit"], match["q"]
+    elif isinstance(raw, Mapping):
+        extra = set(raw) - {"value", "unit", "qualifier"}
+        if extra or "value" not in raw:
+            col.problem(path, "a value mapping takes `value`, and optionally `unit` and `qualifier` (< or >)")
+            return None
+        inner = raw["value"]
+        if isinstance(inner, bool) or not isinstance(inner, int | float):
+            col.problem(path, f"`value` must be a number, got {_shown(inner)}")
+            return None
+        if _finite(inner) is None and isinstance(inner, int):
+            col.problem(path, "is too large to be a lab value")
+            return None
+        number = float(inner)
+        unit_text = raw.get("unit")
+        qualifier = raw.get("qualifier")
+        if qualifier not in (None, "<", ">"):
+            col.problem(path, f"`qualifier` must be < or >, got {_shown(qualifier)}")
+            return None
+        if unit_text is not None and not isinstance(unit_text, str):
+            col.problem(path, f"`unit` must be text, got {_shown(unit_text)}")
+            return None
+    else:
+        col.problem(
+            path,
+            f'expected a number, a text such as "6.2 kPa" or a mapping {{value, unit}}, got a {type(raw).__name__}',
+        )
+        return None
+    if number != number or number in (float("inf"), float("-inf")):
+        col.problem(path, "is not a finite number")
+        return None
+    accepted = u.accepted_units(field_name)
+    if not unit_text:
+        unit = u.default_unit(field_name, col.system)
+    else:
+        normal = u.normalise_unit(unit_text)
+        if normal is None or normal not in accepted:
+            shown = ", ".join(a or "(no unit)" for a in accepted)
+            col.problem(path, f"unit {_shown(unit_text)} is not accepted here (accepted: {shown})")
+            return None
+        unit = normal
+    return number, unit, qualifier
+
+
+def _check_plausible(number: float, unit: str, path: str, field_name: str, col: _Collector) -> float | None:
+    info = vocab.fields()[field_name]
+    canonical = u.to_canonical(field_name, number, unit)
+    if info.low <= canonical <= info.high:
+        return canonical
+    canon_unit = u.FIELD_UNITS[field_name].canonical
+    shown = f"{_fmt(number)} {unit}".strip()
+    expected = f"expected {_fmt(info.low)} to {_fmt(info.high)} {canon_unit}".rstrip()
+    suggestions = []
+    for other in u.accepted_units(field_name):
+        alternative = u.to_canonical(field_name, number, other)
+        if other != unit and info.low <= alternative <= info.high and abs(alternative - canonical) > 1e-9:
+            converted = "" if other == canon_unit else f" ({_fmt(alternative)} {canon_unit})"
+            suggestions.append(f"{_fmt(number)} {other}{converted}")
+    if suggestions:
+        col.problem(
+            path,
+            f"{shown} is not a plausible {info.label} ({expected}); did you mean {' or '.join(suggestions)}? "
+            "Give the unit explicitly.",
+        )
+        return None
+    col.problem(path, f"{shown} is not a plausible {info.label} ({expected})")
+    return None
+
+
+def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
+    if raw is None:
+        return None
+    when: datetime | None = raw if isinstance(raw, datetime) else None
+    if isinstance(raw, str):
+        try:
+            when = datetime.fromisoformat(raw.strip().replace("Z", "+00:00"))
+        except ValueError:
+            pass
+    if when is None:
+        col.problem(path, f"{str(raw)[:60]!r} is not an ISO date-time such as 2026-03-14T06:30")
+    elif not YEARS[0] <= when.year <= YEARS[1]:
+        col.problem(path, f"{when.isoformat()} is not a plausible result time (year {when.year})")
+        when = None
+    return when
+
+
+def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:
+    if not isinstance(raw, Mapping):
+        col.problem(path, f"expected a mapping of values, got a {type(raw).__name__}")
+        return None
+    names = LAB_SECTIONS[section]
+    allowed = (
+        (*names, "taken_at") + (("sample",) if section == "gas" else ()) + (("urea",) if section == "chem" else ())
+    )
+    values: dict[str, Any] = {}
+    bad_time = False  # a time that cannot be read was reported; the entry is not used further
+    for key, item in raw.items():
+        key_path = f"{path}.{_key(key)}"
+        if key not in allowed:
+            col.problem(key_path, _did_you_mean(str(key), list(allowed)))
+            continue
+        if item is None:
+            continue
+        if key == "taken_at":
+            values["taken_at"] = _parse_time(item, key_path, col)
+            bad_time = values["taken_at"] is None
+        elif key == "sample":
+            sample = str(item).strip().lower()
+            if sample not in ("arterial", "venous"):
+                col.problem(key_path, f"{_shown(item)} is not arterial or venous")
+            else:
+                values["sample"] = sample
+        else:
+            values[key] = item
+    if section == "chem" and "urea" in values and "bun" in values:
+        col.problem(f"{path}.urea", "give either `bun` or `urea`, not both")
+        return None
+    taken_at = values.get("taken_at")
+    out: dict[str, Any] = {k: v for k, v in values.items() if k in ("taken_at", "sample")}
+    for key in [k for k in values if k not in ("taken_at", "sample")]:
+        field_name = f"{section}.bun" if key == "urea" else f"{section}.{key}"
+        key_path = f"{path}.{key}"
+        parsed = _parse_lab_value(values[key], key_path, field_name, col)
+        if parsed is None:
+            continue
+        number, unit, qualifier = parsed
+        reported_unit = unit
+        if key == "urea":
+            reported_unit = f"{unit} urea"
+            if unit == "mg/dL":  # urea mass, not urea nitrogen
+                number_bun = number * u.UREA_MG_DL_TO_BUN_MG_DL
+                canonical = _check_plausible(number_bun, "mg/dL", key_path, field_name, col)
+            else:
+                canonical = _check_plausible(number, unit, key_path, field_name, col)
+        else:
+            canonical = _check_plausible(number, unit, key_path, field_name, col)
+        if canonical is None:
+            continue
+        out["bun" if key == "urea" else key] = canonical
+        col.measurements.append(
+            Measurement(
+                field=field_name,
+                value=canonical,
+                unit=u.FIELD_UNITS[field_name].canonical,
+                reported_value=number,
+                reported_unit=reported_unit,
+                qualifier=qualifier,  # type: ignore[arg-type]
+                taken_at=taken_at,
+                source=col.source(key_path),
+            )
+        )
+    if section == "gas" and not _unit_given(values.get("pco2")):
+        _check_pco2_unit(out, f"{path}.pco2", col)
+    return None if bad_time else out
+
+
+def _unit_given(raw: Any) -> bool:
+    if isinstance(raw, str):
+        match = _VALUE_TEXT.match(raw)
+        return bool(match and match["unit"])
+    return isinstance(raw, Mapping) and bool(raw.get("unit"))
+
+
+def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tuple[str, float] | None:
+    """When a bare PCO2 (in `system`'s default unit) fits pH and bicarbonate only in the other unit.
+
+    Returns (the other unit, the PCO2 in mmHg that reading gives), or None. A kPa value typed
+    into a conventional case (6.4 for 48 mmHg) is still "plausible" in mmHg; Henderson-Hasselbalch
+    (pK 6.1, solubility 0.0307) tells the two apart.
+    """
+    if pco2 <= 0 or hco3 <= 0:
+        return None
+    default = u.default_unit("gas.pco2", system)
+    other = "kPa" if default == "mmHg" else "mmHg"
+    as_default = u.to_canonical("gas.pco2", pco2, default)
+    as_other = u.to_canonical("gas.pco2", pco2, other)
+    bounds = vocab.fields()["gas.pco2"]
+    if not bounds.low <= as_other <= bounds.high:
+        return None
+
+    def calculated_ph(pco2_mmhg: float) -> float:
+        return 6.1 + math.log10(hco3 / (0.0307 * pco2_mmhg))
+
+    if abs(calculated_ph(as_default) - ph) > 0.1 and abs(calculated_ph(as_other) - ph) <= 0.05:
+        return other, as_other
+    return None
+
+
+def _check_pco2_unit(gas: dict[str, Any], path: str, col: _Collector) -> None:
+    """Refuse, never convert, a bare PCO2 that only fits its own gas in the other unit."""
+    ph, pco2, hco3 = gas.get("ph"), gas.get("pco2"), gas.get("hco3")
+    if ph is None or pco2 is None or hco3 is None:
+        return
+    default = u.default_unit("gas.pco2", col.system)
+    reported = u.from_canonical("gas.pco2", pco2, default)
+    found = pco2_fits_other_unit(ph, reported, hco3, col.system)
+    if found is not None:
+        other, alternative = found
+        col.problem(
+            path,
+            f"{_fmt(reported)} {default} does not fit pH {_fmt(ph)} and bicarbonate {_fmt(hco3)}, but "
+            f"{_fmt(reported)} {other} ({_fmt(alternative)} mmHg) would; give the unit explicitly "
+            f'(e.g. "{_fmt(reported)} {other}")',
+        )
+
+
+_MODELS: dict[str, type[Gas] | type[Chem] | type[Urine]] = {"gas": Gas, "chem": Chem, "urine": Urine}
+
+
+def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, list[dict[str, Any]]]) -> None:
+    if isinstance(raw, list):
+        if not raw:
+            return
+        parsed = [_lab_entry(section, item, f"{section}[{i}]", col) for i, item in enumerate(raw)]
+        good = [p for p in parsed if p is not None]
+        if len(good) > 1 and any(p.get("taken_at") is None for p in good):
+            col.problem(section, "serial results need `taken_at` on every entry, so the latest can be told apart")
+            return
+        if len({p["taken_at"].tzinfo is None for p in good if p.get("taken_at") is not None}) > 1:
+            col.problem(section, "mixes times with and without a time zone; give all times the same way")
+            return
+        by_time: dict[tuple[datetime | None, str], dict[str, Any]] = {}
+        for p in good:
+            # an arterial and a venous gas drawn together are two results, not one
+            when = (p.get("taken_at"), p.get("sample", ""))
+            if when in by_time:
+                earlier = by_time[when]
+                for key, value in p.items():
+                    if key in ("taken_at", "sample") or key not in earlier:
+                        continue
+                    if abs(earlier[key] - value) > 1e-9:
+                        at = when[0].isoformat() if when[0] is not None else "(no time)"
+                        col.problem(
+                            f"{section}.{key}",
+                            f"two different values ({_fmt(earlier[key])} and {_fmt(value)}) at the same time "
+                            f"{at}; keep the one that is right",
+                        )
+                earlier.update(p)
+            else:
+                by_time[when] = dict(p)
+        # oldest first; at the same time a venous gas sorts before an arterial one, so arterial is read
+        entries[section] = [by_time[k] for k in sorted(by_time, key=lambda k: (_sort_key(k[0]), k[1] == "arterial"))]
+    elif raw is not None:
+        entry = _lab_entry(section, raw, section, col)
+        if entry is not None:
+            entries[section] = [entry]
+
+
+def _sort_key(when: datetime | None) -> datetime:
+    """An instant to order results by: aware times in UTC, naive ones as written, never the machine's zone.
+
+    A section never mixes the two kinds; across sections a mix is refused where times are subtracted.
+    """
+    if when is None:
+        return datetime.min
+    offset = when.utcoffset()
+    return when.replace(tzinfo=None) - offset if offset is not None else when
+
+
+def _choose_current(
+    entries: dict[str, list[dict[str, Any]]], window_hours: float, col: _Collector
+) -> tuple[dict[str, dict[str, Any]], dict[str, list[dict[str, Any]]]]:
+    current: dict[str, dict[str, Any]] = {}
+    earlier: dict[str, list[dict[str, Any]]] = {}
+    for section, items in entries.items():
+        chosen = len(items) - 1
+        if section == "gas":
+            complete = [i for i, e in enumerate(items) if "ph" in e and "pco2" in e]
+            if complete:
+                chosen = complete[-1]
+        current[section] = items[chosen]
+        earlier[section] = [e for i, e in enumerate(items) if i != chosen]
+        if len(items) > 1 and items[chosen].get("taken_at"):
+            col.notices.append(
+                f"{section}: {len(items)} results given; the latest complete one "
+                f"({items[chosen]['taken_at'].isoformat(sep=' ', timespec='minutes')}) is read, "
+                "earlier ones feed the trend"
+            )
+    times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
+    if len(times) > 1:
+        try:
+            newest = max(times, key=_sort_key)
+            for section in list(current):
+                when = current[section].get("taken_at")
+                if when is not None and newest - when > timedelta(hours=window_hours):
+                    col.notices.append(
+                        f"{section} results from {when.isoformat(sep=' ', timespec='minutes')} are more than "
+                        f"{_fmt(window_hours)} hours older than the newest results and were not combined with them"
+                    )
+                    earlier[section].append(current.pop(section))
+        except TypeError:
+            col.problem("taken_at", "mixes times with and without a time zone; give all times the same way")
+    return current, earlier
+
+
+def validate_case(
+    data: Any,
+    *,
+    filename: str | None = None,
+    provenance: Mapping[str, str] | None = None,
+    default_source: str = "case file",
+    window_hours: float = DEFAULT_WINDOW_HOURS,
+) -> Case:
+    """Validate plain case data into a `Case`, or raise with every problem found."""
+    if data is None:
+        raise CaseFileError("the file is empty", filename=filename)
+    if not isinstance(data, Mapping):
+        kind = "a list" if isinstance(data, list) else f"a single {type(data).__name__} value"
+        raise CaseFileError(
+            f"a case file is a mapping of sections ({', '.join(TOP_KEYS)}), but this one holds {kind}",
+            filename=filename,
+        )
+    system = data.get("units", "conventional")
+    col = _Collector(
+        system="si" if system == "si" else "conventional",
+        filename=filename,
+        provenance=provenance or {},
+        default_source=default_source,
+    )
+    for key in data:
+        if key not in TOP_KEYS:
+            col.problem(_key(key), _did_you_mean(str(key), TOP_KEYS))
+    if system not in ("conventional", "si"):
+        col.problem("units", f"{_shown(system)} is not conventional or si")
+    label = data.get("case")
+    if label is not None:
+        if not isinstance(label, str | int | float) or isinstance(label, bool) or len(str(label)) > MAX_TEXT:
+            col.problem("case", "the case label must be a short text (at most 500 characters)")
+            label = None
+        elif (unsafe := _unsafe_character(str(label))) is not None:
+            col.problem("case", unsafe)
+            label = None
+        else:
+            label = str(label)
+    entries: dict[str, list[dict[str, Any]]] = {}
+    for section in LAB_SECTIONS:
+        _lab_section(section, data.get(section), col, entries)
+    patient = validate_patient(data.get("patient"), col)
+    context = validate_context(data.get("context"), col)
+    if col.problems:
+        raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
+    current, earlier = _choose_current(entries, window_hours, col)
+    if col.problems:
+        raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
+
+    def build(section: str, values: dict[str, Any]) -> Any:
+        return _MODELS[section](**values)
+
+    return Case(
+        label=label,
+        units=col.system,  # type: ignore[arg-type]
+        patient=patient,
+        gas=build("gas", current.get("gas", {})),
+        chem=build("chem", current.get("chem", {})),
+        urine=build("urine", current.get("urine", {})),
+        context=context,
+        measurements=tuple(col.measurements),
+        earlier_gas=tuple(build("gas", e) for e in earlier.get("gas", [])),
+        earlier_chem=tuple(build("chem", e) for e in earlier.get("chem", [])),
+        earlier_urine=tuple(build("urine", e) for e in earlier.get("urine", [])),
+        notices=tuple(col.notices),
+    )

@@ -1,0 +1,100 @@
+"""Getting a case in: a case file (YAML or JSON), a FHIR R4 resource, a pasted lab
+block and `--set` assignments all become plain case data, then one validated `Case`.
+
+The readers for pastes, FHIR and `--set` live in this package (`paste`, `fhir`, `overrides`) and are imported only
+when that way in is used, so the ordinary path stays fast.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from typing import Any
+
+from notegen.case.checks import DEFAULT_WINDOW_HOURS
+from notegen.case.model import Case
+from notegen.case.validation import LAB_SECTIONS, validate_case
+from notegen.errors import InputError
+from notegen.intake.files import decode, parse_text, read_source
+
+FHIR_MAX_DEPTH = 40  # FHIR nests deeper than a case file does
+
+
+def _merge_labs(base: dict[str, Any], labs: Mapping[str, Any], where: str) -> dict[str, Any]:
+    """Fill the lab sections of `base` from `labs`; the same field given twice is refused."""
+    merged = dict(base)
+    for section, value in labs.items():
+        if section not in LAB_SECTIONS:
+            if section in merged and merged[section] != value:
+                raise InputError(f"{where}: `{section}` is given both in the case file and in the paste")
+            merged[section] = value
+            continue
+        if section not in merged or merged[section] in (None, {}):
+            merged[section] = value
+            continue
+        existing = merged[section]
+        if isinstance(existing, Mapping) and isinstance(value, Mapping):
+            clash = sorted(k for k in set(existing) & set(value) if k != "taken_at" and existing[k] != value[k])
+            if clash:
+                names = ", ".join(f"{section}.{k}" for k in clash)
+                raise InputError(f"{where}: {names} given both in the case file and in the paste; keep one")
+            merged[section] = {**existing, **value}
+        else:
+            raise InputError(f"{where}: `{section}` is given both in the case file and in the paste; keep one")
+    return merged
+
+
+def read_case(
+    source: str | None,
+    *,
+    paste: str | None = None,
+    overrides: Sequence[str] = (),
+    stdin: bytes | None = None,
+    window_hours: float = DEFAULT_WINDOW_HOURS,
+) -> Case:
+    """Read, merge and validate a case from any mix of the ways in.
+
+    `source` is a case-file path, `-` for standard input, or None; `paste` is a path
+    or `-` for a pasted lab block. Only one of them may read standard input.
+    """
+    if source == "-" and paste == "-":
+        raise InputError("only one of the case file and the paste can come from standard input (-)")
+    data: dict[str, Any] = {}
+    provenance: dict[str, str] = {}
+    unused: list[str] = []
+    filename = "--set"
+    if source is not None:
+        text, filename = read_source(source, stdin)
+        parsed = parse_text(text, filename, max_depth=FHIR_MAX_DEPTH)
+        if isinstance(parsed, Mapping) and "resourceType" in parsed:
+            from notegen.intake.fhir import read_fhir
+
+            fhir = read_fhir(dict(parsed), source=filename)
+            data, provenance, unused = dict(fhir.data), dict(fhir.provenance), list(fhir.unused)
+        else:
+            if not isinstance(parsed, Mapping):
+                return validate_case(parsed, filename=filename)  # raises the located "not a mapping" error
+            data = dict(parsed)
+    if paste is not None:
+        from notegen.intake.paste import parse_paste
+
+        if paste == "-":
+            paste_text, paste_name = decode(stdin or b"", "<stdin>"), "pasted labs"
+        else:
+            paste_text, paste_name = read_source(paste)
+        result = parse_paste(paste_text, source=paste_name)
+        if source is None:
+            filename = paste_name
+        data = _merge_labs(data, result.data, paste_name)
+        provenance.update(result.provenance)
+        unused.extend(result.unused)
+    if overrides:
+        from notegen.intake.overrides import apply_overrides, override_provenance
+
+        data = apply_overrides(data, list(overrides))
+        provenance.update(override_provenance(list(overrides)))
+    if source is None and paste is None and not overrides:
+        raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
+    case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)
+    if unused:
+        case = case.model_copy(update={"notices": (*case.notices, *(f"not used: {item}" for item in unused))})
+    return case

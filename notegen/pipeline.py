@@ -1,0 +1,126 @@
+"""The library's front door: load the rules and templates once, then draft case after case.
+
+    drafter = Drafter()
+    note = drafter.draft(read_case("samples/gastric_suction.yaml"), DraftOptions(output_format="text"))
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from functools import cached_property
+from pathlib import Path
+from typing import TYPE_CHECKING, Literal
+
+from notegen.acidbase.calculations import compute_calculations
+from notegen.acidbase.model import AcidBaseReading
+from notegen.acidbase.reading import read_acid_base
+from notegen.assess.model import Assessment, _warnings
+from notegen.case.model import Case
+from notegen.case.trend import build_trend
+from notegen.knowledge.settings import AcidBaseSettings, load_acid_base_settings
+
+if TYPE_CHECKING:
+    from notegen.engine import RulePack
+
+OutputFormat = Literal["markdown", "text", "html", "json"]
+
+
+@dataclass(frozen=True)
+class DraftOptions:
+    output_format: OutputFormat | str = "markdown"
+    explain: bool = False
+    brief: bool = False
+    width: int = 80
+    ascii_only: bool = False
+
+
+@dataclass
+class Drafter:
+    """Holds the loaded settings, rule pack and templates; reuse one for many cases."""
+
+    rules_dirs: tuple[Path, ...] = ()
+    template: Path | None = None
+    _cache: dict[str, object] = field(default_factory=dict, repr=False)
+
+    @cached_property
+    def settings(self) -> AcidBaseSettings:
+        return load_acid_base_settings(list(self.rules_dirs))
+
+    @cached_property
+    def alkalosis_pack(self) -> RulePack:
+        from notegen.workup.alkalosis import load_alkalosis_pack
+
+        return load_alkalosis_pack(self.rules_dirs)
+
+    def assess(self, case: Case, *, explain: bool = False) -> Assessment:
+        """Run every stage on a validated case and gather the results.
+
+        case -> calculations -> acid-base reading -> rule walk (when there is a metabolic alkalosis).
+        The shipped rule pack is loaded, and the rule engine imported, only when a case first needs
+        them; a service's pack (`rules_dirs`) is loaded for every case, so its errors always show.
+        """
+        if self.rules_dirs:
+            self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
+        calculations = compute_calculations(case, self.settings)
+        reading = read_acid_base(case, self.settings)
+        rules = None
+        if _alkalosis_to_work_up(reading):
+            from notegen.workup.alkalosis import evaluate_alkalosis
+
+            rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+        assessment = Assessment(
+            case=case,
+            acid_base=reading,
+            alerts=reading.alerts,
+            calculations=calculations,
+            chloride_class=rules.chloride_class if rules is not None else None,
+            chloride_notes=rules.chloride_notes if rules is not None else (),
+            generation=rules.generation if rules is not None else (),
+            differential=rules.differential if rules is not None else (),
+            maintenance=rules.maintenance if rules is not None else (),
+            next_tests=rules.next_tests if rules is not None else (),
+            trace=rules.trace if rules is not None else (),
+            warnings=_warnings(case, reading, calculations),
+            trend=build_trend(case),
+        )
+        from notegen.note.writer import complete_assessment
+
+        return complete_assessment(assessment, rules_dirs=self.rules_dirs)
+
+    def draft(self, case: Case, options: DraftOptions | None = None) -> str:
+        from notegen.note.writer import render_note
+
+        options = options or DraftOptions()
+        return render_note(self.assess(case, explain=options.explain), options, template=self.template)
+
+    def draft_json_line(self, case: Case, *, explain: bool = False) -> str:
+        """The JSON output on one line, for JSON Lines: the content of `draft` in JSON, without indentation.
+
+        Written straight from the assessment; parsing the indented JSON again to compact it would
+        cost more than drafting the note.
+        """
+        return self.assess(case, explain=explain).model_dump_json(by_alias=True) + "\n"
+
+
+def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
+    """Whether the alkalosis pack applies: the same test `evaluate_alkalosis` makes, without importing the engine."""
+    return "metabolic_alkalosis" in reading.disorders or "metabolic_alkalosis" in reading.possible_disorders
+
+
+def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
+    """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
+    from notegen.errors import RulePackError
+    from notegen.knowledge.settings import load_acid_base_settings
+    from notegen.workup.alkalosis import check_alkalosis_pack
+
+    lines: list[str] = []
+    missing = [f for f in folders if not Path(f).is_dir()]
+    if missing:
+        return [f"{f}: no such folder" for f in missing]
+    try:
+        load_acid_base_settings(list(folders))
+    except RulePackError as error:
+        lines.extend(str(error).splitlines())
+    for filename, line, message in check_alkalosis_pack(folders):
+        lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
+    return lines

@@ -1,0 +1,194 @@
+"""The flat facts the metabolic-alkalosis pack reads, derived from a validated case and its reading.
+
+Every value is in the unit the pack's fact catalogue declares. A value the case does not hold is a
+`MissingFact` saying why, never a default. Conventions worth knowing:
+- a finding not listed in the case is `false` ("not reported"), which the pack words as such;
+- a medication class counts as absent only when every listed medication was recognised; with an
+  unrecognised one, "is a loop diuretic listed?" is unknown;
+- a loop or thiazide is "acting" when its last dose lies within the action window of its class,
+  a pack setting (`loop_diuretic_action_hours`, `thiazide_diuretic_action_hours`), so a service can
+  change the window in its own folder.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+from notegen.acidbase.calculations import CREATININE_MOLAR_MASS, Calculation
+from notegen.acidbase.model import AcidBaseReading
+from notegen.case.model import Case, Medication
+from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
+from notegen.errors import NotegenError
+from notegen.render.filters import join_words
+
+CALCIUM_MOLAR_MASS = 40.078  # g/mol (IUPAC standard atomic weight)
+
+FINDINGS = (
+    "vomiting",
+    "gastric_drainage",
+    "diarrhea",
+    "edema",
+    "corrected_hypercapnia",
+    "transfusion",
+    "hypertension",
+    "heart_failure",
+    "cirrhosis",
+    "laxative_use",
+)
+DIURETIC_WINDOWS = {
+    "loop_diuretic": "loop_diuretic_action_hours",
+    "thiazide_diuretic": "thiazide_diuretic_action_hours",
+}
+# Listed-class facts and the medication classes behind them.
+CLASS_FACTS = {
+    "loop_or_thiazide_listed": ("loop_diuretic", "thiazide_diuretic"),
+    "mineralocorticoid_listed": ("mineralocorticoid",),
+    "glucocorticoid_listed": ("glucocorticoid",),
+    "glycyrrhizin_listed": ("glycyrrhizin",),
+    "alkali_listed": ("alkali",),
+    "laxative_listed": ("laxative",),
+}
+NAME_FACTS = {
+    "diuretic_names": ("loop_diuretic", "thiazide_diuretic"),
+    "alkali_names": ("alkali",),
+    "mineralocorticoid_names": ("mineralocorticoid", "glycyrrhizin"),
+}
+
+
+def urine_calcium_creatinine_ratio(urine_calcium: float, urine_creatinine: float) -> float:
+    """Urine calcium/creatinine in mmol/mmol from both in mg/dL (molar masses 40.078 and 113.12 g/mol)."""
+    return (urine_calcium / CALCIUM_MOLAR_MASS) / (urine_creatinine / CREATININE_MOLAR_MASS)
+
+
+def _qualifier(case: Case, field: str) -> str | None:
+    for measurement in reversed(case.measurements):
+        if measurement.field == field:
+            return measurement.qualifier
+    return None
+
+
+def _number(case: Case, field: str, value: float | None, unit: str) -> Fact:
+    if value is None:
+        return MissingFact()
+    qualifier = _qualifier(case, field)
+    return NumberFact(value, unit, qualifier if qualifier in ("<", ">") else None)  # type: ignore[arg-type]
+
+
+def _setting_hours(pack: RulePack, setting: str) -> float:
+    if setting not in pack.settings:
+        raise NotegenError(f"rule pack `{pack.id}` lacks the setting `{setting}` that notegen.workup.facts reads")
+    value, unit = pack.settings[setting]
+    if unit != "h":
+        raise NotegenError(f"setting `{setting}` of pack `{pack.id}` must be in h, not {unit}")
+    return value
+
+
+def _of_classes(meds: tuple[Medication, ...], classes: tuple[str, ...]) -> list[Medication]:
+    return [m for m in meds if set(m.classes) & set(classes)]
+
+
+def _unrecognised(meds: tuple[Medication, ...]) -> list[str]:
+    return [m.name for m in meds if not m.recognised]
+
+
+def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
+    """Class facts, diuretic timing and the names to show, from `Case.context.meds`."""
+    meds = case.context.meds
+    unknown = _unrecognised(meds)
+    facts: dict[str, Fact] = {}
+    for name, classes in CLASS_FACTS.items():
+        if _of_classes(meds, classes):
+            facts[name] = BooleanFact(True)
+        elif unknown:
+            facts[name] = MissingFact(f"unrecognised medication: {', '.join(unknown)}")
+        else:
+            facts[name] = BooleanFact(False)
+    for name, classes in NAME_FACTS.items():
+        listed = _of_classes(meds, classes)
+        facts[name] = TextFact(join_words(m.generic or m.name for m in listed)) if listed else MissingFact()
+
+    diuretics = _of_classes(meds, tuple(DIURETIC_WINDOWS))
+    timed = [m.last_dose_hours for m in diuretics if m.last_dose_hours is not None]
+    facts["loop_or_thiazide_hours"] = NumberFact(min(timed), "h") if timed else MissingFact()
+    acting = False
+    untimed: list[str] = []
+    for med in diuretics:
+        window = max(_setting_hours(pack, DIURETIC_WINDOWS[c]) for c in med.classes if c in DIURETIC_WINDOWS)
+        if med.last_dose_hours is None:
+            untimed.append(med.name)
+        elif med.last_dose_hours <= window:
+            acting = True
+    if acting:
+        facts["loop_or_thiazide_acting"] = BooleanFact(True)
+    elif untimed:
+        facts["loop_or_thiazide_acting"] = MissingFact(f"no last-dose time for {', '.join(untimed)}")
+    elif not diuretics and unknown:
+        facts["loop_or_thiazide_acting"] = MissingFact(f"unrecognised medication: {', '.join(unknown)}")
+    else:
+        facts["loop_or_thiazide_acting"] = BooleanFact(False)
+    return facts
+
+
+def urine_chloride_range(case: Case) -> dict[str, Fact]:
+    """The lowest and highest urine chloride across serial samples (a swing marks an intermittent diuretic)."""
+    values = [u.cl for u in (*case.earlier_urine, case.urine) if u.cl is not None]
+    if len(values) < 2:
+        missing = MissingFact("fewer than two urine chloride results")
+        return {"urine_cl_lowest": missing, "urine_cl_highest": missing}
+    return {"urine_cl_lowest": NumberFact(min(values), "mmol/L"), "urine_cl_highest": NumberFact(max(values), "mmol/L")}
+
+
+def derive_facts(
+    case: Case,
+    reading: AcidBaseReading,
+    pack: RulePack,
+    calculations: Mapping[str, Calculation] | None = None,
+) -> dict[str, Fact]:
+    """Every fact of the alkalosis pack's catalogue, present or missing with a reason."""
+    chem, urine, context = case.chem, case.urine, case.context
+    calcs = calculations or {}
+    facts: dict[str, Fact] = {
+        "urine_cl": _number(case, "urine.cl", urine.cl, "mmol/L"),
+        "urine_na": _number(case, "urine.na", urine.na, "mmol/L"),
+        "k": _number(case, "chem.k", chem.k, "mmol/L"),
+        "mg": _number(case, "chem.mg", chem.mg, "mg/dL"),
+        "hco3": NumberFact(reading.hco3, "mmol/L") if reading.hco3 is not None else MissingFact("no bicarbonate"),
+        "renin": TextFact(context.renin) if context.renin else MissingFact("not given"),
+        "aldosterone": TextFact(context.aldosterone) if context.aldosterone else MissingFact("not given"),
+        "cortisol_excess": (
+            BooleanFact(context.cortisol_excess) if context.cortisol_excess is not None else MissingFact("not given")
+        ),
+        "diuretic_screen_positive": (
+            BooleanFact(context.diuretic_screen == "positive") if context.diuretic_screen else MissingFact("not given")
+        ),
+    }
+    if reading.pco2 is not None and reading.sample in ("arterial", "unstated"):
+        facts["arterial_pco2"] = NumberFact(reading.pco2, "mmHg")
+    elif reading.sample == "venous":
+        facts["arterial_pco2"] = MissingFact("venous sample; its PCO2 is not converted")
+    else:
+        facts["arterial_pco2"] = MissingFact("no blood gas PCO2")
+    for name, unit in (("egfr", "mL/min/1.73 m2"), ("urine_k_creatinine", "mmol/mmol")):
+        calculation = calcs.get(name)
+        if calculation is not None and calculation.unit != unit:
+            raise NotegenError(f"calculation `{name}` is in {calculation.unit}; the pack expects {unit}")
+        facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
+    if urine.calcium is not None and urine.creatinine is not None and urine.creatinine > 0:
+        ratio = urine_calcium_creatinine_ratio(urine.calcium, urine.creatinine)
+        facts["urine_calcium_creatinine"] = NumberFact(ratio, "mmol/mmol")
+    else:
+        facts["urine_calcium_creatinine"] = MissingFact()
+    if context.bp is not None:
+        facts["systolic_bp"] = NumberFact(float(context.bp.systolic), "mmHg")
+        facts["diastolic_bp"] = NumberFact(float(context.bp.diastolic), "mmHg")
+        # The pair as a clinician writes it ("118/70 mmHg"), for the pack's sentences.
+        facts["bp_reading"] = TextFact(f"{context.bp.systolic}/{context.bp.diastolic} mmHg")
+    else:
+        facts["systolic_bp"] = facts["diastolic_bp"] = facts["bp_reading"] = MissingFact()
+    facts.update(urine_chloride_range(case))
+    facts["volume"] = TextFact(context.volume) if context.volume != "unknown" else MissingFact()
+    for finding in FINDINGS:
+        facts[finding] = BooleanFact(finding in context.findings)
+    facts.update(medication_facts(case, pack))
+    return facts
+
