@@ -1,7 +1,11 @@
 """notegen: drafts the acid-base assessment section of a clinical note.
 
-    from notegen import Drafter, read_case
-    print(Drafter().draft(read_case("samples/gastric_suction.yaml")))
+    import notegen
+    note = notegen.draft("samples/gastric_suction.yaml")    # or a mapping, or case-file text
+    print(note.text(width=72))
+
+    drafter = notegen.Drafter()                               # many cases, the rules loaded once
+    notes = [drafter.note(path) for path in paths]
 
 Names are imported on first use, so `import notegen` stays cheap for the command line.
 """
@@ -24,6 +28,7 @@ _EXPORTS: dict[str, str] = {
     "CaseValueError": "notegen.errors",
     "DraftOptions": "notegen.pipeline",
     "Drafter": "notegen.pipeline",
+    "Note": "notegen.note.document",
     "InputError": "notegen.errors",
     "NotegenError": "notegen.errors",
     "PasteError": "notegen.errors",
@@ -31,6 +36,7 @@ _EXPORTS: dict[str, str] = {
     "TemplateError": "notegen.errors",
     "UsageError": "notegen.errors",
     "check_rule_folders": "notegen.pipeline",
+    "draft": "notegen.pipeline",
     "compute_calculations": "notegen.acidbase.calculations",
     "evaluate_alkalosis": "notegen.workup.alkalosis",
     "load_acid_base_settings": "notegen.knowledge.settings",
@@ -52,6 +58,7 @@ __all__ = [
     "DraftOptions",
     "Drafter",
     "InputError",
+    "Note",
     "NotegenError",
     "PasteError",
     "RulePackError",
@@ -59,6 +66,7 @@ __all__ = [
     "UsageError",
     "check_rule_folders",
     "compute_calculations",
+    "draft",
     "evaluate_alkalosis",
     "load_acid_base_settings",
     "read_acid_base",
@@ -87,8 +95,9 @@ if TYPE_CHECKING:
     )
     from notegen.intake.read import read_case
     from notegen.knowledge.settings import AcidBaseSettings, load_acid_base_settings
+    from notegen.note.document import Note
     from notegen.note.writer import render_note
-    from notegen.pipeline import Drafter, DraftOptions, check_rule_folders
+    from notegen.pipeline import Drafter, DraftOptions, check_rule_folders, draft
     from notegen.workup.alkalosis import evaluate_alkalosis
 
 

@@ -1,37 +1,41 @@
-"""The library's front door: load the rules and templates once, then draft case after case.
+"""The library's front door, and the only place that knows the order of the stages.
 
-    drafter = Drafter()
-    note = drafter.draft(read_case("samples/gastric_suction.yaml"), DraftOptions(output_format="text"))
+    note = notegen.draft("samples/gastric_suction.yaml")       # one case: a mapping, a path or case-file text
+    drafter = Drafter(rules_dirs=(Path("service"),))           # many cases, rules loaded once
+    for path in paths:
+        print(drafter.note(path).text(width=72))
+
+case -> validated case (intake, case) -> calculations -> acid-base reading (acidbase) -> rule walk
+(workup) -> assessment (assess) -> note (note, render).
 """
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from functools import cached_property
+from os import PathLike
 from pathlib import Path
-from typing import TYPE_CHECKING, Literal
+from typing import TYPE_CHECKING, Any
 
 from notegen.acidbase.calculations import compute_calculations
 from notegen.acidbase.model import AcidBaseReading
 from notegen.acidbase.reading import read_acid_base
-from notegen.assess.model import Assessment, _warnings
+from notegen.assess.model import Assessment
+from notegen.assess.warnings import collect_warnings
 from notegen.case.model import Case
 from notegen.case.trend import build_trend
 from notegen.knowledge.settings import AcidBaseSettings, load_acid_base_settings
+from notegen.note.document import Note
+from notegen.note.options import DraftOptions, OutputFormat
 
 if TYPE_CHECKING:
     from notegen.engine import RulePack
 
-OutputFormat = Literal["markdown", "text", "html", "json"]
+__all__ = ["CaseLike", "DraftOptions", "Drafter", "Note", "OutputFormat", "check_rule_folders", "draft"]
 
-
-@dataclass(frozen=True)
-class DraftOptions:
-    output_format: OutputFormat | str = "markdown"
-    explain: bool = False
-    brief: bool = False
-    width: int = 80
-    ascii_only: bool = False
+CaseLike = Case | Mapping[str, Any] | str | PathLike[str]
+"""A validated case, plain case data, a case file's path, or the text of a case file (YAML or JSON)."""
 
 
 @dataclass
@@ -80,7 +84,7 @@ class Drafter:
             maintenance=rules.maintenance if rules is not None else (),
             next_tests=rules.next_tests if rules is not None else (),
             trace=rules.trace if rules is not None else (),
-            warnings=_warnings(case, reading, calculations),
+            warnings=collect_warnings(case, reading, calculations),
             trend=build_trend(case),
         )
         from notegen.note.writer import complete_assessment
@@ -92,6 +96,10 @@ class Drafter:
 
         options = options or DraftOptions()
         return render_note(self.assess(case, explain=options.explain), options, template=self.template)
+
+    def note(self, case: CaseLike, *, brief: bool = False) -> Note:
+        """Draft one case into a `Note`, whose formats render on request."""
+        return Note(self.assess(as_case(case)), brief=brief, template=self.template)
 
     def draft_json_line(self, case: Case, *, explain: bool = False) -> str:
         """The JSON output on one line, for JSON Lines: the content of `draft` in JSON, without indentation.
@@ -124,3 +132,38 @@ def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     for filename, line, message in check_alkalosis_pack(folders):
         lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
     return lines
+
+
+def as_case(case: CaseLike) -> Case:
+    """A validated case from any form `CaseLike` allows; a string with a line break or a brace is case-file text."""
+    from notegen.intake.read import read_case, read_case_data, read_case_text
+
+    if isinstance(case, Case):
+        return case
+    if isinstance(case, Mapping):
+        return read_case_data(case)
+    if isinstance(case, str) and ("\n" in case or case.lstrip().startswith("{")):
+        return read_case_text(case)
+    if isinstance(case, str | PathLike):
+        return read_case(str(Path(case)))
+    from notegen.errors import InputError
+
+    raise InputError(f"a case is a mapping, a path or the text of a case file, not {type(case).__name__}")
+
+
+def draft(
+    case: CaseLike,
+    *,
+    rules: str | PathLike[str] | None = None,
+    template: str | PathLike[str] | None = None,
+    brief: bool = False,
+) -> Note:
+    """Draft one case in one call; `rules` is a service's rule folder, `template` its note layout.
+
+    For many cases, hold one `Drafter` so that the rules and templates load once.
+    """
+    drafter = Drafter(
+        rules_dirs=(Path(rules),) if rules is not None else (),
+        template=Path(template) if template is not None else None,
+    )
+    return drafter.note(case, brief=brief)

@@ -6,12 +6,13 @@ import math
 
 import pytest
 
-from notegen.acidbase.calculations import (
+from notegen._format import format_value
+from notegen.acidbase.calculations import compute_calculations, missing_calculations
+from notegen.acidbase.formulas import (
     CREATININE_MOLAR_MASS,
     anion_gap,
     calculated_osmolality,
     chloride_deficit,
-    compute_calculations,
     corrected_anion_gap,
     corrected_calcium,
     delta_gap,
@@ -24,11 +25,9 @@ from notegen.acidbase.calculations import (
     expected_pco2_metabolic_acidosis,
     expected_pco2_metabolic_alkalosis,
     expected_total_co2,
-    format_value,
     fractional_excretion,
     henderson_hasselbalch_hco3,
     henderson_hasselbalch_ph,
-    missing_calculations,
     osmolal_gap,
     urine_potassium_creatinine_ratio,
 )

@@ -12,7 +12,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from notegen.acidbase.calculations import format_value, round_half_up
+from notegen._format import format_value, round_half_up
 
 
 def reference_round_half_up(value: float, digits: int) -> float:

@@ -24,7 +24,10 @@ def _run(code: str, **extra: str) -> str:
 
 
 def test_the_command_turns_plugins_off() -> None:
-    code = f"sys.argv = ['notegen', 'draft', {SAMPLE!r}, '--format', 'text']\nfrom notegen.cli.app import main\nmain()\n"
+    code = (
+        f"sys.argv = ['notegen', 'draft', {SAMPLE!r}, '--format', 'text']\n"
+        "from notegen.cli.app import main\nmain()\n"
+    )
     assert _run(code) == "plugins: __all__"
 
 

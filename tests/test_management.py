@@ -10,11 +10,12 @@ from typing import Any
 import pytest
 
 from notegen.assess.considerations import load_considerations, management_considerations, select_considerations
-from notegen.assess.model import Assessment, CauseEntry, FactorEntry
+from notegen.assess.model import Assessment
 from notegen.case.validation import validate_case
 from notegen.errors import RulePackError
 from notegen.intake.read import read_case
 from notegen.pipeline import Drafter
+from notegen.workup.model import CauseEntry, FactorEntry
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 

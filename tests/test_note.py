@@ -10,12 +10,13 @@ from typing import Any
 
 import pytest
 
-from notegen.assess.model import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest, TraceEntry
+from notegen.assess.model import Assessment
 from notegen.case.validation import validate_case
 from notegen.errors import TemplateError, UsageError
 from notegen.intake.read import read_case
 from notegen.note.writer import complete_assessment, note_context, render_markdown, render_note
 from notegen.pipeline import Drafter, DraftOptions
+from notegen.workup.model import CauseEntry, Evidence, FactorEntry, SuggestedTest, TraceEntry
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 FORMATS = ("markdown", "text", "html", "json")

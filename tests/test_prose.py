@@ -15,11 +15,12 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from notegen.assess.model import Assessment, CauseEntry, Evidence, FactorEntry, SuggestedTest
+from notegen.assess.model import Assessment
 from notegen.case.validation import pco2_fits_other_unit, validate_case
 from notegen.intake.read import read_case
 from notegen.note.paragraph import draft_paragraph
 from notegen.pipeline import Drafter
+from notegen.workup.model import CauseEntry, Evidence, FactorEntry, SuggestedTest
 
 SAMPLES = Path(__file__).resolve().parent.parent / "samples"
 

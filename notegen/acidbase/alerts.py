@@ -6,8 +6,9 @@ considerations, never doses.
 
 from __future__ import annotations
 
+from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert, AlertLevel
-from notegen.acidbase.calculations import format_value, round_half_up, usable
+from notegen.acidbase.calculations import usable
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 

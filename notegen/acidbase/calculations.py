@@ -8,214 +8,34 @@ and source, so a note can show its working.
 
 from __future__ import annotations
 
-import functools
 import math
 from collections.abc import Mapping
-from decimal import ROUND_HALF_UP, Decimal
-from typing import NamedTuple
 
 from pydantic import BaseModel, ConfigDict
 
-from notegen.case.model import Case, Sex
-from notegen.errors import CaseValueError
+from notegen._format import format_value
+from notegen.acidbase.formulas import (
+    CREATININE_MOLAR_MASS,
+    EGFR_MIN_AGE,
+    Estimate,
+    _expected_hco3_respiratory,
+    anion_gap,
+    chloride_deficit,
+    corrected_anion_gap,
+    corrected_calcium,
+    delta_gap,
+    delta_ratio,
+    egfr_ckd_epi_2021,
+    expected_pco2_metabolic_acidosis,
+    expected_pco2_metabolic_alkalosis,
+    expected_total_co2,
+    fractional_excretion,
+    henderson_hasselbalch_ph,
+    osmolal_gap,
+    urine_potassium_creatinine_ratio,
+)
+from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings, Setting, default_acid_base_settings
-
-CREATININE_MOLAR_MASS = 113.12  # g/mol; converts urine creatinine mg/dL to mmol/L
-EGFR_MIN_AGE = 18.0  # CKD-EPI 2021 was derived and validated in adults only
-
-
-class Estimate(NamedTuple):
-    """An expected value with the range its rule allows."""
-
-    value: float
-    low: float
-    high: float
-
-
-# --- Blood gas arithmetic ---------------------------------------------------------------------------
-
-
-def henderson_hasselbalch_ph(pco2: float, hco3: float, pk: float = 6.1, solubility: float = 0.0307) -> float:
-    """pH = pK' + log10(HCO3 / (S x PaCO2)).
-
-    Henderson-Hasselbalch; constants as in CLSI C46-A (2001), pK' 6.1 and S 0.0307 mmol/L per mmHg
-    (DuBose, Harrison's, uses 0.03).
-    """
-    return pk + math.log10(hco3 / (solubility * pco2))
-
-
-def henderson_hasselbalch_hco3(ph: float, pco2: float, pk: float = 6.1, solubility: float = 0.0307) -> float:
-    """HCO3 = S x PaCO2 x 10^(pH - pK'): the analyser's calculated bicarbonate (CLSI C46-A, 2001)."""
-    return solubility * pco2 * 10 ** (ph - pk)
-
-
-def expected_total_co2(hco3: float, pco2: float, solubility: float = 0.0307) -> float:
-    """Panel total CO2 expected from a gas: HCO3 + S x PaCO2 (dissolved CO2; CLSI C46-A, 2001)."""
-    return hco3 + solubility * pco2
-
-
-def expected_pco2_metabolic_acidosis(hco3: float, tolerance: float = 2.0) -> Estimate:
-    """Winter's formula: PaCO2 = 1.5 x HCO3 + 8 +/- 2 (Albert, Dell & Winters, Ann Intern Med 1967)."""
-    value = 1.5 * hco3 + 8.0
-    return Estimate(value, value - tolerance, value + tolerance)
-
-
-def expected_pco2_metabolic_alkalosis(
-    hco3: float,
-    slope: float = 0.7,
-    tolerance: float = 2.0,
-    normal_pco2: float = 40.0,
-    normal_hco3: float = 24.0,
-) -> Estimate:
-    """PaCO2 = 40 + 0.7 x (HCO3 - 24) +/- 2 (Berend, de Vries & Gans, NEJM 2014, Table 1)."""
-    value = normal_pco2 + slope * (hco3 - normal_hco3)
-    return Estimate(value, value - tolerance, value + tolerance)
-
-
-def _expected_hco3_respiratory(
-    pco2: float, slope_per_10: float, tolerance: float, normal_pco2: float, normal_hco3: float
-) -> Estimate:
-    # One linear form serves all four rules: HCO3 moves `slope_per_10` per 10 mmHg of PaCO2 change,
-    # upward when PaCO2 rises and downward when it falls.
-    value = normal_hco3 + slope_per_10 * (pco2 - normal_pco2) / 10.0
-    return Estimate(value, value - tolerance, value + tolerance)
-
-
-def expected_hco3_acute_respiratory_acidosis(
-    pco2: float,
-    slope_per_10: float = 1.0,
-    tolerance: float = 2.0,
-    normal_pco2: float = 40.0,
-    normal_hco3: float = 24.0,
-) -> Estimate:
-    """HCO3 rises 1 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980; Berend et al., NEJM 2014)."""
-    return _expected_hco3_respiratory(pco2, slope_per_10, tolerance, normal_pco2, normal_hco3)
-
-
-def expected_hco3_chronic_respiratory_acidosis(
-    pco2: float,
-    slope_per_10: float = 3.5,
-    tolerance: float = 2.0,
-    normal_pco2: float = 40.0,
-    normal_hco3: float = 24.0,
-) -> Estimate:
-    """HCO3 rises 3.5 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980; Berend et al., NEJM 2014)."""
-    return _expected_hco3_respiratory(pco2, slope_per_10, tolerance, normal_pco2, normal_hco3)
-
-
-def expected_hco3_acute_respiratory_alkalosis(
-    pco2: float,
-    slope_per_10: float = 2.0,
-    tolerance: float = 2.0,
-    normal_pco2: float = 40.0,
-    normal_hco3: float = 24.0,
-) -> Estimate:
-    """HCO3 falls 2 mmol/L per 10 mmHg PaCO2 (Narins & Emmett, Medicine 1980)."""
-    return _expected_hco3_respiratory(pco2, slope_per_10, tolerance, normal_pco2, normal_hco3)
-
-
-def expected_hco3_chronic_respiratory_alkalosis(
-    pco2: float,
-    slope_per_10: float = 4.0,
-    tolerance: float = 2.0,
-    normal_pco2: float = 40.0,
-    normal_hco3: float = 24.0,
-) -> Estimate:
-    """HCO3 falls 4 mmol/L per 10 mmHg PaCO2 (Narins & Emmett 1980; Krapf et al., NEJM 1991: 0.41/mmHg)."""
-    return _expected_hco3_respiratory(pco2, slope_per_10, tolerance, normal_pco2, normal_hco3)
-
-
-# --- Gaps ------------------------------------------------------------------------------------------
-
-
-def anion_gap(na: float, cl: float, hco3: float) -> float:
-    """Na - (Cl + HCO3) (Winter et al., Arch Intern Med 1990; Kraut & Madias, CJASN 2007)."""
-    return na - (cl + hco3)
-
-
-def corrected_anion_gap(
-    anion_gap: float, albumin: float, normal_albumin: float = 4.0, factor: float = 2.5
-) -> float:
-    """AG + 2.5 x (normal albumin - albumin), albumin in g/dL (Figge et al., Crit Care Med 1998)."""
-    return anion_gap + factor * (normal_albumin - albumin)
-
-
-def delta_gap(anion_gap: float, normal_gap: float = 12.0) -> float:
-    """AG - normal AG: the gap's rise over normal (Rastegar, JASN 2007)."""
-    return anion_gap - normal_gap
-
-
-def delta_ratio(anion_gap: float, hco3: float, normal_gap: float = 12.0, normal_hco3: float = 24.0) -> float:
-    """(AG - 12) / (24 - HCO3) (Rastegar, JASN 2007). Undefined unless the bicarbonate has fallen."""
-    fall = normal_hco3 - hco3
-    if fall <= 0:
-        raise ValueError(f"delta ratio is undefined: bicarbonate {hco3:g} is not below {normal_hco3:g}")
-    return (anion_gap - normal_gap) / fall
-
-
-def calculated_osmolality(na: float, glucose: float, bun: float) -> float:
-    """2 x Na + glucose/18 + BUN/2.8, in mg/dL (Hoffman et al., J Toxicol Clin Toxicol 1993)."""
-    return 2 * na + glucose / 18.0 + bun / 2.8
-
-
-def osmolal_gap(measured_osm: float, na: float, glucose: float, bun: float) -> float:
-    """Measured - calculated osmolality; reference about -14 to +10 (Hoffman et al., 1993)."""
-    return measured_osm - calculated_osmolality(na, glucose, bun)
-
-
-# --- Kidney and urine ------------------------------------------------------------------------------
-
-
-def egfr_ckd_epi_2021(creatinine: float, age: float, sex: Sex) -> float:
-    """eGFR mL/min/1.73 m2, CKD-EPI 2021 creatinine equation without race (Inker et al., NEJM 2021).
-
-    Creatinine in mg/dL. Assumes a steady state of creatinine; refused under age 18.
-    """
-    if age < EGFR_MIN_AGE:
-        raise CaseValueError(
-            [("patient.age", f"{age:g} years: CKD-EPI 2021 applies to adults (18 and over) only")]
-        )
-    if creatinine <= 0:
-        raise CaseValueError([("chem.creatinine", f"{creatinine:g} mg/dL cannot be used for eGFR")])
-    kappa, alpha, factor = (0.7, -0.241, 1.012) if sex == "female" else (0.9, -0.302, 1.0)
-    ratio = creatinine / kappa
-    egfr: float = 142.0 * min(ratio, 1.0) ** alpha * max(ratio, 1.0) ** -1.200 * 0.9938**age * factor
-    return egfr
-
-
-def urine_potassium_creatinine_ratio(urine_k: float, urine_creatinine: float) -> float:
-    """Urine K (mmol/L) / urine creatinine (mmol/L); creatinine arrives in mg/dL (x 10 / 113.12).
-
-    At or above about 1.5 mmol/mmol points to renal potassium loss (Assadi, Iran J Kidney Dis 2008;
-    the unit of that cut-off is from memory).
-    """
-    creatinine_mmol = urine_creatinine * 10.0 / CREATININE_MOLAR_MASS
-    return urine_k / creatinine_mmol
-
-
-def fractional_excretion(
-    urine_value: float, plasma_value: float, urine_creatinine: float, plasma_creatinine: float
-) -> float:
-    """Fractional excretion in percent: (U_x x P_Cr) / (P_x x U_Cr) x 100 (clearance ratio; common practice).
-
-    Both creatinines in the same unit, so the unit cancels.
-    """
-    return 100.0 * (urine_value * plasma_creatinine) / (plasma_value * urine_creatinine)
-
-
-def chloride_deficit(
-    weight_kg: float, chloride: float, target: float = 100.0, distribution: float = 0.2
-) -> float:
-    """0.2 x weight (kg) x (target Cl - measured Cl), mmol (Miller's Anesthesia, 6th ed.)."""
-    return distribution * weight_kg * (target - chloride)
-
-
-def corrected_calcium(
-    calcium: float, albumin: float, normal_albumin: float = 4.0, factor: float = 0.8
-) -> float:
-    """Ca + 0.8 x (4.0 - albumin), mg/dL and g/dL (Payne et al., BMJ 1973; from memory)."""
-    return calcium + factor * (normal_albumin - albumin)
-
 
 # --- Applying the core to a case -------------------------------------------------------------------
 
@@ -234,43 +54,6 @@ class Calculation(BaseModel):
     note: str | None = None
     low: float | None = None
     high: float | None = None
-
-
-def round_half_up(value: float, digits: int) -> float:
-    """`value` rounded half away from zero on its shortest decimal form: 8.25 -> 8.3, as the note prints it.
-
-    Python's `round` works on the binary value (8.25 -> 8.2, 7.485 -> 7.48), so a figure rounded
-    with it could read differently in the reading's sentences than in the note's tables.
-    """
-    text = repr(value)
-    if type(value) is float and "e" not in text:
-        point = text.find(".")
-        if point >= 0 and len(text) - point - 1 <= digits:
-            # Already at most `digits` decimals (most lab values): quantizing would be exact and
-            # give back this same float, so the Decimal round trip is skipped.
-            return value
-    exact = Decimal(text).quantize(_quantum(digits), rounding=ROUND_HALF_UP)
-    return float(exact)
-
-
-@functools.cache
-def _quantum(digits: int) -> Decimal:
-    return Decimal(1).scaleb(-digits)
-
-
-@functools.lru_cache(maxsize=4096, typed=True)  # a case formats the same few values again and again
-def format_value(value: float, unit: str = "") -> str:
-    """A number as a clinician reads it: at most 3 decimals (half away from zero), no trailing zeros, then the unit."""
-    text = repr(value)
-    point = text.find(".")
-    if type(value) is not float or point < 0 or "e" in text or len(text) - point - 1 > 3 or not -1e12 < value < 1e12:
-        text = f"{round_half_up(value, 3):.3f}"
-    # else the shortest form has at most 3 decimals (most lab values) and the float's spacing is far
-    # below 0.0005, so it is exactly what formatting to 3 decimals gives, less the trailing zeros
-    text = text.rstrip("0").rstrip(".")
-    if text == "-0":
-        text = "0"
-    return f"{text} {unit}".strip()
 
 
 # Bounds far outside survival: they only keep the arithmetic finite should an unvalidated case arrive.

@@ -8,17 +8,11 @@ from __future__ import annotations
 
 import math
 
+from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.alerts import severity_alerts
-from notegen.acidbase.calculations import (
-    expected_total_co2,
-    format_value,
-    henderson_hasselbalch_hco3,
-    henderson_hasselbalch_ph,
-    round_half_up,
-    usable,
-    usable_ph,
-)
+from notegen.acidbase.calculations import usable, usable_ph
+from notegen.acidbase.formulas import expected_total_co2, henderson_hasselbalch_hco3, henderson_hasselbalch_ph
 from notegen.acidbase.model import (
     AcidBaseReading,
     AcidosisKind,

@@ -8,8 +8,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert
-from notegen.acidbase.calculations import (
+from notegen.acidbase.calculations import gap_bicarbonate, usable
+from notegen.acidbase.formulas import (
     anion_gap,
     corrected_anion_gap,
     delta_gap,
@@ -20,10 +22,6 @@ from notegen.acidbase.calculations import (
     expected_hco3_chronic_respiratory_alkalosis,
     expected_pco2_metabolic_acidosis,
     expected_pco2_metabolic_alkalosis,
-    format_value,
-    gap_bicarbonate,
-    round_half_up,
-    usable,
 )
 from notegen.acidbase.model import (
     Certainty,

@@ -17,10 +17,11 @@ import yaml
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
 from notegen.acidbase.model import Chronicity, Disorder, Primary
-from notegen.assess.model import Assessment, ChlorideClass
+from notegen.assess.model import Assessment
 from notegen.case.model import CANONICAL_UNITS, Case, Volume
 from notegen.errors import RulePackError
 from notegen.resources import rules_dir, strict_yaml_loader
+from notegen.workup.model import ChlorideClass
 
 __all__ = ["Consideration", "load_considerations", "management_considerations"]
 

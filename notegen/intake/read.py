@@ -98,3 +98,23 @@ def read_case(
     if unused:
         case = case.model_copy(update={"notices": (*case.notices, *(f"not used: {item}" for item in unused))})
     return case
+
+
+def read_case_data(data: Mapping[str, Any], *, name: str = "<case data>") -> Case:
+    """Validate plain case data (a mapping shaped like a case file), as a case file's content is validated."""
+    if not isinstance(data, Mapping):
+        raise InputError(f"{name}: case data must be a mapping, not {type(data).__name__}")
+    if "resourceType" in data:
+        from notegen.intake.fhir import read_fhir
+
+        fhir = read_fhir(dict(data), source=name)
+        case = validate_case(dict(fhir.data), filename=name, provenance=dict(fhir.provenance))
+        if fhir.unused:
+            case = case.model_copy(update={"notices": (*case.notices, *(f"not used: {u}" for u in fhir.unused))})
+        return case
+    return validate_case(dict(data), filename=name)
+
+
+def read_case_text(text: str, *, name: str = "<case text>") -> Case:
+    """Read and validate the text of a case file (YAML or JSON, or a FHIR resource)."""
+    return read_case("-", stdin=text.encode("utf-8"))

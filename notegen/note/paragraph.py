@@ -11,10 +11,11 @@ from __future__ import annotations
 import re
 from collections.abc import Sequence
 
+from notegen._format import join_words, ph_text, sentence_case, trimmed_number
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading, Disorder, ExpectedRange
-from notegen.assess.model import Assessment, CauseEntry, Evidence, FactorEntry
-from notegen.render.filters import join_words, ph_text, sentence_case, trimmed_number
+from notegen.assess.model import Assessment
+from notegen.workup.model import CauseEntry, Evidence, FactorEntry
 
 __all__ = ["draft_paragraph"]
 

@@ -18,19 +18,18 @@ import math
 import re
 from collections.abc import Sequence
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
-from notegen.acidbase.calculations import Calculation, format_value
+from notegen._format import format_number, format_value, join_words, ph_text, sentence_case, trimmed_number
+from notegen.acidbase.calculations import Calculation
 from notegen.assess.considerations import management_considerations
-from notegen.assess.model import Assessment, CauseEntry, Evidence
+from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
 from notegen.errors import TemplateError, UsageError
+from notegen.note.options import DraftOptions
 from notegen.note.paragraph import draft_paragraph
-from notegen.render.filters import format_number, join_words, ph_text, sentence_case, trimmed_number
-
-if TYPE_CHECKING:
-    from notegen.pipeline import DraftOptions
+from notegen.workup.model import CauseEntry, Evidence
 
 __all__ = ["complete_assessment", "note_context", "render_markdown", "render_note"]
 

@@ -20,7 +20,13 @@ from pydantic import BaseModel, ConfigDict
 
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
-from notegen.assess.model import (
+from notegen.case.model import Case
+from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
+from notegen.engine.facts import as_fact, plain_value
+from notegen.engine.results import EvidenceResult, OpenEvidence
+from notegen.resources import rules_dir
+from notegen.workup.facts import derive_facts
+from notegen.workup.model import (
     CauseEntry,
     ChlorideClass,
     Evidence,
@@ -29,12 +35,6 @@ from notegen.assess.model import (
     SuggestedTest,
     TraceEntry,
 )
-from notegen.case.model import Case
-from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
-from notegen.engine.facts import as_fact, plain_value
-from notegen.engine.results import EvidenceResult, OpenEvidence
-from notegen.resources import rules_dir
-from notegen.workup.facts import derive_facts
 
 PACK_FOLDER = "alkalosis"
 JsonValue = float | bool | str | None

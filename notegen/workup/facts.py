@@ -14,12 +14,13 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from notegen.acidbase.calculations import CREATININE_MOLAR_MASS, Calculation
+from notegen._format import join_words
+from notegen.acidbase.calculations import Calculation
+from notegen.acidbase.formulas import CREATININE_MOLAR_MASS
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
-from notegen.render.filters import join_words
 
 CALCIUM_MOLAR_MASS = 40.078  # g/mol (IUPAC standard atomic weight)
 
