@@ -17,7 +17,8 @@ from typing import Any
 import pytest
 
 from notegen.errors import InputError
-from notegen.intake.fhir import load_loinc_table, looks_like_fhir, read_fhir
+from notegen.intake.fhir import looks_like_fhir, read_fhir
+from notegen.knowledge.loinc import load_loinc_table
 
 FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
 

@@ -21,6 +21,8 @@ from typing import Any
 
 import yaml
 
+from notegen._yaml import RuleNodeError, check_rule_nodes
+
 try:
     from yaml import CSafeLoader as _SafeLoader
 except ImportError:  # PyYAML built without libyaml
@@ -110,19 +112,28 @@ def read_yaml(path: Path, display_name: str | None = None) -> Any:
     """Parse one YAML file safely, keeping positions; errors name the file and line."""
     name = display_name or str(path)
     try:
-        text = path.read_text(encoding="utf-8")
+        raw = path.read_bytes()
     except OSError as exc:
         raise PackSourceError((name, None), f"cannot read the file: {exc.strerror or exc}") from exc
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        line = raw[: exc.start].count(b"\n") + 1
+        raise PackSourceError((name, line), "is not UTF-8 text; save the file as UTF-8") from None
     loader = _LineLoader(text)
     loader.filename = name
     try:
-        return loader.get_single_data()
+        node = loader.get_single_node()
+        check_rule_nodes(node)  # aliases, merge keys, non-finite numbers: refused before anything is built
+        return None if node is None else loader.construct_document(node)
+    except RuleNodeError as exc:
+        raise PackSourceError((name, exc.line), exc.message) from None
     except PackSourceError:
         raise
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
-        line = mark.line + 1 if mark is not None else None
-        raise PackSourceError((name, line), f"YAML syntax: {exc.problem or exc.context}") from exc
+        mark_line = mark.line + 1 if mark is not None else None
+        raise PackSourceError((name, mark_line), f"YAML syntax: {exc.problem or exc.context}") from exc
     except yaml.YAMLError as exc:
         raise PackSourceError((name, None), f"YAML: {exc}") from exc
     finally:

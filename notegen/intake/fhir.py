@@ -14,16 +14,13 @@ from __future__ import annotations
 
 import importlib
 from datetime import date, datetime
-from functools import lru_cache
-from pathlib import Path
 from typing import Any, Literal
 
-import yaml
-from pydantic import BaseModel, ConfigDict, ValidationError
+from pydantic import ConfigDict, ValidationError
 
-from notegen.errors import InputError, RulePackError
+from notegen.errors import InputError
 from notegen.intake.sections import ParsedInput, Reading, Section, as_utc, assemble_sections
-from notegen.resources import rules_dir
+from notegen.knowledge.loinc import LoincTable, load_loinc_table
 
 LOINC_SYSTEM = "http://loinc.org"
 UCUM_SYSTEM = "http://unitsofmeasure.org"
@@ -34,47 +31,6 @@ _USABLE_STATEMENT = {"active", "completed", "intended", "on-hold", "unknown"}
 _USABLE_REQUEST = {"active", "completed", "on-hold"}
 _UNITLESS = {"", "1", "[pH]", "pH"}  # how a pH's "unit" is written; a pH has none
 _STRICT = ConfigDict(frozen=True, extra="forbid")
-
-
-class LoincCode(BaseModel):
-    model_config = _STRICT
-
-    field: str
-    name: str
-    checked: str
-    sample: Literal["arterial", "venous"] | None = None
-    unit: str | None = None
-
-
-class BpComponent(BaseModel):
-    model_config = _STRICT
-
-    code: str
-    name: str
-    checked: str
-
-
-class LoincTable(BaseModel):
-    model_config = _STRICT
-
-    codes: dict[str, LoincCode]
-    bp_components: dict[Literal["systolic", "diastolic"], BpComponent]
-
-
-def loinc_table_path() -> Path:
-    return rules_dir() / "vocabulary" / "loinc.yaml"
-
-
-@lru_cache(maxsize=4)
-def load_loinc_table(path: Path | None = None) -> LoincTable:
-    path = path or loinc_table_path()
-    try:
-        return LoincTable.model_validate(yaml.safe_load(path.read_text(encoding="utf-8")))
-    except (OSError, yaml.YAMLError) as exc:
-        raise RulePackError([(str(path), None, f"cannot read the LOINC table: {exc}")]) from exc
-    except ValidationError as exc:
-        raise RulePackError([(str(path), None, f"{'.'.join(str(p) for p in e['loc'])}: {e['msg']}")
-                             for e in exc.errors()]) from exc
 
 
 def _plain_problem(error: Any) -> str:

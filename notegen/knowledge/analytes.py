@@ -7,10 +7,10 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Literal
 
-import yaml
 from pydantic import BaseModel, ConfigDict, ValidationError
 
 from notegen.errors import RulePackError
+from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
 _STRICT = ConfigDict(frozen=True, extra="forbid")
@@ -74,11 +74,9 @@ def vocabulary_path() -> Path:
 def load_vocabulary(path: Path | None = None) -> Vocabulary:
     """Load and check the vocabulary; a name given to two analytes is refused."""
     path = path or vocabulary_path()
+    raw, _ = read_rules_file(path)
     try:
-        raw = yaml.safe_load(path.read_text(encoding="utf-8"))
         vocabulary = Vocabulary.model_validate(raw)
-    except (OSError, yaml.YAMLError) as exc:
-        raise RulePackError([(str(path), None, f"cannot read the analyte vocabulary: {exc}")]) from exc
     except ValidationError as exc:
         problems: list[tuple[str, int | None, str]] = [
             (str(path), None, f"{'.'.join(str(p) for p in err['loc'])}: {err['msg']}") for err in exc.errors()

@@ -13,10 +13,10 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-import yaml
 from pydantic import BaseModel, ConfigDict
 
 from notegen.errors import RulePackError
+from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
 SETTINGS_FILE = "acid_base.yaml"
@@ -129,43 +129,16 @@ _POSITIVE: tuple[str, ...] = (
 Problems = list[tuple[str, int | None, str]]
 
 
-def _parse(text: str) -> tuple[Any, dict[str, int]]:
-    """The file's data and the line (1-based) of each top-level key, from one parse."""
-    from notegen.resources import strict_yaml_loader
-
-    loader = strict_yaml_loader()(text)
-    try:
-        node = loader.get_single_node()
-        if node is None:
-            return None, {}
-        lines: dict[str, int] = {}
-        if isinstance(node, yaml.MappingNode):
-            lines = {
-                str(key.value): key.start_mark.line + 1 for key, _ in node.value if isinstance(key, yaml.ScalarNode)
-            }
-        return loader.construct_document(node), lines
-    finally:
-        loader.dispose()
-
-
 def _read(path: Path, problems: Problems) -> tuple[dict[str, Any], dict[str, int]]:
-    name = str(path)
     try:
-        text = path.read_text(encoding="utf-8")
-    except OSError as exc:
-        problems.append((name, None, f"cannot be read ({exc.strerror or exc})"))
-        return {}, {}
-    try:
-        data, lines = _parse(text)
-    except yaml.YAMLError as exc:
-        mark = getattr(exc, "problem_mark", None)
-        line = mark.line + 1 if mark is not None else None
-        problems.append((name, line, f"is not valid YAML: {getattr(exc, 'problem', exc)}"))
+        data, lines = read_rules_file(path)
+    except RulePackError as error:
+        problems.extend(error.problems)
         return {}, {}
     if data is None:
         return {}, {}
     if not isinstance(data, dict):
-        problems.append((name, 1, "must be a mapping of setting names to entries"))
+        problems.append((str(path), 1, "must be a mapping of setting names to entries"))
         return {}, {}
     return data, lines
 

@@ -11,7 +11,9 @@ from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
-from notegen.resources import read_yaml_safely, rules_dir
+from notegen.errors import RulePackError
+from notegen.knowledge.rules_yaml import read_rules_file
+from notegen.resources import rules_dir
 
 
 @dataclass(frozen=True)
@@ -39,10 +41,9 @@ def fold(text: str) -> str:
 
 
 def _load(path: Path) -> dict[str, Any]:
-    with path.open(encoding="utf-8") as handle:
-        data = read_yaml_safely(handle)  # plain YAML types only
+    data, _ = read_rules_file(path)
     if not isinstance(data, dict):
-        raise ValueError(f"{path}: expected a mapping at the top")
+        raise RulePackError([(str(path), 1, "expected a mapping at the top")])
     return data
 
 
