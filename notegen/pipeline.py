@@ -12,7 +12,7 @@ case -> validated case (intake, case) -> calculations -> acid-base reading (acid
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import cached_property
 from os import PathLike
 from pathlib import Path
@@ -25,7 +25,8 @@ from notegen.assess.model import Assessment
 from notegen.assess.warnings import collect_warnings
 from notegen.case.model import Case
 from notegen.case.trend import build_trend
-from notegen.knowledge.settings import AcidBaseSettings, load_acid_base_settings
+from notegen.knowledge import Knowledge, shipped_knowledge
+from notegen.knowledge.settings import AcidBaseSettings
 from notegen.note.document import Note
 from notegen.note.options import DraftOptions, OutputFormat
 
@@ -44,17 +45,19 @@ class Drafter:
 
     rules_dirs: tuple[Path, ...] = ()
     template: Path | None = None
-    _cache: dict[str, object] = field(default_factory=dict, repr=False)
 
     @cached_property
+    def knowledge(self) -> Knowledge:
+        """Everything read from the shipped rules and `rules_dirs`; the shipped one is shared by the process."""
+        return Knowledge(self.rules_dirs) if self.rules_dirs else shipped_knowledge()
+
+    @property
     def settings(self) -> AcidBaseSettings:
-        return load_acid_base_settings(list(self.rules_dirs))
+        return self.knowledge.settings
 
-    @cached_property
+    @property
     def alkalosis_pack(self) -> RulePack:
-        from notegen.workup.alkalosis import load_alkalosis_pack
-
-        return load_alkalosis_pack(self.rules_dirs)
+        return self.knowledge.alkalosis_pack
 
     def assess(self, case: Case, *, explain: bool = False) -> Assessment:
         """Run every stage on a validated case and gather the results.
@@ -116,22 +119,12 @@ def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
 
 
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
-    """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
-    from notegen.errors import RulePackError
-    from notegen.knowledge.settings import load_acid_base_settings
-    from notegen.workup.alkalosis import check_alkalosis_pack
+    """Every problem of the shipped rules with these service folders laid over them, as `file:line: message`.
 
-    lines: list[str] = []
-    missing = [f for f in folders if not Path(f).is_dir()]
-    if missing:
-        return [f"{f}: no such folder" for f in missing]
-    try:
-        load_acid_base_settings(list(folders))
-    except RulePackError as error:
-        lines.extend(str(error).splitlines())
-    for filename, line, message in check_alkalosis_pack(folders):
-        lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
-    return lines
+    The same `Knowledge` that `Drafter(rules_dirs=folders)` loads, so `check-pack` and `draft --rules` agree.
+    """
+    problems = Knowledge(tuple(Path(f) for f in folders)).problems()
+    return [f"{name}:{line}: {text}" if line is not None else f"{name}: {text}" for name, line, text in problems]
 
 
 def as_case(case: CaseLike) -> Case:

@@ -1,1 +1,109 @@
-"""knowledge"""
+"""Everything notegen knows, read from `rules/`: one `Knowledge` object holds it, loaded on first use.
+
+    knowledge = Knowledge(rules_dirs=(Path("our-service"),))   # the shipped rules, a service's laid over
+    knowledge.settings.anion_gap_high.value, knowledge.alkalosis_pack, knowledge.medications["furosemide"]
+    knowledge.problems()                                       # what `check-pack` reports, file and line
+
+The `Drafter` holds one for its rule folders. `shipped_knowledge()` is the one for the shipped folder,
+built once per process; the module-level readers (`vocabulary.medications()`, ...) read through it,
+so nothing under `rules/` is parsed twice. Each part is read only when first used, so a case that
+needs no rule pack never loads one. Every file goes through `rules_yaml.read_rules_file`.
+"""
+
+from __future__ import annotations
+
+from functools import cache, cached_property
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from notegen.engine import RulePack
+    from notegen.knowledge.analytes import Vocabulary
+    from notegen.knowledge.loinc import LoincTable
+    from notegen.knowledge.settings import AcidBaseSettings
+    from notegen.knowledge.vocabulary import DrugInfo, FieldInfo, FindingInfo
+
+__all__ = ["ALKALOSIS_PACK", "Knowledge", "shipped_knowledge"]
+
+ALKALOSIS_PACK = "alkalosis"
+Problems = list[tuple[str, int | None, str]]
+
+
+class Knowledge:
+    """The settings, vocabularies, analyte and LOINC tables and rule packs, for one set of rule folders."""
+
+    def __init__(self, rules_dirs: tuple[Path, ...] | list[Path] = ()) -> None:
+        self.rules_dirs: tuple[Path, ...] = tuple(Path(d) for d in rules_dirs)
+
+    def __repr__(self) -> str:
+        return f"Knowledge(rules_dirs={self.rules_dirs!r})"
+
+    @cached_property
+    def settings(self) -> AcidBaseSettings:
+        from notegen.knowledge.settings import load_acid_base_settings
+
+        return load_acid_base_settings(list(self.rules_dirs))
+
+    @cached_property
+    def alkalosis_pack(self) -> RulePack:
+        from notegen.knowledge.packs import load_rule_pack
+
+        return load_rule_pack(ALKALOSIS_PACK, self.rules_dirs)
+
+    # The vocabularies are the shipped ones: a service adds rules and wording, not case fields.
+    @cached_property
+    def fields(self) -> dict[str, FieldInfo]:
+        from notegen.knowledge.vocabulary import read_fields
+
+        return read_fields()
+
+    @cached_property
+    def medications(self) -> dict[str, DrugInfo]:
+        from notegen.knowledge.vocabulary import read_medications
+
+        return read_medications()
+
+    @cached_property
+    def findings(self) -> dict[str, FindingInfo]:
+        from notegen.knowledge.vocabulary import read_findings
+
+        return read_findings()
+
+    @cached_property
+    def finding_labels(self) -> dict[str, str]:
+        return {info.id: info.label for info in self.findings.values()}
+
+    @cached_property
+    def analytes(self) -> Vocabulary:
+        from notegen.knowledge.analytes import read_analyte_vocabulary
+
+        return read_analyte_vocabulary()
+
+    @cached_property
+    def loinc(self) -> LoincTable:
+        from notegen.knowledge.loinc import read_loinc_table
+
+        return read_loinc_table()
+
+    def problems(self) -> Problems:
+        """Every problem of every file these folders read, as (file, line, message); empty when all load."""
+        from notegen.errors import RulePackError
+        from notegen.knowledge.packs import check_rule_pack
+
+        problems: Problems = []
+        missing = [folder for folder in self.rules_dirs if not folder.is_dir()]
+        if missing:
+            return [(str(folder), None, "no such folder") for folder in missing]
+        for part in ("settings", "fields", "medications", "findings", "analytes", "loinc"):
+            try:
+                getattr(self, part)
+            except RulePackError as error:
+                problems.extend(error.problems)
+        problems.extend(check_rule_pack(ALKALOSIS_PACK, self.rules_dirs))
+        return problems
+
+
+@cache
+def shipped_knowledge() -> Knowledge:
+    """The knowledge of the shipped `rules/` folder, built once per process."""
+    return Knowledge()

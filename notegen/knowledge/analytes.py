@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import re
-from functools import lru_cache
 from pathlib import Path
 from typing import Literal
 
@@ -70,9 +69,17 @@ def vocabulary_path() -> Path:
     return rules_dir() / "vocabulary" / "analytes.yaml"
 
 
-@lru_cache(maxsize=4)
 def load_vocabulary(path: Path | None = None) -> Vocabulary:
-    """Load and check the vocabulary; a name given to two analytes is refused."""
+    """The shipped analyte vocabulary (read once through the process's `Knowledge`), or the file at `path`."""
+    if path is None:
+        from notegen.knowledge import shipped_knowledge
+
+        return shipped_knowledge().analytes
+    return read_analyte_vocabulary(path)
+
+
+def read_analyte_vocabulary(path: Path | None = None) -> Vocabulary:
+    """Read and check the vocabulary; a name given to two analytes is refused."""
     path = path or vocabulary_path()
     raw, _ = read_rules_file(path)
     try:

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from functools import lru_cache
 from pathlib import Path
 from typing import Literal
 
@@ -12,7 +11,7 @@ from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
-__all__ = ["BpComponent", "LoincCode", "LoincTable", "load_loinc_table", "loinc_table_path"]
+__all__ = ["BpComponent", "LoincCode", "LoincTable", "load_loinc_table", "loinc_table_path", "read_loinc_table"]
 
 _STRICT = ConfigDict(frozen=True, extra="forbid")
 
@@ -46,8 +45,17 @@ def loinc_table_path() -> Path:
     return rules_dir() / "vocabulary" / "loinc.yaml"
 
 
-@lru_cache(maxsize=4)
 def load_loinc_table(path: Path | None = None) -> LoincTable:
+    """The shipped LOINC table (read once through the process's `Knowledge`), or the file at `path`."""
+    if path is None:
+        from notegen.knowledge import shipped_knowledge
+
+        return shipped_knowledge().loinc
+    return read_loinc_table(path)
+
+
+def read_loinc_table(path: Path | None = None) -> LoincTable:
+    """Read and check the LOINC table."""
     path = path or loinc_table_path()
     raw, _ = read_rules_file(path)
     try:

@@ -9,7 +9,6 @@ an unknown key, a wrong type or a changed unit is rejected with the file and lin
 from __future__ import annotations
 
 from collections.abc import Sequence
-from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
@@ -251,7 +250,8 @@ def load_acid_base_settings(extra_dirs: Sequence[Path] = ()) -> AcidBaseSettings
     return AcidBaseSettings(**merged)
 
 
-@lru_cache(maxsize=1)
 def default_acid_base_settings() -> AcidBaseSettings:
-    """The shipped settings, read once per process."""
-    return load_acid_base_settings()
+    """The shipped settings, read once per process (through the process's `Knowledge`)."""
+    from notegen.knowledge import shipped_knowledge
+
+    return shipped_knowledge().settings

@@ -7,13 +7,15 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
-from functools import lru_cache
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
+
+if TYPE_CHECKING:
+    from notegen.knowledge import Knowledge
 
 
 @dataclass(frozen=True)
@@ -47,14 +49,13 @@ def _load(path: Path) -> dict[str, Any]:
     return data
 
 
-@lru_cache(maxsize=8)
-def fields(folder: Path | None = None) -> dict[str, FieldInfo]:
+def read_fields(folder: Path | None = None) -> dict[str, FieldInfo]:
+    """Case field -> label and plausibility bounds, from `fields.yaml`."""
     data = _load((folder or rules_dir()) / "fields.yaml")
     return {name: FieldInfo(entry["label"], *entry["plausible"]) for name, entry in data.items()}
 
 
-@lru_cache(maxsize=8)
-def medications(folder: Path | None = None) -> dict[str, DrugInfo]:
+def read_medications(folder: Path | None = None) -> dict[str, DrugInfo]:
     """Folded name or synonym -> drug."""
     data = _load((folder or rules_dir()) / "vocabulary" / "medications.yaml")
     table: dict[str, DrugInfo] = {}
@@ -65,8 +66,7 @@ def medications(folder: Path | None = None) -> dict[str, DrugInfo]:
     return table
 
 
-@lru_cache(maxsize=8)
-def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
+def read_findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     """Folded id, label or synonym -> finding."""
     data = _load((folder or rules_dir()) / "vocabulary" / "findings.yaml")
     table: dict[str, FindingInfo] = {}
@@ -77,12 +77,26 @@ def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     return table
 
 
-@lru_cache(maxsize=1)
-def _finding_labels() -> dict[str, str]:
-    return {info.id: info.label for info in findings().values()}  # `findings()`, the call already cached
+# The shipped tables, read once through the process's `Knowledge`; a folder reads that folder afresh.
+def fields(folder: Path | None = None) -> dict[str, FieldInfo]:
+    return read_fields(folder) if folder is not None else _shipped().fields
+
+
+def medications(folder: Path | None = None) -> dict[str, DrugInfo]:
+    return read_medications(folder) if folder is not None else _shipped().medications
+
+
+def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
+    return read_findings(folder) if folder is not None else _shipped().findings
+
+
+def _shipped() -> Knowledge:
+    from notegen.knowledge import shipped_knowledge
+
+    return shipped_knowledge()
 
 
 def finding_label(finding_id: str) -> str:
     """The words for a finding id; a look-up, not a scan, since a case may list many findings."""
-    label = _finding_labels().get(finding_id)
+    label = _shipped().finding_labels.get(finding_id)
     return label if label is not None else finding_id.replace("_", " ")

@@ -12,7 +12,6 @@ and holds no differential.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from functools import lru_cache
 from pathlib import Path
 from typing import Any, Literal
 
@@ -21,10 +20,11 @@ from pydantic import BaseModel, ConfigDict
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
-from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
+from notegen.engine import Fact, FactInput, Problem, RulePack, walk
 from notegen.engine.facts import as_fact, plain_value
 from notegen.engine.results import EvidenceResult, OpenEvidence
-from notegen.resources import rules_dir
+from notegen.knowledge import ALKALOSIS_PACK, Knowledge, shipped_knowledge
+from notegen.knowledge.packs import check_rule_pack, pack_dirs
 from notegen.workup.facts import derive_facts
 from notegen.workup.model import (
     CauseEntry,
@@ -36,32 +36,28 @@ from notegen.workup.model import (
     TraceEntry,
 )
 
-PACK_FOLDER = "alkalosis"
+PACK_FOLDER = ALKALOSIS_PACK
 JsonValue = float | bool | str | None
 
 
 def alkalosis_pack_dirs(rules_dirs: Sequence[Path] = ()) -> list[Path]:
     """The shipped pack folder, then `<dir>/alkalosis` of each service folder that has one."""
-    layered = [Path(d) / PACK_FOLDER for d in rules_dirs if (Path(d) / PACK_FOLDER).is_dir()]
-    return [rules_dir() / PACK_FOLDER, *layered]
+    return pack_dirs(ALKALOSIS_PACK, rules_dirs)
 
 
 def load_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> RulePack:
     """Load the shipped pack with any service folders laid over it; `RulePackError` lists every problem."""
-    if not rules_dirs:
-        return default_alkalosis_pack()
-    return load_pack(alkalosis_pack_dirs(rules_dirs))
+    return default_alkalosis_pack() if not rules_dirs else Knowledge(tuple(rules_dirs)).alkalosis_pack
 
 
-@lru_cache(maxsize=1)
 def default_alkalosis_pack() -> RulePack:
-    """The shipped pack, loaded once per process."""
-    return load_pack(alkalosis_pack_dirs())
+    """The shipped pack, loaded once per process (through the process's `Knowledge`)."""
+    return shipped_knowledge().alkalosis_pack
 
 
 def check_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
     """Every problem of the layered pack as (file, line, message); empty when it loads cleanly."""
-    return check_pack(alkalosis_pack_dirs(rules_dirs))
+    return check_rule_pack(ALKALOSIS_PACK, rules_dirs)
 
 
 class RuleResult(BaseModel):
