@@ -60,3 +60,19 @@ def test_readme_console_examples_print_what_the_readme_shows(tmp_path: Path) -> 
         result = CliRunner().invoke(app, arguments)
         printed = (result.stdout + result.stderr).replace(str(tmp_path) + "/", "")
         assert printed.rstrip("\n") == shown.rstrip("\n"), command
+
+
+def test_the_readme_python_example_runs_and_prints_what_it_says(monkeypatch: pytest.MonkeyPatch) -> None:
+    import contextlib
+    import io
+
+    text = README.read_text(encoding="utf-8")
+    code = text.split("## From Python", 1)[1].split("```python\n", 1)[1].split("```", 1)[0]
+    monkeypatch.chdir(README.parent)
+    printed = io.StringIO()
+    with contextlib.redirect_stdout(printed):
+        exec(compile(code, "README.md", "exec"), {})  # noqa: S102 - the README's own example
+    lines = printed.getvalue().splitlines()
+    assert "metabolic alkalosis" in printed.getvalue()
+    # the comments in the example say what these lines print
+    assert lines[-2:] == ["metabolic_alkalosis", "responsive"]
