@@ -27,7 +27,7 @@ class CompileTemplatesHook(BuildHookInterface):
         # importing it needs only jinja2 (a build requirement), not notegen's other dependencies.
         sys.path.insert(0, self.root)
         try:
-            from notegen.render.compiled_templates import compile_templates
+            from notegen.render.template_build import compile_templates
         finally:
             sys.path.remove(self.root)
         self._scratch = Path(tempfile.mkdtemp(prefix="notegen-templates-"))

@@ -19,7 +19,8 @@ from notegen.intake.read import read_case
 from notegen.note.writer import BRIEF_TEMPLATE, NOTE_TEMPLATE, note_context
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.render import make_environment, markdown_to_html_page, markdown_to_text, render_template
-from notegen.render.compiled_templates import MANIFEST, ShippedModuleLoader, compile_templates, compiled_loader
+from notegen.render.compiled_templates import MANIFEST, ShippedModuleLoader, compiled_loader
+from notegen.render.template_build import compile_templates
 from notegen.render.templating import shipped_environment
 from notegen.resources import compiled_templates_dir, rules_dir, templates_dir
 

@@ -29,23 +29,6 @@ MANIFEST = "manifest.json"
 FORMAT = 1  # of the manifest
 
 
-def compile_templates(source: Path, target: Path) -> dict[str, str]:
-    """Compile every `*.j2` template under `source` into modules in `target`, with the manifest.
-
-    Returns the manifest's templates: name -> SHA-256 of the source. A template that does not
-    compile stops the build (`jinja2.TemplateSyntaxError`).
-    """
-    from notegen.render.templating import new_environment
-
-    environment = new_environment(jinja2.FileSystemLoader([str(source)]), sandboxed=False)
-    target.mkdir(parents=True, exist_ok=True)
-    environment.compile_templates(str(target), extensions=["j2"], zip=None, ignore_errors=False)
-    digests = {name: _digest(source, name) for name in environment.list_templates(extensions=["j2"])}
-    manifest = {"format": FORMAT, "jinja2": jinja2.__version__, "templates": digests}
-    (target / MANIFEST).write_text(json.dumps(manifest, indent=1, sort_keys=True) + "\n", encoding="utf-8")
-    return digests
-
-
 def compiled_loader(source: Path, compiled: Path) -> jinja2.BaseLoader | None:
     """A loader of the modules in `compiled`, if they match the running jinja2 and `source`; else None.
 
@@ -58,14 +41,14 @@ def compiled_loader(source: Path, compiled: Path) -> jinja2.BaseLoader | None:
         if manifest["format"] != FORMAT or manifest["jinja2"] != jinja2.__version__:
             return None
         for name, digest in templates.items():
-            if _digest(source, name) != digest:
+            if template_digest(source, name) != digest:
                 return None
     except (OSError, ValueError, KeyError, TypeError, AttributeError):
         return None
     return ShippedModuleLoader(compiled, source, frozenset(templates))
 
 
-def _digest(source: Path, name: str) -> str:
+def template_digest(source: Path, name: str) -> str:
     return hashlib.sha256(source.joinpath(*split_template_path(name)).read_bytes()).hexdigest()
 
 
