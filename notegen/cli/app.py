@@ -71,9 +71,9 @@ def _reported(action: Callable[[], int]) -> int:
 
 
 def _quiet_stdout() -> None:
-    from notegen.cli.batch import _quiet_stdout as quiet
+    from notegen.cli.batch_results import quiet_stdout
 
-    quiet()
+    quiet_stdout()
 
 
 def _utf8_streams() -> None:

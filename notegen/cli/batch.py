@@ -11,7 +11,6 @@ on standard error.
 
 from __future__ import annotations
 
-import io
 import os
 import sys
 import tempfile
@@ -24,9 +23,11 @@ from typing import BinaryIO, TextIO
 from notegen.case.validation import validate_case
 from notegen.cli.batch_results import (
     BatchInput,
+    Counts,
     Stopped,
     case_label_of,
     error_line,
+    quiet_stdout,
     refuse_out_folder_over_inputs,
     remove_stale_note,
     result_line,
@@ -224,31 +225,6 @@ def _note_stem(where: BatchInput) -> str:
     return stem if where.line is None else f"{stem}-{where.line}"  # the line number: stable across runs
 
 
-@dataclass
-class _Counts:
-    drafted: int = 0
-    rejected: int = 0
-    unwritten: int = 0
-    failed: int = 0
-    blank: int = 0
-
-    @property
-    def done(self) -> int:
-        return self.drafted + self.rejected + self.unwritten + self.failed
-
-    def summary(self) -> str:
-        text = f"{self.drafted} drafted, {self.rejected} rejected"
-        if self.unwritten:
-            text += f", {self.unwritten} not written"
-        text += f", {self.failed} failed unexpectedly" if self.failed else ""
-        return text + (f" ({self.blank} blank line{'s' if self.blank > 1 else ''} skipped)" if self.blank else "")
-
-    def status(self) -> int:
-        if self.failed:
-            return 1
-        return 0 if self.rejected + self.unwritten == 0 else 2
-
-
 class _NotWritten(Exception):
     """A drafted note could not be written: that case's failure, not the batch's."""
 
@@ -264,7 +240,7 @@ class _Batch:
     window_hours: float
     errors: TextIO
     inputs: frozenset[Path] = frozenset()
-    counts: _Counts = field(default_factory=_Counts)
+    counts: Counts = field(default_factory=Counts)
     written: dict[Path, str] = field(default_factory=dict)
     stdin_bytes: bytes | None = None
     progress: _Progress | None = None
@@ -417,38 +393,28 @@ def run_batch(
         items = ((BatchInput(str(s)), s) if isinstance(s, InputError) else (BatchInput(s), None) for s in files)
         progress = _Progress(errors, len(files))
     batch.progress = progress
-    stopped: str | None = None
-    last: BatchInput | None = None
+    stopped: tuple[str, int] | None = None  # why, and the exit status
+    current: BatchInput | None = None
     try:
         with stop_on_sigterm():
             for where, payload in items:
                 progress.update(batch.counts.done)
-                last = where
+                current = where
                 batch.one(where, payload)
-    except (KeyboardInterrupt, Stopped):
-        stopped = "interrupted"
+                current = None
+    except KeyboardInterrupt:
+        stopped = ("interrupted", 130)
+    except Stopped:
+        stopped = ("terminated", 143)
     except BrokenPipeError:
-        stopped = "standard output was closed"
-        _quiet_stdout()
+        stopped = ("standard output was closed", 141)
+        quiet_stdout()
     finally:
         progress.clear()
         summary = batch.counts.summary()
         if stopped is not None:
-            after = f" during {last.label}" if last is not None else ""
-            summary += f"; stopped{after} ({stopped}): the cases after it were not attempted"
+            summary += (f"; stopped during {current.label} ({stopped[0]}): that case and any after it were not "
+                        "drafted" if current is not None else f"; stopped ({stopped[0]}): any cases after these "
+                        "were not drafted")
         batch.say(summary)
-    if stopped == "interrupted":
-        return 130
-    if stopped is not None:
-        return 141
-    return batch.counts.status()
-
-
-def _quiet_stdout() -> None:
-    """Point standard output at the null device, so the interpreter's last flush to a closed pipe says nothing."""
-    try:
-        devnull = os.open(os.devnull, os.O_WRONLY)
-        os.dup2(devnull, sys.stdout.fileno())
-        os.close(devnull)
-    except (OSError, ValueError, AttributeError, io.UnsupportedOperation):
-        pass
+    return stopped[1] if stopped is not None else batch.counts.status()

@@ -11,9 +11,11 @@
 from __future__ import annotations
 
 import contextlib
+import io
 import json
 import os
 import signal
+import sys
 import threading
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
@@ -75,10 +77,10 @@ def same_file(one: Path, other: Path) -> bool:
 
 
 def refuse_output_over_inputs(output: Path, inputs: Iterable[str]) -> None:
-    """Raise UsageError when `output` is one of the input files: drafting would overwrite the case."""
+    """Raise UsageError when `output` is one of the input files: drafting would overwrite it."""
     for source in inputs:
         if source != "-" and same_file(output, Path(source)):
-            raise UsageError(f"{output} is the input {source}; writing the note there would overwrite the case. "
+            raise UsageError(f"{output} is the input {source}; writing the note there would overwrite that input. "
                              "Choose another output file")
 
 
@@ -107,6 +109,43 @@ def remove_stale_note(target: Path, inputs: Iterable[Path] = ()) -> str | None:
     except OSError as exc:
         return f"the earlier note {target} could not be removed ({exc.strerror}); it is not this run's"
     return f"the earlier note {target} was removed, so no note of an earlier run is taken for this one"
+
+
+@dataclass
+class Counts:
+    """What became of a batch's cases, for its summary and exit status."""
+
+    drafted: int = 0
+    rejected: int = 0
+    unwritten: int = 0
+    failed: int = 0
+    blank: int = 0
+
+    @property
+    def done(self) -> int:
+        return self.drafted + self.rejected + self.unwritten + self.failed
+
+    def summary(self) -> str:
+        text = f"{self.drafted} drafted, {self.rejected} rejected"
+        if self.unwritten:
+            text += f", {self.unwritten} not written"
+        text += f", {self.failed} failed unexpectedly" if self.failed else ""
+        return text + (f" ({self.blank} blank line{'s' if self.blank > 1 else ''} skipped)" if self.blank else "")
+
+    def status(self) -> int:
+        if self.failed:
+            return 1
+        return 0 if self.rejected + self.unwritten == 0 else 2
+
+
+def quiet_stdout() -> None:
+    """Point standard output at the null device, so the interpreter's last flush to a closed pipe says nothing."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError, io.UnsupportedOperation):
+        pass
 
 
 class Stopped(BaseException):
