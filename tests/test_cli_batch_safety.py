@@ -11,6 +11,7 @@ import os
 import signal
 import subprocess
 import sys
+import time
 from pathlib import Path
 
 import pytest
@@ -227,6 +228,17 @@ def test_a_refused_case_leaves_no_note_of_an_earlier_run(tmp_path: Path) -> None
     assert f"notegen: the earlier note {out}/bed02.md was removed" in result.stderr
 
 
+def test_a_line_now_refused_or_blank_leaves_no_note_of_an_earlier_run(tmp_path: Path) -> None:
+    out = tmp_path / "notes"
+    first = "\n".join([_line("a"), _line("b"), _line("c")]) + "\n"
+    assert runner.invoke(app, ["draft", "--jsonl", "-", "--out", str(out)], input=first).exit_code == 0
+    assert sorted(p.name for p in out.iterdir()) == ["stdin-1.md", "stdin-2.md", "stdin-3.md"]
+    second = "\n".join([_line("a"), "", '{"case": "c", "chem": {"k": 25}}']) + "\n"
+    result = runner.invoke(app, ["draft", "--jsonl", "-", "--out", str(out)], input=second)
+    assert result.exit_code == 2
+    assert sorted(p.name for p in out.iterdir()) == ["stdin-1.md"]
+
+
 def test_every_case_like_entry_of_a_folder_is_drafted_or_reported(tmp_path: Path) -> None:
     ward = tmp_path / "ward"
     ward.mkdir()
@@ -280,3 +292,26 @@ def test_a_window_that_is_not_a_finite_number_of_hours_is_a_usage_error(tmp_path
     result = runner.invoke(app, ["draft", str(case), "--window-hours", value])
     assert result.exit_code == 2 and result.stdout == ""
     assert "--window-hours" in result.stderr and "Traceback" not in result.stderr
+
+
+@pytest.mark.parametrize(("signum", "status", "why"), [(signal.SIGTERM, 143, "terminated"),
+                                                        (signal.SIGINT, 130, "interrupted")], ids=["term", "int"])
+def test_a_resident_batch_stopped_by_a_signal_prints_its_summary(tmp_path: Path, signum: int, status: int,
+                                                                 why: str) -> None:
+    out = tmp_path / "notes"
+    with subprocess.Popen([sys.executable, "-c", COMMAND, "draft", "--jsonl", "-", "--out", str(out)],
+                          stdin=subprocess.PIPE, stderr=subprocess.PIPE, text=True) as process:
+        assert process.stdin is not None and process.stderr is not None
+        process.stdin.write(_line("bed 1") + "\n" + _line("bed 2") + "\n")
+        process.stdin.flush()
+        deadline = 120.0
+        started = time.monotonic()
+        while len(list(out.glob("*.md"))) < 2 and time.monotonic() - started < deadline:
+            time.sleep(0.05)
+        time.sleep(0.5)  # the second note is counted, and the process waits for the next line
+        process.send_signal(signum)
+        assert process.wait(timeout=deadline) == status
+        errors = process.stderr.read()
+    summary = f"notegen: 2 drafted, 0 rejected; stopped ({why}): any cases after these were not drafted"
+    assert errors.splitlines()[-1] == summary
+    assert sorted(p.name for p in out.iterdir()) == ["stdin-1.md", "stdin-2.md"]  # no temporary file left

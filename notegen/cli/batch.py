@@ -289,6 +289,7 @@ class _Batch:
             self.counts.blank += 1
             if self.single_line:
                 self.write(error_line(InputError(f"{where.label}: the line is empty; no case"), where, None))
+            self.clear_stale(self.target(where))  # an earlier run's note for this line is not this run's
             return
         target = self.target(where)
         label = case_label_of(payload)
