@@ -11,7 +11,17 @@ import math
 from collections.abc import Iterable
 from decimal import ROUND_HALF_UP, Decimal
 
-__all__ = ["format_number", "format_value", "join_words", "ph_text", "round_half_up", "sentence_case", "trimmed_number"]
+__all__ = [
+    "decimals_beside",
+    "format_number",
+    "format_value",
+    "format_value_beside",
+    "join_words",
+    "ph_text",
+    "round_half_up",
+    "sentence_case",
+    "trimmed_number",
+]
 
 def format_number(value: int | float | Decimal, digits: int) -> str:
     """Return `value` with exactly `digits` decimals, rounding half away from zero.
@@ -103,4 +113,31 @@ def format_value(value: float, unit: str = "") -> str:
     text = text.rstrip("0").rstrip(".")
     if text == "-0":
         text = "0"
+    return f"{text} {unit}".strip()
+
+
+def decimals_beside(value: float, thresholds: Iterable[float], decimals: int, most: int = 9) -> int:
+    """The fewest decimals, from `decimals` up to `most`, at which `value` rounded half away from zero
+    sits on the same side of every threshold (below, on or above) as `value` itself.
+
+    A statement that compares a value with a threshold prints the value with these decimals, so that
+    it holds as printed: 2.4999 is shown as 2.4999 beside "below 2.5", never as "2.5 is below 2.5".
+    """
+    limits = [float(t) for t in thresholds if math.isfinite(t)]
+    if not math.isfinite(value):
+        return decimals
+    for digits in range(decimals, most + 1):
+        shown = round_half_up(value, digits)
+        if all((shown > t) - (shown < t) == (value > t) - (value < t) for t in limits):
+            return digits
+    return most
+
+
+def format_value_beside(value: float, thresholds: Iterable[float], unit: str = "") -> str:
+    """`format_value`, with more decimals when 3 would put the value on the wrong side of a threshold it is
+    compared with (see `decimals_beside`)."""
+    digits = decimals_beside(value, thresholds, 3)
+    if digits == 3:
+        return format_value(value, unit)
+    text = format_number(value, digits).rstrip("0").rstrip(".")
     return f"{text} {unit}".strip()

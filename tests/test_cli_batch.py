@@ -75,13 +75,18 @@ def test_json_lines_from_a_file_give_one_json_result_per_line(tmp_path: Path) ->
     cases.write_text("\n".join(lines) + "\n", encoding="utf-8")
     result = runner.invoke(app, ["draft", "--jsonl", str(cases), "--format", "json"])
     assert result.exit_code == 0, result.output
-    assert result.stderr == "notegen: 2 drafted, 0 rejected\n"
-    rows = result.stdout.splitlines()
-    assert [json.loads(row)["case"]["label"] for row in rows] == ["bed 1", "bed 2"]
-    # each line holds what `draft --format json` prints for that case alone
+    assert result.stderr == "notegen: 2 drafted, 0 rejected (1 blank line skipped)\n"
+    rows = [json.loads(row) for row in result.stdout.splitlines()]
+    assert [row["input"] for row in rows] == [
+        {"file": str(cases), "line": 1, "label": "bed 1"},
+        {"file": str(cases), "line": 2, "label": None},
+        {"file": str(cases), "line": 3, "label": "bed 2"},
+    ]
+    assert rows[1]["error"] == {"message": f"{cases}:2: the line is empty; no case", "field": None, "line": 2}
+    # each drafted line holds what `draft --format json` prints for that case alone, after its input
     single = tmp_path / "bed2.json"
     single.write_text(lines[2], encoding="utf-8")
-    assert json.loads(rows[1]) == json.loads(_single(single, "--format", "json"))
+    assert {k: v for k, v in rows[2].items() if k != "input"} == json.loads(_single(single, "--format", "json"))
 
 
 def test_json_lines_from_standard_input(tmp_path: Path) -> None:

@@ -60,9 +60,12 @@ def test_each_result_arrives_before_the_next_case_is_written() -> None:
                 result = json.loads(line)
                 assert result["case"]["label"] == case["case"]  # the answer to this case, not another
                 assert process.poll() is None, "the process stays open for the next case"
-            process.stdin.write("{not json\n")  # a bad line is reported and the process goes on
+            process.stdin.write("{not json\n")  # a bad line gets a result too, and the process goes on
+            process.stdin.flush()
+            refused = _next(lines)
+            assert refused is not None and json.loads(refused)["error"]["line"] == 3
             process.stdin.close()
-            assert _next(lines) is None  # no result for the bad line, then the end of output
+            assert _next(lines) is None  # then the end of output
             assert process.wait(timeout=WAIT) == 2
             assert "2 drafted, 1 rejected" in process.stderr.read()
         finally:

@@ -196,7 +196,7 @@ def test_an_installed_layout_drafts_every_sample_the_same_through_its_compiled_t
     assert result.returncode == 0, result.stderr
     installed = json.loads(result.stdout)
     assert installed["loaders"] == ["ShippedModuleLoader", "FileSystemLoader"]
-    assert installed["sandboxed"] == "FileSystemLoader"
+    assert installed["sandboxed"] == "ContainedLoader"  # a file loader that keeps to the folders; never compiled code
     expected = {
         f"{path}|{fmt}|{brief}": drafter.draft(read_case(str(path)), DraftOptions(output_format=fmt, brief=brief))
         for path in SAMPLES

@@ -404,7 +404,12 @@ def test_json_lines_batch_reports_each_bad_line(tmp_path: Path) -> None:
     path.write_bytes(b"\n".join(lines) + b"\n")
     result = runner.invoke(app, ["draft", str(path), "--jsonl", "--format", "json"])
     assert result.exit_code == 2
-    assert [json.loads(line)["case"]["label"] for line in result.stdout.splitlines()] == ["line one", "line nine"]
+    # one result per input line, in order: a note for the two good lines, an error for every other
+    rows = [json.loads(line) for line in result.stdout.splitlines()]
+    assert [row["input"]["line"] for row in rows] == list(range(1, 10))
+    assert [row["case"]["label"] for row in rows if "case" in row] == ["line one", "line nine"]
+    assert [row["input"]["line"] for row in rows if "error" in row] == [2, 3, 4, 5, 6, 7, 8]
+    assert rows[5]["error"]["message"].startswith(f"{path}:6, column 20: not valid JSON")
     assert result.stderr.splitlines() == [
         f"notegen: {path}:2: not UTF-8 text (byte 0xff); save the file as UTF-8",
         f"notegen: {path}:3: nested more than {MAX_DEPTH} levels deep",
@@ -413,7 +418,7 @@ def test_json_lines_batch_reports_each_bad_line(tmp_path: Path) -> None:
         f"notegen: {path}:6, column 20: not valid JSON: Expecting property name enclosed in double quotes",
         f"notegen: {path}:8: a case file is a mapping of sections (case, units, patient, gas, chem, urine, context), "
         "but this one holds a list",
-        "notegen: 2 drafted, 6 rejected",
+        "notegen: 2 drafted, 6 rejected (1 blank line skipped)",
     ]
 
 
@@ -427,7 +432,10 @@ def test_json_lines_file_that_cannot_be_read_is_reported_and_the_rest_drafted(tm
         f"notegen: {missing}: cannot be read (No such file or directory)",
         "notegen: 1 drafted, 1 rejected",
     ]
-    assert json.loads(result.stdout)["case"]["label"] == "only"
+    missing_row, only = (json.loads(line) for line in result.stdout.splitlines())
+    assert missing_row["input"] == {"file": str(missing), "line": None, "label": None}
+    assert missing_row["error"]["message"] == f"{missing}: cannot be read (No such file or directory)"
+    assert only["case"]["label"] == "only" and only["input"] == {"file": str(path), "line": 1, "label": "only"}
 
 
 class _FailingDrafter(Drafter):

@@ -40,6 +40,10 @@ def observation(code: str, value: float, unit: str, when: str = "2024-03-01T06:0
 
 
 def bundle(*resources: dict[str, Any], kind: str = "collection") -> dict[str, Any]:
+    """A bundle of `resources`; a result or medication without a subject is given one patient's."""
+    for resource in resources:
+        if resource["resourceType"] in ("Observation", "MedicationStatement", "MedicationRequest"):
+            resource.setdefault("subject", {"reference": "Patient/p"})
     return {"resourceType": "Bundle", "type": kind, "entry": [{"resource": r} for r in resources]}
 
 

@@ -6,7 +6,7 @@ considerations, never doses.
 
 from __future__ import annotations
 
-from notegen._format import format_value, round_half_up
+from notegen._format import decimals_beside, format_number, format_value, format_value_beside
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
 from notegen.case.model import Case
@@ -20,7 +20,10 @@ def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
 def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
     if ph is None:
         return []
-    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "")
+    limits = (s.alkalemia_critical.value, s.alkalemia_warning.value, s.acidemia_critical.value,
+              s.acidemia_warning.value)
+    # enough decimals for the comparison to hold as printed: 7.5999 is not shown as 7.60 beside "marked"
+    shown = format_number(ph, decimals_beside(ph, limits, 2)) + (" (calculated)" if calculated else "")
     if ph >= s.alkalemia_critical.value:
         return _alert(
             "severe_alkalemia", "critical",
@@ -53,7 +56,8 @@ def _potassium_alerts(k: float | None, s: AcidBaseSettings) -> list[Alert]:
     if not usable(k):
         return []
     assert k is not None
-    shown = format_value(k, "mmol/L")
+    shown = format_value_beside(k, (s.potassium_low_critical.value, s.potassium_low_warning.value,
+                                    s.potassium_high_critical.value, s.potassium_high_warning.value), "mmol/L")
     if k < s.potassium_low_critical.value:
         return _alert(
             "severe_hypokalemia", "critical",
@@ -86,7 +90,7 @@ def _calcium_alerts(ionized: float | None, alkalemic: bool, s: AcidBaseSettings)
     if not usable(ionized):
         return []
     assert ionized is not None
-    shown = format_value(ionized, "mmol/L")
+    shown = format_value_beside(ionized, (s.ionized_ca_low_critical.value, s.ionized_ca_low_warning.value), "mmol/L")
     why = ("Alkalemia lowers ionized calcium further.",) if alkalemic else ()
     if ionized < s.ionized_ca_low_critical.value:
         return _alert(
@@ -107,7 +111,7 @@ def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
     if not usable(mg):
         return []
     assert mg is not None
-    shown = format_value(mg, "mg/dL")
+    shown = format_value_beside(mg, (s.magnesium_low_warning.value, s.magnesium_low.value), "mg/dL")
     if mg < s.magnesium_low_warning.value:
         return _alert(
             "hypomagnesemia", "warning",

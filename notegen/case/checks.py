@@ -18,7 +18,9 @@ YEARS = (1900, 2199)
 
 # Control characters (a terminal runs ESC sequences printed with the note) and the bidirectional
 # overrides that make text display in another order than it reads; tab and newlines are harmless.
-_UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+# An unpaired surrogate (JSON's "\ud800", or a command-line byte that is not UTF-8) is no character
+# at all: it cannot be written as UTF-8, so a note holding one could not be written or read.
+_UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
 _VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
 
 
@@ -47,7 +49,12 @@ def _key(key: Any) -> str:
 def _unsafe_character(text: str) -> str | None:
     """What is wrong with `text` if it holds a character that must not reach a note, else None."""
     found = _UNSAFE_CHARACTER.search(text)
-    return None if found is None else f"contains the control character U+{ord(found.group()):04X}; remove it"
+    if found is None:
+        return None
+    code = ord(found.group())
+    if 0xD800 <= code <= 0xDFFF:
+        return f"contains U+{code:04X}, an unpaired surrogate (not valid Unicode text); remove it"
+    return f"contains the control character U+{code:04X}; remove it"
 
 
 def _finite(value: int | float) -> float | None:

@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import functools
 import gc
+import math
 import os
 import re
 import sys
@@ -27,6 +28,7 @@ from notegen.errors import NotegenError, UsageError
 if TYPE_CHECKING:
     import typer
 
+MAX_WINDOW_HOURS = 100_000  # about eleven years: any longer window is a typing slip
 APP_HELP = (
     "Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
     "Example: notegen draft samples/thiazide_and_vomiting.yaml"
@@ -60,9 +62,36 @@ def _reported(action: Callable[[], int]) -> int:
         return error.exit_code
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:  # the reader went away (`| head -1`): nothing to report to anyone
+        _quiet_stdout()
+        return 141
     except Exception as error:  # noqa: BLE001 - the last line of defence: one line, exit 1
         _say(f"unexpected error ({type(error).__name__}): {error}. Please report this with the input that caused it.")
         return 1
+
+
+def _quiet_stdout() -> None:
+    from notegen.cli.batch_results import quiet_stdout
+
+    quiet_stdout()
+
+
+def _utf8_streams() -> None:
+    """Standard output in UTF-8 whatever the locale (a note holds µ, – and ≥); standard error too,
+    with anything it cannot encode escaped rather than raised."""
+    for stream, errors in ((sys.stdout, "strict"), (sys.stderr, "backslashreplace")):
+        reconfigure = getattr(stream, "reconfigure", None)
+        if reconfigure is not None and (stream.encoding or "").lower().replace("-", "") != "utf8":
+            try:
+                reconfigure(encoding="utf-8", errors=errors)
+            except (ValueError, OSError):  # a stream that cannot change its encoding any more
+                pass
+
+
+def _check_window(window_hours: float) -> None:
+    if not math.isfinite(window_hours) or not 0.5 <= window_hours <= MAX_WINDOW_HOURS:
+        raise UsageError(f"--window-hours must be a number of hours from 0.5 to {MAX_WINDOW_HOURS:,}, "
+                         f"not {window_hours}")
 
 
 def _exit_on_failure(code: int) -> None:
@@ -100,6 +129,8 @@ def _draft(
     """The body of `notegen draft`, whichever parser read the arguments; returns the exit status."""
     from notegen.pipeline import Drafter, DraftOptions
 
+    _check_window(window_hours)
+
     options = DraftOptions(
         output_format=output_format,
         explain=explain,
@@ -120,6 +151,10 @@ def _draft(
     from notegen.intake.files import MAX_BYTES
     from notegen.intake.read import read_case
 
+    if output is not None:
+        from notegen.cli.batch_results import refuse_output_over_inputs
+
+        refuse_output_over_inputs(output, [*sources, *([paste] if paste is not None else [])])
     needs_stdin = "-" in sources or paste == "-"
     case = read_case(
         sources[0] if sources else None,
@@ -362,6 +397,8 @@ def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
 def main(argv: Sequence[str] | None = None) -> int:
     """The `notegen` command; returns the exit status (typer's path exits by itself)."""
     arguments = list(sys.argv[1:] if argv is None else argv)
+    if argv is None:  # the console script: the process's own streams
+        _utf8_streams()
     plain = _plain_draft_arguments(arguments)
     if plain is None:
         _typer_app()(args=arguments, prog_name="notegen")

@@ -15,11 +15,26 @@ import os
 import sys
 import tempfile
 import time
-from collections.abc import Iterable, Iterator
+from collections.abc import Callable, Iterable, Iterator
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import BinaryIO, TextIO
 
 from notegen.case.validation import validate_case
+from notegen.cli.batch_results import (
+    BatchInput,
+    Counts,
+    Stopped,
+    case_label_of,
+    error_line,
+    quiet_stdout,
+    refuse_out_folder_over_inputs,
+    remove_stale_note,
+    result_line,
+    same_file,
+    signals_held,
+    stop_on_sigterm,
+)
 from notegen.errors import CaseFileError, InputError, NotegenError, UsageError, printable
 from notegen.intake.files import MAX_BYTES, parse_json
 from notegen.pipeline import Drafter, DraftOptions
@@ -40,7 +55,11 @@ def write_atomically(path: Path, text: str) -> None:
     Raises UsageError when the file cannot be written (no such folder, no permission,
     disk full); the temporary file is removed whatever happens.
     """
-    path = Path(path)
+    with signals_held():  # a stop arrives after the rename or the clean-up, never between
+        _write_atomically(Path(path), text)
+
+
+def _write_atomically(path: Path, text: str) -> None:
     try:
         handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
     except OSError as exc:
@@ -58,17 +77,44 @@ def write_atomically(path: Path, text: str) -> None:
         raise
 
 
-def expand_sources(sources: Iterable[str]) -> Iterator[str | InputError]:
-    """Files as given; folders as their case files, sorted by name; an error for a folder without any."""
+def expand_sources(
+    sources: Iterable[str], warn: Callable[[str], None] | None = None
+) -> Iterator[str | InputError]:
+    """Files as given; folders as their case files, sorted by name; an error for a folder without any.
+
+    A folder entry with a case-file suffix in any letter case (`.YAML`, `.Json`, `.yml`) is a case:
+    one that cannot be read (a dangling or looping link, a socket) is yielded as an error, never
+    skipped. Subfolders are not read; `warn` is told their names.
+    """
     for source in sources:
         path = Path(source)
         if source != "-" and path.is_dir():
-            found = sorted(str(p) for p in path.iterdir() if p.suffix in CASE_SUFFIXES and p.is_file())
+            found: list[str | InputError] = []
+            subfolders: list[str] = []
+            for entry in sorted(path.iterdir()):
+                if entry.is_dir():
+                    subfolders.append(entry.name)
+                elif entry.suffix.lower() in CASE_SUFFIXES:
+                    found.append(str(entry) if entry.is_file() else _unreadable(entry))
+            if subfolders and warn is not None:
+                warn(f"{source}: subfolders are not read (give them as folders of their own): "
+                     + ", ".join(printable(name) for name in subfolders[:10])
+                     + (f" and {len(subfolders) - 10} more" if len(subfolders) > 10 else ""))
             if not found:
                 yield InputError(f"{source}: no case files ({', '.join(CASE_SUFFIXES)}) in this folder")
             yield from found
         else:
             yield source
+
+
+def _unreadable(entry: Path) -> InputError:
+    try:
+        entry.stat()
+    except OSError as exc:
+        why = exc.strerror or type(exc).__name__
+        link = " (a symbolic link)" if entry.is_symlink() else ""
+        return InputError(f"{entry}: looks like a case file but cannot be read{link}: {why}")
+    return InputError(f"{entry}: looks like a case file but is not a regular file")
 
 
 def _bounded_lines(stream: BinaryIO) -> Iterator[bytes]:
@@ -97,18 +143,22 @@ def _jsonl_line(raw: bytes, name: str, number: int) -> object:
         return InputError(f"{label}{column}: {detail}")
 
 
-def _jsonl_cases(sources: list[str], stdin: BinaryIO) -> Iterator[tuple[str, object]]:
+_BLANK = object()  # a blank line of JSON Lines: no case, yet a result line, so no reader loses its place
+
+
+def _jsonl_cases(sources: list[str], stdin: BinaryIO) -> Iterator[tuple[BatchInput, object]]:
+    """Every line of every source; a blank line is `_BLANK` (one result is written per input line)."""
     for source in sources or ["-"]:
         name = "<stdin>" if source == "-" else source
         try:
             stream = stdin if source == "-" else Path(source).open("rb")
         except OSError as exc:
-            yield name, InputError(f"{name}: cannot be read ({exc.strerror})")
+            yield BatchInput(name), InputError(f"{name}: cannot be read ({exc.strerror})")
             continue
         try:
             for number, raw in enumerate(_bounded_lines(stream), start=1):
-                if raw.strip():
-                    yield f"{name}:{number}", _jsonl_line(raw, name, number)
+                where = BatchInput(name, number)
+                yield where, _jsonl_line(raw, name, number) if raw.strip() else _BLANK
         finally:
             if stream is not stdin:
                 stream.close()
@@ -169,11 +219,141 @@ def _note_header(source: str, case_label: str | None, options: DraftOptions) -> 
     return f"=== {name} ==="
 
 
-def _note_stem(label: str, jsonl: bool) -> str:
+def _note_stem(where: BatchInput) -> str:
     """The note's file name without extension: the case file's, and the line number for JSON Lines."""
-    name = label.rsplit(":", 1)[0] if jsonl else label
-    stem = "stdin" if name in ("-", "<stdin>") else Path(name).stem
-    return f"{stem}-{label.rsplit(':', 1)[-1]}" if jsonl else stem  # the line number: stable across runs
+    stem = "stdin" if where.file in ("-", "<stdin>") else Path(where.file).stem
+    return stem if where.line is None else f"{stem}-{where.line}"  # the line number: stable across runs
+
+
+class _NotWritten(Exception):
+    """A drafted note could not be written: that case's failure, not the batch's."""
+
+
+@dataclass
+class _Batch:
+    """One run over many cases: each case is read, drafted and written, or reported; never lost."""
+
+    drafter: Drafter
+    options: DraftOptions
+    out_dir: Path | None
+    jsonl: bool
+    window_hours: float
+    errors: TextIO
+    inputs: frozenset[Path] = frozenset()
+    counts: Counts = field(default_factory=Counts)
+    written: dict[Path, str] = field(default_factory=dict)
+    stdin_bytes: bytes | None = None
+    progress: _Progress | None = None
+
+    @property
+    def single_line(self) -> bool:  # JSON Lines on standard output: one result per input
+        return self.options.output_format == "json" and self.out_dir is None
+
+    def say(self, message: str) -> None:
+        if self.progress is not None:
+            self.progress.clear()
+        print(f"notegen: {message}", file=self.errors)
+
+    def target(self, where: BatchInput) -> Path | None:
+        if self.out_dir is None:
+            return None
+        return self.out_dir / f"{_note_stem(where)}{_EXTENSIONS[self.options.output_format]}"
+
+    def draft(self, where: BatchInput, payload: object) -> tuple[str, str | None]:
+        """The note and the case label, or raise the case's error."""
+        from notegen.intake.read import read_case
+
+        if isinstance(payload, NotegenError):
+            raise payload
+        if self.jsonl:
+            case = validate_case(payload, filename=where.label, window_hours=self.window_hours)
+        else:
+            if where.file == "-" and self.stdin_bytes is None:
+                self.stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit refuses
+            case = read_case(where.file, window_hours=self.window_hours, stdin=self.stdin_bytes)
+        if self.single_line:
+            return self.drafter.draft_json_line(case, explain=self.options.explain), case.label
+        return self.drafter.draft(case, self.options), case.label
+
+    def check_target(self, where: BatchInput, target: Path) -> None:
+        if target in self.written:
+            raise InputError(f"{where.label}: its note would overwrite the note of {self.written[target]} "
+                             f"({target.name}); rename one of the two cases")
+        if any(same_file(target, source) for source in self.inputs):
+            raise InputError(f"{where.label}: its note {target} would overwrite an input file; "
+                             "choose another --out folder")
+
+    def one(self, where: BatchInput, payload: object) -> None:
+        """Draft one case and write its note, or report why not; only a stop (Ctrl-C, SIGTERM) escapes."""
+        if payload is _BLANK:
+            self.counts.blank += 1
+            if self.single_line:
+                self.write(error_line(InputError(f"{where.label}: the line is empty; no case"), where, None))
+            self.clear_stale(self.target(where))  # an earlier run's note for this line is not this run's
+            return
+        target = self.target(where)
+        label = case_label_of(payload)
+        try:
+            note, label = self.draft(where, payload)
+            if target is not None:
+                self.check_target(where, target)
+                try:
+                    write_atomically(target, note)
+                except (UsageError, OSError, UnicodeError) as exc:
+                    raise _NotWritten(f"{where.label}: drafted, but {exc}") from None
+                self.written[target] = where.label
+            else:
+                self.emit(where, note, label)
+        except NotegenError as error:
+            self.counts.rejected += 1
+            self.refused(where, error, label, target)
+            return
+        except _NotWritten as problem:
+            self.counts.unwritten += 1
+            self.say(str(problem))
+            self.clear_stale(target)
+            return
+        except BrokenPipeError:
+            raise
+        except Exception as error:  # noqa: BLE001 - one case's bug must not lose the other cases
+            self.counts.failed += 1
+            self.say(f"{where.label}: unexpected error ({type(error).__name__}): {error}. "
+                     "Please report this with the input that caused it.")
+            if self.single_line:
+                self.write(error_line(NotegenError(f"{where.label}: unexpected error ({type(error).__name__})"),
+                                      where, label))
+            self.clear_stale(target)
+            return
+        self.counts.drafted += 1
+
+    def refused(self, where: BatchInput, error: NotegenError, label: str | None, target: Path | None) -> None:
+        self.say(str(error))
+        if self.single_line:
+            self.write(error_line(error, where, label))
+        if target is not None and target not in self.written:
+            self.clear_stale(target)
+
+    def clear_stale(self, target: Path | None) -> None:
+        if target is not None and self.written.get(target) is None:
+            said = remove_stale_note(target, self.inputs)
+            if said is not None:
+                self.say(said)
+
+    def emit(self, where: BatchInput, note: str, label: str | None) -> None:
+        if self.single_line:
+            self.write(result_line(note, where, label))
+            return
+        # Several notes in one stream: each starts with a line naming its case, so that no
+        # note can be taken for the one before it (a brief note names no case of its own).
+        opening = ("\n" if self.counts.drafted else "") + _note_header(where.label, label, self.options) + "\n\n"
+        self.write(opening + (note if note.endswith("\n") else note + "\n"))
+
+    def write(self, text: str) -> None:
+        sys.stdout.write(text)
+        if self.jsonl:
+            # A program that keeps one process open and writes a case at a time reads each result
+            # as soon as it is drafted, not when a pipe's buffer fills (see the README).
+            sys.stdout.flush()
 
 
 def run_batch(
@@ -186,89 +366,56 @@ def run_batch(
     window_hours: float,
     stderr: TextIO | None = None,
 ) -> int:
-    """Draft every case; return the exit status (0 all drafted, 2 some rejected, 1 some failed unexpectedly).
+    """Draft every case; return the exit status (0 all drafted, 2 some rejected or not written, 1 some failed
+    unexpectedly, 130 stopped by Ctrl-C or SIGTERM).
 
     Messages, the progress line (when `stderr` is a terminal) and the summary go to `stderr`,
-    standard error by default.
+    standard error by default. The summary is printed however the run ends.
     """
-    from notegen.intake.read import read_case
-
     errors = stderr if stderr is not None else sys.stderr
-
+    extension = _EXTENSIONS[options.output_format]
+    if out_dir is None and options.output_format == "html":
+        raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
     if out_dir is not None:
+        refuse_out_folder_over_inputs(out_dir, sources, extension, CASE_SUFFIXES)  # input folders, input files
         try:
             out_dir.mkdir(parents=True, exist_ok=True)
         except OSError as exc:
             raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
-    if out_dir is None and options.output_format == "html":
-        raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
-    drafted = rejected = failed = 0
-    extension = _EXTENSIONS[options.output_format]
-    written: dict[Path, str] = {}
-    stdin_bytes: bytes | None = None
-    items: Iterator[tuple[str, object]]
+    batch = _Batch(drafter, options, out_dir, jsonl, window_hours, errors,
+                   inputs=frozenset(Path(s) for s in sources if s != "-"))
+    items: Iterator[tuple[BatchInput, object]]
     if jsonl:
         items = _jsonl_cases(sources, sys.stdin.buffer)
         progress = _Progress(errors, None)
     else:
-        files = list(expand_sources(sources))  # paths only, to know the total
-        items = ((str(s), s) if isinstance(s, InputError) else (s, None) for s in files)
+        files = list(expand_sources(sources, batch.say))  # paths only, to know the total
+        batch.inputs = batch.inputs | {Path(s) for s in files if isinstance(s, str) and s != "-"}
+        items = ((BatchInput(str(s)), s) if isinstance(s, InputError) else (BatchInput(s), None) for s in files)
         progress = _Progress(errors, len(files))
-    single_line = options.output_format == "json" and out_dir is None  # JSON Lines on standard output
-    for label, payload in items:
-        progress.update(drafted + rejected + failed)
-        try:
-            if isinstance(payload, NotegenError):
-                raise payload
-            if jsonl:
-                case = validate_case(payload, filename=label, window_hours=window_hours)
-            else:
-                if label == "-" and stdin_bytes is None:
-                    stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit is enough to refuse
-                case = read_case(label, window_hours=window_hours, stdin=stdin_bytes)
-            if single_line:
-                note = drafter.draft_json_line(case, explain=options.explain)
-            else:
-                note = drafter.draft(case, options)
-            target = None
-            if out_dir is not None:
-                target = out_dir / f"{_note_stem(label, jsonl)}{extension}"
-                if target in written:
-                    raise InputError(
-                        f"{label}: its note would overwrite the note of {written[target]} ({target.name}); "
-                        "rename one of the two cases"
-                    )
-        except NotegenError as error:
-            rejected += 1
-            progress.clear()
-            print(f"notegen: {error}", file=errors)
-            continue
-        except Exception as error:  # noqa: BLE001 - one case's bug must not lose the other cases
-            failed += 1
-            progress.clear()
-            print(
-                f"notegen: {label}: unexpected error ({type(error).__name__}): {error}. "
-                "Please report this with the input that caused it.",
-                file=errors,
-            )
-            continue
-        drafted += 1
-        if target is not None:
-            written[target] = label
-            write_atomically(target, note)
-        else:
-            if not single_line:
-                # Several notes in one stream: each starts with a line naming its case, so that no
-                # note can be taken for the one before it (a brief note names no case of its own).
-                sys.stdout.write(("\n" if drafted > 1 else "") + _note_header(label, case.label, options) + "\n\n")
-            sys.stdout.write(note if note.endswith("\n") else note + "\n")
-            if jsonl:
-                # A program that keeps one process open and writes a case at a time reads each result
-                # as soon as it is drafted, not when a pipe's buffer fills (see the README).
-                sys.stdout.flush()
-    progress.clear()
-    summary = f"{drafted} drafted, {rejected} rejected"
-    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=errors)
-    if failed:
-        return 1
-    return 0 if rejected == 0 else 2
+    batch.progress = progress
+    stopped: tuple[str, int] | None = None  # why, and the exit status
+    current: BatchInput | None = None
+    try:
+        with stop_on_sigterm():
+            for where, payload in items:
+                progress.update(batch.counts.done)
+                current = where
+                batch.one(where, payload)
+                current = None
+    except KeyboardInterrupt:
+        stopped = ("interrupted", 130)
+    except Stopped:
+        stopped = ("terminated", 143)
+    except BrokenPipeError:
+        stopped = ("standard output was closed", 141)
+        quiet_stdout()
+    finally:
+        progress.clear()
+        summary = batch.counts.summary()
+        if stopped is not None:
+            summary += (f"; stopped during {current.label} ({stopped[0]}): that case and any after it were not "
+                        "drafted" if current is not None else f"; stopped ({stopped[0]}): any cases after these "
+                        "were not drafted")
+        batch.say(summary)
+    return stopped[1] if stopped is not None else batch.counts.status()

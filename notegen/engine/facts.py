@@ -8,7 +8,7 @@ so the output can tell the clinician what to supply rather than guessing.
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Literal
 
@@ -100,10 +100,34 @@ def format_number(value: float, decimals: int | None = None) -> str:
     return "0" if text == "-0" else text
 
 
-def display_fact(fact: Fact, decimals: int | None = None) -> str:
-    """A fact as a sentence shows it: "12 mmol/L", "<10 mmol/L", "yes", "low", "not given"."""
+def _number_beside(value: float, decimals: int | None, beside: Sequence[float]) -> str:
+    """`format_number(value, decimals)`, with more decimals (up to 9) while the printed number would sit on
+    another side of a value in `beside` (below, on, above) than `value` does."""
+    shown = format_number(value, decimals)
+    base = 2 if decimals is None else decimals
+    for digits in range(base + 1, 10):
+        if all(_side(float(shown), limit) == _side(value, limit) for limit in beside if math.isfinite(limit)):
+            break
+        shown = format_number(value, digits)
+        if decimals is None:
+            shown = shown.rstrip("0").rstrip(".")
+    return shown
+
+
+def _side(value: float, limit: float) -> int:
+    return (value > limit) - (value < limit)
+
+
+def display_fact(fact: Fact, decimals: int | None = None, beside: Sequence[float] = ()) -> str:
+    """A fact as a sentence shows it: "12 mmol/L", "<10 mmol/L", "yes", "low", "not given".
+
+    `beside` are the setting values the same sentence compares the fact with: a number is then
+    printed with enough decimals to sit on the same side of each as its value (2.4999 beside
+    "below 2.5" is not printed as 2.5).
+    """
     if isinstance(fact, NumberFact):
-        text = (fact.qualifier or "") + format_number(fact.value, decimals)
+        shown = _number_beside(float(fact.value), decimals, beside)
+        text = (fact.qualifier or "") + shown
         return f"{text} {fact.unit}" if fact.unit else text
     if isinstance(fact, BooleanFact):
         return "yes" if fact.value else "no"

@@ -351,7 +351,11 @@ def _fill(
     values: dict[str, str] = {}
     for name in names:
         if name in pack.facts:
-            values[name] = display_fact(facts.get(name, _MISSING), pack.facts[name].decimals)
+            fact = facts.get(name, _MISSING)
+            # a number is printed on the same side of the settings its sentence names as its value is
+            beside = [pack.settings[other][0] for other in names if other in pack.settings
+                      and isinstance(fact, NumberFact) and pack.settings[other][1] == fact.unit]
+            values[name] = display_fact(fact, pack.facts[name].decimals, beside)
         elif name in pack.setting_text:
             values[name] = pack.setting_text[name]
         else:

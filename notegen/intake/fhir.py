@@ -19,6 +19,7 @@ from typing import Any, Literal
 from pydantic import ConfigDict, ValidationError
 
 from notegen.errors import InputError
+from notegen.intake.fhir_subject import check_one_patient
 from notegen.intake.sections import ParsedInput, Reading, Section, as_utc, assemble_sections
 from notegen.knowledge.loinc import LoincTable, load_loinc_table
 
@@ -73,6 +74,7 @@ class _FhirReader:
         self.source = source
         self.unused: list[str] = []
         self.provenance: dict[str, str] = {}
+        self.notices: list[str] = []
 
     def fail(self, message: str) -> InputError:
         return InputError(f"{self.source}: {message}")
@@ -112,6 +114,9 @@ class _FhirReader:
             if shell_entries:
                 shell["entry"] = shell_entries
             self._validate(shell, "the Bundle")
+            notice = check_one_patient(resources, full_urls, self.fail)  # one patient per note
+            if notice is not None:
+                self.notices.append(notice)
         elif kind == "Observation":
             self._check(data, "the file")
             resources.append(("the file", data))
@@ -149,7 +154,6 @@ class _FhirReader:
         med_resources: list[dict[str, Any]] = []
         medications: dict[str, dict[str, Any]] = {}
         extra: dict[str, Any] = {"patient": {}, "context": {}}
-        subjects: dict[str, str] = {}
         latest_bp: tuple[datetime | None, str, str] | None = None
         for where, resource in resources:
             kind = resource["resourceType"]
@@ -158,9 +162,6 @@ class _FhirReader:
                 outcome = self._observation(resource, label)
                 if outcome is None:
                     continue
-                ref = (resource.get("subject") or {}).get("reference")
-                if isinstance(ref, str):
-                    subjects.setdefault(ref, label)
                 if isinstance(outcome, Reading):
                     readings.append(outcome)
                 elif outcome[0] == "context.bp":
@@ -191,9 +192,6 @@ class _FhirReader:
                         medications[url] = resource
             else:
                 self.unused.append(f"FHIR {label} ({where}): a {kind} is not a resource notegen reads")
-        if len(subjects) > 1:
-            listed = ", ".join(f"{ref} ({label})" for ref, label in list(subjects.items())[:3])
-            raise self.fail(f"the observations belong to more than one patient: {listed}")
         if latest_bp is not None:
             extra["context"]["bp"] = latest_bp[1]
             self.provenance["context.bp"] = f"FHIR {latest_bp[2]}"
@@ -209,7 +207,7 @@ class _FhirReader:
         for section in ("patient", "context"):
             if extra[section]:
                 data[section] = extra[section]
-        return ParsedInput(data=data, provenance=self.provenance, unused=self.unused)
+        return ParsedInput(data=data, provenance=self.provenance, unused=self.unused, notices=self.notices)
 
     def _observation(
         self, resource: dict[str, Any], label: str

@@ -108,6 +108,11 @@ def _as_section(name: str) -> Section:
     raise ValueError(f"unknown section {name!r}")
 
 
+def _echo(line: str, limit: int = 100) -> str:
+    """A pasted line quoted in a message, cut short: a 2 MB line must not become a 2 MB message."""
+    return repr(line) if len(line) <= limit else f"{line[:limit]!r}... ({len(line):,} characters)"
+
+
 def _line_number(entry: str) -> int:
     number = entry.split(":", 1)[0].removeprefix("line ")
     return int(number) if number.isdigit() else 0
@@ -118,6 +123,8 @@ class _PasteReader:
         self.vocabulary = vocabulary
         self.source = source
         self.names = vocabulary.name_index()
+        # the most words in an analyte name: a prefix search tries no longer prefix (linear in the line)
+        self.longest_name = max((len(name.split()) for name in self.names), default=1)
         self.headings = vocabulary.heading_index()
         self.markers = vocabulary.marker_index()
         self.noise = set(vocabulary.noise)
@@ -172,10 +179,10 @@ class _PasteReader:
                 found.append((match.start(), self._moment(kind, match, line, number)))
             rest = pattern.sub(lambda m: " " * len(m.group(0)), rest)
         if _YEARLESS.search(rest):
-            raise PasteError(f"{line!r} has a date without a year; write it as 2024-03-01 08:00",
+            raise PasteError(f"{_echo(line)} has a date without a year; write it as 2024-03-01 08:00",
                              line=number, source=self.source)
         if _BARE_TIME.search(rest):
-            raise PasteError(f"{line!r} has a time without a date; put the date in front (2024-03-01 08:00)",
+            raise PasteError(f"{_echo(line)} has a time without a date; put the date in front (2024-03-01 08:00)",
                              line=number, source=self.source)
         found.sort(key=lambda item: item[0])
         return [moment for _, moment in found], rest.strip()
@@ -275,7 +282,7 @@ class _PasteReader:
 
     def _leading_analyte(self, text: str) -> bool:
         words = normalise(text).split()
-        return any(" ".join(words[:n]) in self.names for n in range(len(words), 0, -1))
+        return any(" ".join(words[:n]) in self.names for n in range(min(len(words), self.longest_name), 0, -1))
 
     def _analyte(self, name_text: str) -> tuple[str | None, str | None]:
         words = normalise(name_text).split()
@@ -326,7 +333,7 @@ class _PasteReader:
         return cells, units, words, ranges
 
     def _unused(self, number: int, line: str, reason: str) -> None:
-        self.unused.append(f"line {number}: {line!r} {reason}")
+        self.unused.append(f"line {number}: {_echo(line)} {reason}")
 
     # -- pass 2: which section each lab line belongs to ---------------------------
     def resolve(self, lab_lines: list[_LabLine]) -> list[Reading]:

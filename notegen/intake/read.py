@@ -61,6 +61,7 @@ def read_case(
     data: dict[str, Any] = {}
     provenance: dict[str, str] = {}
     unused: list[str] = []
+    notices: list[str] = []
     filename = "--set"
     if source is not None:
         text, filename = read_source(source, stdin)
@@ -70,6 +71,7 @@ def read_case(
 
             fhir = read_fhir(dict(parsed), source=filename)
             data, provenance, unused = dict(fhir.data), dict(fhir.provenance), list(fhir.unused)
+            notices = list(fhir.notices)
         else:
             if not isinstance(parsed, Mapping):
                 return validate_case(parsed, filename=filename)  # raises the located "not a mapping" error
@@ -95,8 +97,9 @@ def read_case(
     if source is None and paste is None and not overrides:
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
     case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)
-    if unused:
-        case = case.model_copy(update={"notices": (*case.notices, *(f"not used: {item}" for item in unused))})
+    if unused or notices:
+        case = case.model_copy(
+            update={"notices": (*notices, *case.notices, *(f"not used: {item}" for item in unused))})
     return case
 
 
@@ -109,8 +112,9 @@ def read_case_data(data: Mapping[str, Any], *, name: str = "<case data>") -> Cas
 
         fhir = read_fhir(dict(data), source=name)
         case = validate_case(dict(fhir.data), filename=name, provenance=dict(fhir.provenance))
-        if fhir.unused:
-            case = case.model_copy(update={"notices": (*case.notices, *(f"not used: {u}" for u in fhir.unused))})
+        if fhir.unused or fhir.notices:
+            case = case.model_copy(update={"notices": (*fhir.notices, *case.notices,
+                                                       *(f"not used: {u}" for u in fhir.unused))})
         return case
     return validate_case(dict(data), filename=name)
 

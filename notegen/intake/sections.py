@@ -28,12 +28,14 @@ class ParsedInput:
     `data` holds the sections found (`patient`, `gas`, `chem`, `urine`, `context`);
     `provenance` maps a dotted field path (`chem.k`, `gas[1].ph`) to its origin
     ("paste line 4", "FHIR Observation/obs-k"); `unused` lists every line or resource
-    that was not used, each with the reason.
+    that was not used, each with the reason; `notices` are sentences the note must carry
+    about the source as a whole.
     """
 
     data: dict[str, Any]
     provenance: dict[str, str] = field(default_factory=dict)
     unused: list[str] = field(default_factory=list)
+    notices: list[str] = field(default_factory=list)
 
 
 @dataclass(frozen=True)

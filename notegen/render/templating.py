@@ -67,7 +67,25 @@ def _build_environment(folders: tuple[Path, ...], sandboxed: bool) -> jinja2.Env
     compiled = None if sandboxed else compiled_templates_dir()
     if compiled is not None and folders == (templates_dir().resolve(),):
         return shipped_environment(folders[0], compiled)
+    if sandboxed:  # a service's template: every file it reaches must really lie in the folders
+        return new_environment(_contained_loader([str(folder) for folder in folders]), sandboxed=True)
     return new_environment(jinja2.FileSystemLoader([str(folder) for folder in folders]), sandboxed=sandboxed)
+
+
+def _contained_loader(folders: list[str]) -> jinja2.BaseLoader:
+    """A file loader that refuses a template whose real path (links followed) is outside `folders`."""
+    import jinja2
+
+    from notegen.render.template_budget import inside_folders, refuse
+
+    class ContainedLoader(jinja2.FileSystemLoader):
+        def get_source(self, environment: jinja2.Environment, template: str) -> tuple[str, str, Any]:
+            source, filename, uptodate = super().get_source(environment, template)
+            if not inside_folders(filename, [Path(folder) for folder in self.searchpath]):
+                raise refuse(f"template {template!r} is a link to a file outside the template folders")
+            return source, filename, uptodate
+
+    return ContainedLoader(folders)
 
 
 def shipped_environment(folder: Path, compiled: Path | None) -> jinja2.Environment:
@@ -111,6 +129,11 @@ def new_environment(loader: jinja2.BaseLoader, *, sandboxed: bool) -> jinja2.Env
     environment.filters["md"] = escape_markdown
     environment.filters["fmt"] = format_number
     environment.filters["join_words"] = join_words
+    if sandboxed:
+        from notegen.render.template_budget import bounded_filters, bounded_lipsum
+
+        environment.filters.update(bounded_filters(environment.filters))
+        environment.globals["lipsum"] = bounded_lipsum(environment.globals["lipsum"])  # type: ignore[arg-type]
     return environment
 
 
@@ -122,16 +145,41 @@ MAX_EXPONENT = 100
 def _bounded_sandbox() -> type[jinja2.Environment]:
     """The immutable sandbox, with `*` and `**` bounded so a template cannot build huge values.
 
-    The sandbox already refuses Python internals and caps `range`; CPU time spent in nested
-    loops is not bounded here (a service's template is its own configuration).
+    The sandbox already refuses Python internals and caps `range`; `%`, `+`, `~`, string methods
+    and the filters that take widths are bounded by `template_budget`, and the render's size and
+    time by `render_template`.
     """
+    from jinja2.compiler import CodeGenerator
     from jinja2.exceptions import SecurityError
     from jinja2.sandbox import ImmutableSandboxedEnvironment
 
+    from notegen.render import template_budget as budget
+
+    class BoundedCodeGenerator(CodeGenerator):
+        def visit_Concat(self, node: Any, frame: Any) -> None:  # `~`: joined by a checked function
+            self.write("environment.bounded_concat((")
+            for argument in node.nodes:
+                self.visit(argument, frame)
+                self.write(", ")
+            self.write("))")
+
     class BoundedSandbox(ImmutableSandboxedEnvironment):
-        intercepted_binops = frozenset(["*", "**"])
+        intercepted_binops = frozenset(["*", "**", "%", "+"])
+        code_generator_class = BoundedCodeGenerator
+        bounded_concat = staticmethod(budget.bounded_concat)
+
+        def call(__self, __context: Any, __obj: Any, *args: Any, **kwargs: Any) -> Any:  # noqa: N805
+            budget.check_call(__obj, args, kwargs)
+            return super().call(__context, __obj, *args, **kwargs)
 
         def call_binop(self, context: Any, operator: str, left: Any, right: Any) -> Any:
+            if operator == "%":
+                budget.check_percent_format(left)
+            sized = (str, list, tuple)
+            if operator == "+" and isinstance(left, sized) and isinstance(right, sized):
+                if len(left) + len(right) > budget.MAX_VALUE_CHARS:
+                    raise SecurityError(f"a value of more than {budget.MAX_VALUE_CHARS:,} characters or items "
+                                        "is not allowed in a template")
             if operator == "**" and isinstance(right, int | float) and abs(right) > MAX_EXPONENT:
                 raise SecurityError(f"an exponent above {MAX_EXPONENT} is not allowed in a template")
             if operator == "*":
@@ -167,9 +215,17 @@ def render_template(
     import jinja2
     from jinja2.exceptions import SecurityError
 
+    from notegen.render.template_budget import OutOfTime
+
     name = _template_name(env, name_or_path)
     try:
-        return env.get_template(name).render(dict(context))
+        return _render(env, name, context)
+    except OutOfTime as error:
+        message = "the template ran past its time budget (a loop or macro that does not end soon enough)"
+        raise _located(message, env, error, name) from None
+    except RecursionError as error:
+        message = "a template includes, imports, extends or calls itself without end"
+        raise _located(message, env, error, name) from None
     except jinja2.TemplateSyntaxError as error:  # in the template or in one it includes
         where = error.filename or error.name or name
         raise TemplateError(f"syntax error: {_message(error)}", template=where, line=error.lineno) from None
@@ -184,6 +240,25 @@ def render_template(
         raise _located(f"cannot render: {_message(error)}", env, error, name) from None
     except _EXPRESSION_ERRORS as error:
         raise _located(f"cannot render: {type(error).__name__}: {error}", env, error, name) from None
+
+
+def _render(env: jinja2.Environment, name: str, context: Mapping[str, object]) -> str:
+    """Render outside the sandbox as jinja does; inside it, piece by piece under the size and time budget."""
+    if not getattr(env, "sandboxed", False):
+        return env.get_template(name).render(dict(context))
+    from jinja2.exceptions import SecurityError
+
+    from notegen.render import template_budget as budget
+
+    pieces: list[str] = []
+    size = 0
+    with budget.time_budget(budget.RENDER_SECONDS):
+        for piece in env.get_template(name).generate(dict(context)):
+            size += len(piece)
+            if size > budget.MAX_RENDERED_CHARS:
+                raise SecurityError(f"the note would be longer than {budget.MAX_RENDERED_CHARS:,} characters")
+            pieces.append(piece)
+    return "".join(pieces)
 
 
 def _template_name(env: jinja2.Environment, name_or_path: str | Path) -> str:
