@@ -116,7 +116,10 @@ def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
 
 
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
-    """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
+    """Every problem of the shipped rules with these service folders laid over them, as `file:line: message`.
+
+    The acid-base settings, the alkalosis pack and the management considerations.
+    """
     from notegen.errors import RulePackError
     from notegen.knowledge.settings import load_acid_base_settings
     from notegen.workup.alkalosis import check_alkalosis_pack
@@ -129,7 +132,11 @@ def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
         load_acid_base_settings(list(folders))
     except RulePackError as error:
         lines.extend(str(error).splitlines())
-    for filename, line, message in check_alkalosis_pack(folders):
+    # The considerations are checked against the pack these same folders make (a cause a service
+    # adds can be named in its management.yaml); `draft --rules` loads them the same way.
+    from notegen.assess.considerations import check_considerations
+
+    for filename, line, message in [*check_alkalosis_pack(folders), *check_considerations(folders)]:
         lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
     return lines
 

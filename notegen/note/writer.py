@@ -56,6 +56,9 @@ CALCULATION_LABELS: dict[str, str] = {
     "chloride_deficit": "Chloride deficit",
     "corrected_calcium": "Calcium corrected for albumin",
 }
+# Kept in the JSON only, never in the note: the chloride deficit is an estimate resting on
+# assumptions, and printed as a bare mmol figure it reads like an amount to give.
+JSON_ONLY_CALCULATIONS = frozenset({"chloride_deficit"})
 # Decimals shown for a result; one decimal unless listed.
 _CALCULATION_DIGITS: dict[str, int] = {"egfr": 0, "fe_na": 2, "fe_cl": 2, "chloride_deficit": 0}
 _CLASS_WORDS: dict[str, str] = {
@@ -326,6 +329,8 @@ def _context_items(case: Case) -> list[dict[str, str]]:
 def _split_calculations(assessment: Assessment) -> tuple[list[Calculation], list[Calculation]]:
     """Calculations that bear on this reading, and the rest (named in one line, all kept in JSON).
 
+    `JSON_ONLY_CALCULATIONS` appear in neither list.
+
     Expected bicarbonate for a respiratory disorder says nothing when there is none, the delta
     gap and ratio nothing when the gap is normal, the expected total CO2 nothing without a panel.
     """
@@ -338,7 +343,7 @@ def _split_calculations(assessment: Assessment) -> tuple[list[Calculation], list
         irrelevant |= {"delta_gap", "delta_ratio"}
     if assessment.case.chem.tco2 is None:
         irrelevant.add("expected_total_co2")
-    calculations = list(assessment.calculations.values())
+    calculations = [c for c in assessment.calculations.values() if c.name not in JSON_ONLY_CALCULATIONS]
     return (
         [c for c in calculations if c.name not in irrelevant],
         [c for c in calculations if c.name in irrelevant],
