@@ -356,6 +356,10 @@ EXAMPLES = [
     kept_out("severe_alkalemia", lambda: assess(case(gas={"ph": 7.56, "pco2": 50, "hco3": 44}))),
     printed("ionized_calcium", lambda: assess(case(chem={"ionized_ca": 0.95})), "ionized calcium"),
     kept_out("ionized_calcium", lambda: assess(case(chem={"ionized_ca": 1.2}))),
+    kept_out(  # a low ionized calcium without alkalemia: the sentence would not hold
+        "ionized_calcium",
+        lambda: assess(case(gas={"ph": 7.40, "pco2": 40, "hco3": 24}, chem={"cl": 104, "ionized_ca": 0.95})),
+    ),
     printed("hypoventilation", lambda: assess(case(gas={"ph": 7.46, "pco2": 62, "hco3": 43})), "hypoxemia"),
     kept_out("hypoventilation", lambda: assess(BASE)),
     printed(
@@ -478,6 +482,15 @@ def test_a_service_folder_replaces_by_id_and_adds(tmp_path: Path) -> None:
     assert result[0] == "Our unit's wording." and result[-1] == "Our wording."
 
 
+def test_the_example_service_folder_adds_its_consideration_where_it_applies() -> None:
+    service = Path(__file__).resolve().parent.parent / "samples" / "service"
+    assert check_rule_folders((service,)) == []
+    low = management_considerations(assess(case(chem=LOW_K)), rules_dirs=[service])
+    assert low[-1].startswith("Our ward potassium protocol")
+    kidney_failure = management_considerations(assess(case(chem={**LOW_K, "creatinine": 6.0})), rules_dirs=[service])
+    assert not any(text.startswith("Our ward") for text in kidney_failure)
+
+
 def test_a_folder_without_the_file_changes_nothing(tmp_path: Path) -> None:
     assert management_considerations(assess(BASE), rules_dirs=[tmp_path]) == management_considerations(assess(BASE))
 
@@ -537,6 +550,8 @@ def test_check_pack_and_draft_agree_on_a_cause_the_folder_does_not_define(tmp_pa
         (ONE + ONE.removeprefix("considerations:\n"), 6, "used twice"),
         (ONE.replace("    says: Our wording.\n", "    says: a\n    says: b\n"), 5, "duplicate key"),
         ("advice: []\n", 1, "unknown section `advice`"),
+        (ONE.replace("{fact: metabolic_alkalosis, is: true}", "{alkalosis: true}"), 3, "needs `fact:`"),
+        (ONE + "    unless:\n      - {fact: edema, is: true}\n", 6, "unless"),
         ("medication_groups:\n  - {id: x, classes: [statin], label: x}\n", 2, "medication class `statin`"),
         ("settings:\n  - {id: k_low_below, value: 3, unit: mmol/L, source: x}\n", 2, "name of a pack setting"),
     ],
@@ -552,6 +567,8 @@ def test_check_pack_and_draft_agree_on_a_cause_the_folder_does_not_define(tmp_pa
         "duplicate id",
         "duplicate key",
         "unknown section",
+        "old condition keys",
+        "old unless",
         "unknown class",
         "setting clash",
     ],
@@ -591,7 +608,7 @@ def test_magnesium_is_asked_for_in_one_place_only_when_not_measured() -> None:
     assert "magnesium level" not in measured and "Magnesium has not been measured" not in measured
     unmeasured = Drafter().draft(validate_case(case(chem={**LOW_K, "mg": None})))
     assert "Magnesium has not been measured" in unmeasured
-    assert "No further test is suggested" not in unmeasured
+    assert "No further test is suggested" not in unmeasured  # the wording that contradicted it
 
 
 def test_the_chloride_deficit_is_never_a_figure_in_the_note() -> None:

@@ -247,8 +247,9 @@ def _pack(service_folders: tuple[Path, ...]) -> RulePack:
 
 
 @functools.lru_cache(maxsize=16)
-def _load(service_folders: tuple[Path, ...]) -> Considerations:
-    loaded, problems = _build((_shipped_folder(), *service_folders), _pack(service_folders))
+def _load(resolved: tuple[Path, ...], given: tuple[Path, ...]) -> Considerations:
+    # Cached by where the folders are (`resolved`); problems name the files as the user gave them.
+    loaded, problems = _build((_shipped_folder(), *given), _pack(given))
     if loaded is None:
         raise RulePackError(problems)
     return loaded
@@ -262,7 +263,8 @@ def _shipped_folder() -> Path:
 
 def load_considerations(rules_dirs: Sequence[Path] = ()) -> Considerations:
     """The shipped considerations, with those of each service folder laid over them by id."""
-    return _load(tuple(Path(folder).resolve() for folder in rules_dirs))
+    given = tuple(Path(folder) for folder in rules_dirs)
+    return _load(tuple(folder.resolve() for folder in given), given)
 
 
 def check_considerations(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
@@ -271,7 +273,7 @@ def check_considerations(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
     Checked against the alkalosis pack of the same folders; when that pack fails, its own check
     reports why, and the considerations are not checked here.
     """
-    folders = tuple(Path(folder).resolve() for folder in rules_dirs)
+    folders = tuple(Path(folder) for folder in rules_dirs)
     try:
         pack = _pack(folders)
     except RulePackError:

@@ -4,7 +4,7 @@ The considerations in `rules/management.yaml` are conditions of the rule engine
 (`notegen.engine.conditions`), so they read flat, typed facts as the alkalosis pack does. This
 module gives them:
 - every fact of the alkalosis pack's catalogue (`notegen.workup.facts.derive_facts`), for any case;
-- the reading: `metabolic_alkalosis`, `metabolic_acidosis` (established), `primary`, `chronicity`,
+- the reading: `metabolic_alkalosis`, `metabolic_acidosis` (established), `primary`, `ph_status`, `chronicity`,
   `anion_gap_status`, and `chloride_class` (the pack's tree outcome; missing without a work-up);
 - `na` (serum sodium), `ca` (total calcium) and `ionized_ca`;
 - `cause_<id>` (true when the cause is likely or possible), `factor_<id>` (true when present) and
@@ -25,7 +25,7 @@ from dataclasses import dataclass
 from typing import get_args
 
 from notegen._format import join_words
-from notegen.acidbase.model import Chronicity, GapStatus, Primary
+from notegen.acidbase.model import Chronicity, GapStatus, PhStatus, Primary
 from notegen.assess.model import Assessment
 from notegen.case.model import Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
@@ -78,6 +78,7 @@ def consideration_catalogue(pack: RulePack, groups: Sequence[MedicationGroup]) -
         _spec("metabolic_alkalosis", "boolean", "metabolic alkalosis established"),
         _spec("metabolic_acidosis", "boolean", "metabolic acidosis established"),
         _spec("primary", "enum", "primary disorder", values=get_args(Primary)),
+        _spec("ph_status", "enum", "pH status", values=get_args(PhStatus)),
         _spec("chronicity", "enum", "chronicity of the respiratory disorder", values=get_args(Chronicity)),
         _spec("anion_gap_status", "enum", "anion gap", values=get_args(GapStatus)),
         _spec("na", "number", "sodium", unit="mmol/L"),
@@ -119,6 +120,7 @@ def _reading_facts(assessment: Assessment) -> dict[str, Fact]:
         "metabolic_alkalosis": BooleanFact("metabolic_alkalosis" in reading.disorders),
         "metabolic_acidosis": BooleanFact("metabolic_acidosis" in reading.disorders),
         "primary": TextFact(reading.primary),
+        "ph_status": TextFact(reading.ph_status) if reading.ph_status else MissingFact(),
         "chronicity": TextFact(reading.chronicity) if reading.chronicity else MissingFact(),
         "anion_gap_status": TextFact(reading.anion_gap_status) if reading.anion_gap_status else MissingFact(),
         CHLORIDE_TREE: TextFact(assessment.chloride_class) if assessment.chloride_class else MissingFact(),
