@@ -108,6 +108,11 @@ EXAMPLES = [
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem={"na": 129}, context=OVERLOAD)), 3),
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem=LOW_EGFR, context=OVERLOAD)), 4),
     kept_out("acetazolamide_in_overload", lambda: assess(case(context={**OVERLOAD, "meds": ["acetazolamide"]})), 5),
+    kept_out(  # a ketoacidosis with a vomiting alkalosis and edema (invented)
+        "acetazolamide_in_overload",
+        lambda: assess(case(gas={"ph": 7.35, "pco2": 40, "hco3": 22}, chem={"cl": 88}, context=OVERLOAD)),
+        6,
+    ),
     printed(
         "chloride_resistant",
         lambda: assess(case(context={"volume": "normal"}), chloride_class="resistant"),
@@ -124,6 +129,16 @@ EXAMPLES = [
         "nausea",
     ),
     kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "unlikely"),))),
+    kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "possible"),))),
+    printed(
+        "covert_gastric_loss",
+        lambda: assess(BASE, differential=(cause("gastric_loss", "possible"),)),
+        "no vomiting is recorded",
+    ),
+    kept_out(
+        "covert_gastric_loss",
+        lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
+    ),
     # Acid suppression during gastric drainage only when none is listed.
     printed(
         "acid_suppression_during_drainage",
@@ -199,12 +214,23 @@ EXAMPLES = [
         "mineralocorticoid-receptor antagonist",
         "With losartan also taken",
     ),
-    kept_out("mineralocorticoid_excess", lambda: assess(BASE, **MINERALOCORTICOID), 0),
-    kept_out("mineralocorticoid_excess", lambda: assess(case(chem={**LOW_K, **LOW_EGFR}), **MINERALOCORTICOID), 1),
+    kept_out(
+        "mineralocorticoid_excess",
+        lambda: assess(case(chem=LOW_K, context={"meds": ["fludrocortisone"]}), **MINERALOCORTICOID),
+        0,
+    ),
+    printed(
+        "mineralocorticoid_agent",
+        lambda: assess(case(chem=LOW_K, context={"meds": ["fludrocortisone"]}), **MINERALOCORTICOID),
+        "fludrocortisone has mineralocorticoid activity",
+    ),
+    kept_out("mineralocorticoid_agent", lambda: assess(case(chem=LOW_K), **MINERALOCORTICOID)),
+    kept_out("mineralocorticoid_excess", lambda: assess(BASE, **MINERALOCORTICOID), 1),
+    kept_out("mineralocorticoid_excess", lambda: assess(case(chem={**LOW_K, **LOW_EGFR}), **MINERALOCORTICOID), 2),
     kept_out(
         "mineralocorticoid_excess",
         lambda: assess(case(chem=LOW_K, context={"meds": ["eplerenone"]}), **MINERALOCORTICOID),
-        2,
+        3,
     ),
     printed("licorice", lambda: assess(case(context={"meds": ["black licorice"]})), "stopping it"),
     kept_out("licorice", lambda: assess(BASE)),
