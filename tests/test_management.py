@@ -388,6 +388,8 @@ def test_every_contraindication_gives_its_reason_and_source() -> None:
     for spec in load_considerations().specs:
         for item in spec.never_when:
             assert item.because.strip() and item.source.strip(), spec.id
+            # Thresholds live in settings; a figure written into a reason would escape them.
+            assert not re.search(r"\d", item.because), (spec.id, item.because)
 
 
 # Wording ---------------------------------------------------------------------------------------

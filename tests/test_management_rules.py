@@ -18,7 +18,8 @@ from notegen.assess.facts import ALERT_CODES
 from notegen.case.validation import validate_case
 from notegen.cli.app import app
 from notegen.errors import RulePackError
-from notegen.pipeline import Drafter, check_rule_folders
+from notegen.note.writer import complete_assessment
+from notegen.pipeline import Drafter, DraftOptions, check_rule_folders
 
 LOW_K = {"k": 3.0}
 
@@ -186,3 +187,24 @@ def test_the_chloride_deficit_is_never_a_figure_in_the_note() -> None:
     assert "deficit" not in note.lower()
     deficit = Drafter().note(data).to_dict()["calculations"]["chloride_deficit"]
     assert deficit["unit"] == "mmol" and "an estimate, not an amount to give" in deficit["note"]
+
+
+def test_the_json_and_the_explained_note_say_what_was_held_back_and_why() -> None:
+    # Invented: heart failure with edema, potassium low, on furosemide; acetazolamide is held back.
+    data = case(chem=LOW_K, context={"volume": "high", "findings": ["heart_failure"], "meds": ["furosemide"]})
+    assessment = complete_assessment(assess(data))
+    withheld = {item.id: item.reasons for item in assessment.management_withheld}
+    assert "acetazolamide_in_overload" in withheld
+    (reason,) = withheld["acetazolamide_in_overload"]
+    assert reason.startswith("potassium low or not measured") and "[acetazolamide product label" in reason
+    assert not any("acetazolamide" in text.lower() for text in assessment.management)
+    explained = Drafter().draft(validate_case(data), DraftOptions(explain=True))
+    assert "Considerations held back for this patient, and why:" in explained
+    assert "- Acetazolamide in overload: potassium low or not measured" in explained
+    assert "held back" not in Drafter().draft(validate_case(data))
+
+
+def test_an_undecided_contraindication_is_named_as_such() -> None:
+    data = case(chem={"k": None}, context={"volume": "high", "findings": ["edema"]})
+    withheld = {item.id: item.reasons for item in complete_assessment(assess(data)).management_withheld}
+    assert withheld["acetazolamide_in_overload"][0].startswith("cannot be ruled out from the values given: potassium")

@@ -25,10 +25,10 @@ from typing import Annotated, Any
 from pydantic import Field, ValidationError
 
 from notegen.assess.facts import MedicationGroup, consideration_catalogue, consideration_facts
-from notegen.assess.model import Assessment
+from notegen.assess.model import Assessment, WithheldConsideration
 from notegen.engine import RulePack
 from notegen.engine.checks import check_conditions
-from notegen.engine.conditions import FALSE, TRUE, Compiled, ConditionSyntaxError, Limits, compile_condition
+from notegen.engine.conditions import FALSE, TRUE, Compiled, ConditionSyntaxError, Env, Limits, compile_condition
 from notegen.engine.facts import Fact, MissingFact, display_fact, fact_value
 from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem, SettingSpec, Text
 from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
@@ -42,10 +42,12 @@ __all__ = [
     "Considerations",
     "Verdict",
     "check_considerations",
+    "consider",
     "load_considerations",
     "management_considerations",
     "select_considerations",
     "weigh_considerations",
+    "withheld_considerations",
 ]
 
 FILE_NAME = "management.yaml"
@@ -307,38 +309,43 @@ def _fill(template: Template, facts: Mapping[str, Fact], loaded: Considerations)
 class Verdict:
     """How one consideration fared for a case: whether `when` holds, and which contraindications keep it out.
 
-    `blocked_by` holds the index in `never_when` of each contraindication that is true or undecided.
+    `blocked_by` holds the index in `never_when` of each contraindication that is true or undecided;
+    `undecided` those of them that a missing value leaves open.
     """
 
     id: str
     applies: bool
     blocked_by: tuple[int, ...]
+    undecided: tuple[int, ...] = ()
 
 
-def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], dict[str, Any]]:
+def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
     facts = consideration_facts(assessment, loaded.pack, loaded.groups)
-    return facts, {name: fact_value(fact) for name, fact in facts.items()}
+    env: Env = {name: fact_value(fact) for name, fact in facts.items()}
+    return facts, env
 
 
-def weigh_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Verdict, ...]:
-    """Every consideration's verdict for this assessment, in file order (printed or not)."""
-    _, env = _env(assessment, loaded)
-    return tuple(
-        Verdict(
-            item.spec.id,
-            item.when(env) == TRUE,
-            tuple(index for index, test in enumerate(item.never) if test(env) != FALSE),
-        )
-        for item in loaded.items
-    )
-
-
-def select_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Chosen, ...]:
-    """The considerations whose `when` holds and no contraindication can hold, in file order."""
-    facts, env = _env(assessment, loaded)
-    chosen: list[Chosen] = []
+def _weigh(loaded: Considerations, env: Env) -> tuple[Verdict, ...]:
+    verdicts: list[Verdict] = []
     for item in loaded.items:
-        if item.when(env) != TRUE or any(test(env) != FALSE for test in item.never):
+        results = [test(env) for test in item.never]
+        verdicts.append(
+            Verdict(
+                item.spec.id,
+                item.when(env) == TRUE,
+                tuple(index for index, value in enumerate(results) if value != FALSE),
+                tuple(index for index, value in enumerate(results) if value not in (FALSE, TRUE)),
+            )
+        )
+    return tuple(verdicts)
+
+
+def _chosen(
+    loaded: Considerations, verdicts: Sequence[Verdict], facts: Mapping[str, Fact], env: Env
+) -> tuple[Chosen, ...]:
+    chosen: list[Chosen] = []
+    for item, verdict in zip(loaded.items, verdicts, strict=True):
+        if not verdict.applies or verdict.blocked_by:
             continue
         text = _fill(item.says, facts, loaded)
         if text is None:
@@ -348,6 +355,50 @@ def select_considerations(assessment: Assessment, loaded: Considerations) -> tup
     return tuple(chosen)
 
 
+def _withheld(loaded: Considerations, verdicts: Sequence[Verdict]) -> tuple[WithheldConsideration, ...]:
+    withheld: list[WithheldConsideration] = []
+    for item, verdict in zip(loaded.items, verdicts, strict=True):
+        if not verdict.applies or not verdict.blocked_by:
+            continue
+        reasons = []
+        for index in verdict.blocked_by:
+            contraindication = item.spec.never_when[index]
+            because = " ".join(contraindication.because.split())
+            if index in verdict.undecided:
+                because = f"cannot be ruled out from the values given: {because}"
+            reasons.append(f"{because} [{' '.join(contraindication.source.split())}]")
+        withheld.append(WithheldConsideration(id=verdict.id, reasons=tuple(reasons)))
+    return tuple(withheld)
+
+
+def weigh_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Verdict, ...]:
+    """Every consideration's verdict for this assessment, in file order (printed or not)."""
+    return _weigh(loaded, _env(assessment, loaded)[1])
+
+
+def select_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Chosen, ...]:
+    """The considerations whose `when` holds and no contraindication can hold, in file order."""
+    facts, env = _env(assessment, loaded)
+    return _chosen(loaded, _weigh(loaded, env), facts, env)
+
+
+def consider(
+    assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
+) -> tuple[tuple[str, ...], tuple[WithheldConsideration, ...]]:
+    """The considerations to print, and those that apply but a contraindication keeps out (with why)."""
+    loaded = load_considerations(rules_dirs)
+    facts, env = _env(assessment, loaded)
+    verdicts = _weigh(loaded, env)
+    return tuple(item.text for item in _chosen(loaded, verdicts, facts, env)), _withheld(loaded, verdicts)
+
+
+def withheld_considerations(
+    assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
+) -> tuple[WithheldConsideration, ...]:
+    """The considerations that apply but that a contraindication keeps out, each with its reasons and sources."""
+    return consider(assessment, rules_dirs=rules_dirs)[1]
+
+
 def management_considerations(assessment: Assessment, *, rules_dirs: Sequence[Path] = ()) -> tuple[str, ...]:
     """General considerations for this assessment, phrased for the clinician to weigh, no doses."""
-    return tuple(item.text for item in select_considerations(assessment, load_considerations(rules_dirs)))
+    return consider(assessment, rules_dirs=rules_dirs)[0]

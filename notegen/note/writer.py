@@ -22,7 +22,7 @@ from typing import Any
 
 from notegen._format import format_number, format_value, join_words, ph_text, sentence_case, trimmed_number
 from notegen.acidbase.calculations import Calculation
-from notegen.assess.considerations import management_considerations
+from notegen.assess.considerations import consider
 from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
@@ -81,11 +81,9 @@ def complete_assessment(assessment: Assessment, *, rules_dirs: Sequence[Path] = 
 
     `rules_dirs` are a service's rule folders, whose `management.yaml` is laid over the shipped one.
     """
+    management, withheld = consider(assessment, rules_dirs=rules_dirs)
     return assessment.model_copy(
-        update={
-            "paragraph": draft_paragraph(assessment),
-            "management": management_considerations(assessment, rules_dirs=rules_dirs),
-        }
+        update={"paragraph": draft_paragraph(assessment), "management": management, "management_withheld": withheld}
     )
 
 
@@ -214,6 +212,10 @@ def note_context(
         "maintenance": [_labelled(f.model_dump(mode="json")) for f in assessment.maintenance],
         "next_tests": [_labelled(t.model_dump(mode="json")) for t in assessment.next_tests],
         "management": list(assessment.management),
+        "management_withheld": [
+            {"label": sentence_case(item.id.replace("_", " ")), "reasons": list(item.reasons)}
+            for item in assessment.management_withheld
+        ],
         "reading_steps": list(reading.findings),
         "trace": [_trace_row(t.model_dump(mode="json")) for t in assessment.trace],
         "reference": {
