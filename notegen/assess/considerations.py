@@ -29,7 +29,7 @@ from notegen.assess.model import Assessment, WithheldConsideration
 from notegen.engine import RulePack
 from notegen.engine.checks import check_conditions
 from notegen.engine.conditions import FALSE, TRUE, Compiled, ConditionSyntaxError, Env, Limits, compile_condition
-from notegen.engine.facts import Fact, MissingFact, display_fact, fact_value
+from notegen.engine.facts import BooleanFact, Fact, MissingFact, TextFact, display_fact, fact_value
 from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem, SettingSpec, Text
 from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
 from notegen.engine.wording import Template, parse_template
@@ -310,7 +310,7 @@ class Verdict:
     """How one consideration fared for a case: whether `when` holds, and which contraindications keep it out.
 
     `blocked_by` holds the index in `never_when` of each contraindication that is true or undecided;
-    `undecided` those of them that a missing value leaves open.
+    `undecided` those of them that a missing value leaves open. Both are empty when it does not apply.
     """
 
     id: str
@@ -321,18 +321,25 @@ class Verdict:
 
 def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
     facts = consideration_facts(assessment, loaded.pack, loaded.groups)
-    env: Env = {name: fact_value(fact) for name, fact in facts.items()}
+    # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
+    env: Env = {
+        name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)
+        for name, fact in facts.items()
+    }
     return facts, env
 
 
 def _weigh(loaded: Considerations, env: Env) -> tuple[Verdict, ...]:
     verdicts: list[Verdict] = []
     for item in loaded.items:
+        if item.when(env) != TRUE:
+            verdicts.append(Verdict(item.spec.id, False, ()))  # contraindications matter only when it applies
+            continue
         results = [test(env) for test in item.never]
         verdicts.append(
             Verdict(
                 item.spec.id,
-                item.when(env) == TRUE,
+                True,
                 tuple(index for index, value in enumerate(results) if value != FALSE),
                 tuple(index for index, value in enumerate(results) if value not in (FALSE, TRUE)),
             )

@@ -20,6 +20,7 @@ load-time checks hold the considerations file to the same rules as the pack.
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from typing import get_args
@@ -92,7 +93,7 @@ def consideration_catalogue(pack: RulePack, groups: Sequence[MedicationGroup]) -
     added += [_spec(f"factor_{f.id}", "boolean", f"{f.label} present") for f in pack.factors]
     added += [_spec(f"test_{t.id}", "boolean", f"{t.label} suggested") for t in pack.tests]
     added += [_spec(f"alert_{code}", "enum", f"{code} alert", values=ALERT_LEVELS) for code in ALERT_CODES]
-    for finding_id in sorted({info.id for info in vocabulary.findings().values()}):
+    for finding_id in _finding_ids():
         added.append(_spec(f"finding_{finding_id}", "boolean", f"{vocabulary.finding_label(finding_id)} reported"))
     for group in groups:
         added.append(_spec(f"{group.id}_listed", "boolean", f"{group.label} listed"))
@@ -100,6 +101,12 @@ def consideration_catalogue(pack: RulePack, groups: Sequence[MedicationGroup]) -
     for spec in added:
         catalogue.setdefault(spec.id, spec)  # the pack's own fact wins a shared name
     return catalogue
+
+
+@functools.cache
+def _finding_ids() -> tuple[str, ...]:
+    # The shipped vocabulary does not change while notegen runs; a set built per case cost more than the rest.
+    return tuple(sorted({info.id for info in vocabulary.findings().values()}))
 
 
 def _group_facts(meds: tuple[Medication, ...], group: MedicationGroup) -> dict[str, Fact]:
@@ -147,8 +154,9 @@ def consideration_facts(assessment: Assessment, pack: RulePack, groups: Sequence
         if ALERT_LEVELS.index(alert.level) > ALERT_LEVELS.index(levels.get(alert.code, "none")):
             levels[alert.code] = alert.level
     facts.update({f"alert_{code}": TextFact(levels.get(code, "none")) for code in ALERT_CODES})
-    for finding_id in {info.id for info in vocabulary.findings().values()}:
-        facts[f"finding_{finding_id}"] = BooleanFact(finding_id in case.context.findings)
+    findings = set(case.context.findings)
+    for finding_id in _finding_ids():
+        facts[f"finding_{finding_id}"] = BooleanFact(finding_id in findings)
     for group in groups:
         facts.update(_group_facts(case.context.meds, group))
     return facts
