@@ -121,9 +121,16 @@ def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     """Every problem of the shipped rules with these service folders laid over them, as `file:line: message`.
 
-    The same `Knowledge` that `Drafter(rules_dirs=folders)` loads, so `check-pack` and `draft --rules` agree.
+    The same `Knowledge` that `Drafter(rules_dirs=folders)` loads (settings, vocabularies, tables,
+    the alkalosis pack), then the considerations, checked against the pack these same folders make
+    (a cause a service adds can be named in its management.yaml), as `draft --rules` loads them.
     """
-    problems = Knowledge(tuple(Path(f) for f in folders)).problems()
+    from notegen.assess.considerations import check_considerations
+
+    knowledge = Knowledge(tuple(Path(f) for f in folders))
+    problems = knowledge.problems()
+    if all(folder.is_dir() for folder in knowledge.rules_dirs):
+        problems += check_considerations(knowledge.rules_dirs)
     return [f"{name}:{line}: {text}" if line is not None else f"{name}: {text}" for name, line, text in problems]
 
 

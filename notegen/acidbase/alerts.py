@@ -6,7 +6,7 @@ considerations, never doses.
 
 from __future__ import annotations
 
-from notegen._format import decimals_beside, format_number, format_value, format_value_beside
+from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
 from notegen.case.model import Case
@@ -52,24 +52,27 @@ def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[
     return []
 
 
-def _potassium_alerts(k: float | None, s: AcidBaseSettings) -> list[Alert]:
+def _potassium_alerts(k: float | None, s: AcidBaseSettings, *, magnesium_measured: bool = False) -> list[Alert]:
     if not usable(k):
         return []
     assert k is not None
     shown = format_value_beside(k, (s.potassium_low_critical.value, s.potassium_low_warning.value,
                                     s.potassium_high_critical.value, s.potassium_high_warning.value), "mmol/L")
+    # Asking for magnesium only when it was not measured; and no word of an alkalosis here, since
+    # hypokalemia also comes with acidoses (the maintenance section says what sustains an alkalosis).
+    magnesium = () if magnesium_measured else ("a magnesium level",)
     if k < s.potassium_low_critical.value:
         return _alert(
             "severe_hypokalemia", "critical",
             f"Potassium {shown} is below {format_value(s.potassium_low_critical.value, 'mmol/L')}:",
-            "severe hypokalemia; consider cardiac monitoring and prompt repletion, and check magnesium.",
+            "severe hypokalemia; consider",
+            f"{join_words(('an ECG', 'cardiac monitoring', 'prompt repletion', *magnesium))}.",
         )  # fmt: skip
     if k < s.potassium_low_warning.value:
         return _alert(
             "hypokalemia", "warning",
             f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:",
-            "hypokalemia, which also sustains a metabolic alkalosis;",
-            "consider repletion and checking magnesium.",
+            f"hypokalemia; consider {join_words(('repletion', *magnesium))}.",
         )  # fmt: skip
     if k >= s.potassium_high_critical.value:
         return _alert(
@@ -157,7 +160,7 @@ def severity_alerts(
     """Alerts for dangerous values, in a fixed order (pH, potassium, calcium, magnesium, ventilation)."""
     alerts: list[Alert] = []
     alerts += _ph_alerts(ph, ph_calculated, s)
-    alerts += _potassium_alerts(case.chem.k, s)
+    alerts += _potassium_alerts(case.chem.k, s, magnesium_measured=usable(case.chem.mg))
     alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)
     alerts += _magnesium_alerts(case.chem.mg, s)
     alerts += _hypoventilation_alert(hco3, pco2, venous, s)

@@ -337,7 +337,11 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
                 f"{dist:g} x weight x ({target:g} - Cl)",
                 {"weight": format_value(patient.weight_kg, "kg"), "Cl": format_value(chem.cl, "mmol/L")},
                 s.chloride_distribution.source,
-                note=f"target chloride {format_value(target, 'mmol/L')}",
+                note=(
+                    "an estimate, not an amount to give: it assumes chloride spread through "
+                    f"{dist:g} L/kg of body weight and a target chloride of {format_value(target, 'mmol/L')}, "
+                    "and ignores continuing losses"
+                ),
             )
     if usable(chem.ca) and usable(chem.albumin):
         assert chem.ca is not None and chem.albumin is not None

@@ -1,195 +1,260 @@
-"""General management considerations, selected from `rules/management.yaml` by the assessment.
+"""General management considerations, selected from `rules/management.yaml` for one assessment.
 
-The wording and its provenance live in the YAML; this module only loads it (refusing typos
-with the file and line), and picks the considerations whose conditions the assessment meets,
-in the order the file gives. No doses: the file holds considerations for the clinician to weigh.
+Every consideration says when it applies (`when`), when it must not be printed (`never_when`, each
+with its reason and source) and, optionally, sentences added when a further condition holds
+(`also`). The conditions are those of the rule engine (`notegen.engine.conditions`), evaluated with
+its three-valued logic over the facts of `notegen.assess.facts`:
+- a consideration is printed only when `when` is true;
+- a contraindication keeps it out when it is true or cannot be decided (a missing value): a
+  sentence the clinician must strike is worse than one left out;
+- an `also` sentence is added only when its condition is true.
+
+Loading checks every condition against the fact catalogue of the LOADED alkalosis pack (the shipped
+one with any service folder laid over it), so a cause a service adds can be named at once and a
+typo fails with its file and line. No doses: the file holds considerations for the clinician.
 """
 
 from __future__ import annotations
 
 import functools
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import Annotated, Any
 
-import yaml
-from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
+from pydantic import Field, ValidationError
 
-from notegen.acidbase.model import Chronicity, Disorder, Primary
-from notegen.assess.model import Assessment
-from notegen.case.model import CANONICAL_UNITS, Case, Volume
+from notegen.assess.facts import MedicationGroup, consideration_catalogue, consideration_facts
+from notegen.assess.model import Assessment, WithheldConsideration
+from notegen.engine import RulePack
+from notegen.engine.checks import check_conditions
+from notegen.engine.conditions import FALSE, TRUE, Compiled, ConditionSyntaxError, Env, Limits, compile_condition
+from notegen.engine.facts import BooleanFact, Fact, MissingFact, TextFact, display_fact, fact_value
+from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem, SettingSpec, Text
+from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
+from notegen.engine.wording import Template, parse_template
 from notegen.errors import RulePackError
-from notegen.resources import rules_dir, strict_yaml_loader
-from notegen.workup.model import ChlorideClass
+from notegen.knowledge import vocabulary
+from notegen.resources import rules_dir
 
-__all__ = ["Consideration", "load_considerations", "management_considerations"]
+__all__ = [
+    "Chosen",
+    "Considerations",
+    "Verdict",
+    "check_considerations",
+    "consider",
+    "load_considerations",
+    "management_considerations",
+    "select_considerations",
+    "weigh_considerations",
+    "withheld_considerations",
+]
 
 FILE_NAME = "management.yaml"
-# Stable ids of the alkalosis rule pack (issue 4) and of the acid-base alerts; a typo in a
-# condition must fail at load time rather than silently never match.
-CAUSE_IDS = frozenset(
-    {
-        "gastric_loss",
-        "diuretic",
-        "mineralocorticoid_excess",
-        "alkali_load",
-        "reduced_gfr",
-        "post_hypercapnia",
-        "salt_wasting_tubulopathy",
-        "chloride_losing_diarrhea",
-        "potassium_magnesium_depletion",
-    }
-)
-FACTOR_IDS = frozenset({"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"})
-ALERT_CODES = frozenset(
-    {
-        "severe_alkalemia",
-        "severe_acidemia",
-        "severe_hypokalemia",
-        "hypokalemia",
-        "severe_hyperkalemia",
-        "hyperkalemia",
-        "low_ionized_calcium",
-        "hypomagnesemia",
-        "high_bicarbonate_hypoventilation",
-        "inconsistent_gas",
-        "gas_panel_mismatch",
-        "sample_unstated",
-    }
-)
-ALERT_LEVELS = frozenset({"critical", "warning", "info"})
-_STRICT = ConfigDict(frozen=True, extra="forbid")
+SECTIONS = ("settings", "medication_groups", "considerations")
 
 
-class Condition(BaseModel):
-    """One condition set: every key given must hold; a list holds when any of its values does."""
-
-    model_config = _STRICT
-
-    alkalosis: bool | None = None
-    chloride_class: tuple[ChlorideClass, ...] | None = None
-    cause: tuple[str, ...] | None = None
-    factor: tuple[str, ...] | None = None
-    alert: tuple[str, ...] | None = None
-    finding: tuple[str, ...] | None = None
-    volume: tuple[Volume, ...] | None = None
-    med_class: tuple[str, ...] | None = None
-    disorder: tuple[Disorder, ...] | None = None
-    primary: tuple[Primary, ...] | None = None
-    chronicity: tuple[Chronicity, ...] | None = None
-    egfr_below: float | None = Field(default=None, gt=0)
-    unmeasured: tuple[str, ...] | None = None
-
-    @field_validator("unmeasured")
-    @classmethod
-    def _known_fields(cls, value: tuple[str, ...] | None) -> tuple[str, ...] | None:
-        return _known(value, frozenset(CANONICAL_UNITS), "case field")
-
-    @field_validator("cause")
-    @classmethod
-    def _known_causes(cls, value: tuple[str, ...] | None) -> tuple[str, ...] | None:
-        return _known(value, CAUSE_IDS, "cause")
-
-    @field_validator("factor")
-    @classmethod
-    def _known_factors(cls, value: tuple[str, ...] | None) -> tuple[str, ...] | None:
-        return _known(value, FACTOR_IDS, "maintenance factor")
-
-    @field_validator("alert")
-    @classmethod
-    def _known_alerts(cls, value: tuple[str, ...] | None) -> tuple[str, ...] | None:
-        for item in value or ():
-            code, _, level = item.partition(":")
-            _known((code,), ALERT_CODES, "alert code")
-            if level and level not in ALERT_LEVELS:
-                raise ValueError(f"alert level {level!r} is not one of {', '.join(sorted(ALERT_LEVELS))}")
-        return value
+# The file's content ----------------------------------------------------------------------------
 
 
-def _known(value: tuple[str, ...] | None, known: frozenset[str], what: str) -> tuple[str, ...] | None:
-    for item in value or ():
-        if item not in known:
-            raise ValueError(f"unknown {what} {item!r} (known: {', '.join(sorted(known))})")
-    return value
+class Contraindication(PackModel):
+    """A condition under which the consideration must not be printed, with its reason and source."""
+
+    if_: ConditionField = Field(alias="if")
+    because: Text
+    source: Text
 
 
-class Consideration(BaseModel):
-    """A consideration, the conditions that select it, and where it comes from."""
+class Addition(PackModel):
+    """A sentence added to the consideration when its condition holds."""
 
-    model_config = _STRICT
+    if_: ConditionField = Field(alias="if")
+    says: Text
+    source: Text
 
-    id: str = Field(pattern=r"^[a-z][a-z0-9_]*$")
-    when: tuple[Condition, ...] = Field(min_length=1)  # any one suffices
-    unless: tuple[Condition, ...] = ()
-    says: str = Field(min_length=1)
-    source: str = Field(min_length=1)
 
-    @field_validator("when", mode="before")
-    @classmethod
-    def _one_or_many(cls, value: object) -> object:
-        return [value] if isinstance(value, dict) else value
+class ConsiderationSpec(PackModel):
+    id: Id
+    when: ConditionField
+    never_when: tuple[Contraindication, ...] = ()
+    says: Text
+    also: tuple[Addition, ...] = ()
+    source: Text
+
+
+class GroupSpec(PackModel):
+    id: Id
+    classes: Annotated[tuple[str, ...], Field(min_length=1)]
+    label: Text
+
+
+class ManagementFile(PackModel):
+    settings: tuple[SettingSpec, ...] = ()
+    medication_groups: tuple[GroupSpec, ...] = ()
+    considerations: tuple[ConsiderationSpec, ...] = ()
 
 
 # Loading ---------------------------------------------------------------------------------------
 
 
-def _read(path: Path) -> list[tuple[int, Any]]:
-    """The entries of `considerations`, each with its line number, from one parse of the file."""
-    name = str(path)
+def _explain(error: ValidationError, raw: SourceDict) -> list[Problem]:
+    problems: list[Problem] = []
+    for detail in error.errors():
+        cause = (detail.get("ctx") or {}).get("error")
+        if isinstance(cause, ConditionSyntaxError):
+            problems.append((cause.where[0], cause.where[1], cause.message))
+            continue
+        loc = tuple(detail["loc"])
+        where = locate(raw, loc[:-1] if detail["type"] == "missing" else loc)
+        field = ".".join(str(part) for part in loc)
+        problems.append((where[0], where[1], f"`{field}`: {detail['msg'].removeprefix('Value error, ')}"))
+    return problems
+
+
+def _read(path: Path, problems: list[Problem]) -> ManagementFile | None:
     try:
-        text = path.read_text(encoding="utf-8")
-        loader = strict_yaml_loader()(text)  # a second `says:` must not silently win
-        try:
-            root = loader.get_single_node()
-            data = loader.construct_document(root) if root is not None else None
-        finally:
-            loader.dispose()
-    except OSError as error:
-        raise RulePackError([(name, None, f"cannot read: {error.strerror or error}")]) from None
-    except yaml.MarkedYAMLError as error:
-        line = error.problem_mark.line + 1 if error.problem_mark else None
-        raise RulePackError([(name, line, f"YAML error: {error.problem or error}")]) from None
-    if not isinstance(data, dict) or set(data) != {"considerations"} or not isinstance(data["considerations"], list):
-        raise RulePackError([(name, 1, "expected one top-level key, `considerations`, holding a list")])
-    assert isinstance(root, yaml.MappingNode)
-    items_node = next(value for key, value in root.value if key.value == "considerations")
-    lines = [item.start_mark.line + 1 for item in items_node.value]
-    return list(zip(lines, data["considerations"], strict=True))
+        raw = read_yaml(path)
+    except PackSourceError as error:
+        problems.append((error.where[0], error.where[1], error.message))
+        return None
+    if not isinstance(raw, SourceDict) or not raw:
+        problems.append((str(path), 1, f"expected a mapping with the sections {', '.join(SECTIONS)}"))
+        return None
+    unknown = [key for key in raw if key not in SECTIONS]
+    for key in unknown:
+        where = raw.where_of(key)
+        problems.append((where[0], where[1], f"unknown section `{key}`; sections are {', '.join(SECTIONS)}"))
+    if unknown:
+        return None
+    try:
+        return ManagementFile.model_validate(raw)
+    except ValidationError as error:
+        problems.extend(_explain(error, raw))
+        return None
 
 
-def _parse(path: Path) -> list[Consideration]:
-    problems: list[tuple[str, int | None, str]] = []
-    parsed: list[Consideration] = []
-    seen: dict[str, int] = {}
-    for line, raw in _read(path):
-        try:
-            item = Consideration.model_validate(raw)
-        except ValidationError as error:
-            for detail in error.errors():
-                where = ".".join(str(part) for part in detail["loc"])
-                problems.append((str(path), line, f"{where}: {detail['msg']}" if where else detail["msg"]))
-            continue
-        if item.id in seen:
-            problems.append((str(path), line, f"id {item.id!r} is used twice (first on line {seen[item.id]})"))
-            continue
-        seen[item.id] = line
-        parsed.append(item)
+def _merge(files: Sequence[ManagementFile], problems: list[Problem]) -> ManagementFile:
+    """Lay each file over the ones before it: an item with a known id replaces it, a new id is added."""
+    merged: dict[str, dict[str, Any]] = {name: {} for name in SECTIONS}
+    for file in files:
+        for name in SECTIONS:
+            seen: dict[str, int | None] = {}
+            for item in getattr(file, name):
+                if item.id in seen:
+                    message = f"id `{item.id}` is used twice (first on line {seen[item.id]})"
+                    problems.append((item.where[0], item.where[1], message))
+                seen[item.id] = item.where[1]
+                merged[name][item.id] = item
+    return ManagementFile.model_construct(
+        settings=tuple(merged["settings"].values()),
+        medication_groups=tuple(merged["medication_groups"].values()),
+        considerations=tuple(merged["considerations"].values()),
+    )
+
+
+@dataclass(frozen=True)
+class _Compiled:
+    spec: ConsiderationSpec
+    when: Compiled
+    never: tuple[Compiled, ...]
+    also: tuple[tuple[Compiled, Template], ...]
+    says: Template
+
+
+@dataclass(frozen=True)
+class Considerations:
+    """A loaded, checked and compiled considerations file, with the pack whose facts it reads."""
+
+    items: tuple[_Compiled, ...]
+    pack: RulePack
+    groups: tuple[MedicationGroup, ...]
+    catalogue: Mapping[str, FactSpec]
+
+    @property
+    def specs(self) -> tuple[ConsiderationSpec, ...]:
+        return tuple(item.spec for item in self.items)
+
+
+def _settings(pack: RulePack, own: Sequence[SettingSpec]) -> list[SettingSpec]:
+    shipped = [
+        SettingSpec.model_validate({"id": name, "value": value, "unit": unit, "source": "the alkalosis pack"})
+        for name, (value, unit) in pack.settings.items()
+    ]
+    return [*shipped, *own]
+
+
+def _check(merged: ManagementFile, pack: RulePack, catalogue: Mapping[str, FactSpec]) -> list[Problem]:
+    problems: list[Problem] = []
+    settings = _settings(pack, merged.settings)
+    for setting in merged.settings:
+        if setting.id in pack.settings or setting.id in catalogue:
+            where = setting.where
+            problems.append((where[0], where[1], f"setting `{setting.id}` has the name of a pack setting or fact"))
+    known_classes = {c for info in vocabulary.medications().values() for c in info.classes}
+    for group in merged.medication_groups:
+        for name in group.classes:
+            if name not in known_classes:
+                where = group.where_of("classes")
+                problems.append((where[0], where[1], f"medication class `{name}` is in no vocabulary entry"))
+    conditions = []
+    names = set(catalogue) | {s.id for s in settings}
+    for item in merged.considerations:
+        conditions += [item.when, *(c.if_ for c in item.never_when), *(a.if_ for a in item.also)]
+        for text, where in ((item.says, item.where_of("says")), *((a.says, a.where_of("says")) for a in item.also)):
+            for name in parse_template(text).names:
+                if name not in names:
+                    problems.append((where[0], where[1], f"placeholder `{{{name}}}` names no fact or setting"))
+    problems += check_conditions(conditions, catalogue.values(), settings)
+    return problems
+
+
+def _compile(merged: ManagementFile, pack: RulePack) -> tuple[_Compiled, ...]:
+    settings = {s.id: s.value for s in _settings(pack, merged.settings)}
+    limits = Limits(settings, {})
+    return tuple(
+        _Compiled(
+            spec=item,
+            when=compile_condition(item.when, limits),
+            never=tuple(compile_condition(c.if_, limits) for c in item.never_when),
+            also=tuple((compile_condition(a.if_, limits), parse_template(" ".join(a.says.split()))) for a in item.also),
+            says=parse_template(" ".join(item.says.split())),
+        )
+        for item in merged.considerations
+    )
+
+
+def _files(folders: tuple[Path, ...]) -> list[Path]:
+    # The shipped file must exist; a service's folder need not change the considerations.
+    return [folders[0] / FILE_NAME, *(f / FILE_NAME for f in folders[1:] if (f / FILE_NAME).is_file())]
+
+
+def _build(folders: tuple[Path, ...], pack: RulePack) -> tuple[Considerations | None, list[Problem]]:
+    problems: list[Problem] = []
+    files = [parsed for path in _files(folders) if (parsed := _read(path, problems)) is not None]
     if problems:
-        raise RulePackError(problems)
-    return parsed
+        return None, problems
+    merged = _merge(files, problems)
+    groups = tuple(MedicationGroup(g.id, g.classes, g.label) for g in merged.medication_groups)
+    catalogue = consideration_catalogue(pack, groups)
+    problems += _check(merged, pack, catalogue)
+    if problems:
+        return None, sorted(set(problems), key=lambda p: (p[0], p[1] or 0, p[2]))
+    return Considerations(_compile(merged, pack), pack, groups, catalogue), []
+
+
+def _pack(service_folders: tuple[Path, ...]) -> RulePack:
+    from notegen.workup.alkalosis import load_alkalosis_pack
+
+    return load_alkalosis_pack(service_folders)
 
 
 @functools.lru_cache(maxsize=16)
-def _load(folders: tuple[Path, ...]) -> tuple[Consideration, ...]:
-    merged: dict[str, Consideration] = {}
-    for folder in folders:
-        path = folder / FILE_NAME
-        if folder != folders[0] and not path.is_file():
-            continue  # a service's folder need not change the considerations
-        for item in _parse(path):
-            merged[item.id] = item  # replaces in place, or adds at the end
-    return tuple(merged.values())
+def _load(resolved: tuple[Path, ...], given: tuple[Path, ...]) -> Considerations:
+    # Cached by where the folders are (`resolved`); problems name the files as the user gave them.
+    loaded, problems = _build((_shipped_folder(), *given), _pack(given))
+    if loaded is None:
+        raise RulePackError(problems)
+    return loaded
 
 
 @functools.cache
@@ -198,103 +263,149 @@ def _shipped_folder() -> Path:
     return rules_dir().resolve()
 
 
-def load_considerations(rules_dirs: Sequence[Path] = ()) -> tuple[Consideration, ...]:
+def load_considerations(rules_dirs: Sequence[Path] = ()) -> Considerations:
     """The shipped considerations, with those of each service folder laid over them by id."""
-    return _load((_shipped_folder(), *(Path(folder).resolve() for folder in rules_dirs)))
+    given = tuple(Path(folder) for folder in rules_dirs)
+    return _load(tuple(folder.resolve() for folder in given), given)
+
+
+def check_considerations(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
+    """Every problem of the layered considerations, as (file, line, message); empty when they load.
+
+    Checked against the alkalosis pack of the same folders; when that pack fails, its own check
+    reports why, and the considerations are not checked here.
+    """
+    folders = tuple(Path(folder) for folder in rules_dirs)
+    try:
+        pack = _pack(folders)
+    except RulePackError:
+        return []
+    return _build((_shipped_folder(), *folders), pack)[1]
 
 
 # Selecting -------------------------------------------------------------------------------------
 
 
 @dataclass(frozen=True)
-class _Facts:
-    alkalosis: bool
-    chloride_class: str | None
-    causes: frozenset[str]
-    factors: frozenset[str]
-    alerts: frozenset[str]
-    findings: frozenset[str]
-    volume: str
-    med_classes: frozenset[str]
-    disorders: frozenset[str]
-    primary: str
-    chronicity: str | None
-    egfr: float | None
-    measured: frozenset[str]
+class Chosen:
+    """A consideration printed for this case: its id and its text, placeholders filled."""
 
-    @classmethod
-    def of(cls, assessment: Assessment) -> _Facts:
-        reading, case = assessment.acid_base, assessment.case
-        egfr = assessment.calculations.get("egfr")
-        return cls(
-            alkalosis="metabolic_alkalosis" in reading.disorders,
-            chloride_class=assessment.chloride_class,
-            causes=frozenset(c.cause for c in assessment.differential if c.tier in ("likely", "possible")),
-            factors=frozenset(f.factor for f in assessment.maintenance if f.status == "present"),
-            alerts=frozenset(
-                text for alert in assessment.alerts for text in (alert.code, f"{alert.code}:{alert.level}")
-            ),
-            findings=frozenset(case.context.findings),
-            volume=case.context.volume,
-            med_classes=frozenset(c for med in case.context.meds for c in med.classes),
-            disorders=frozenset(reading.disorders),
-            primary=reading.primary,
-            chronicity=reading.chronicity,
-            egfr=egfr.value if egfr is not None else None,
-            measured=_measured(case),
+    id: str
+    text: str
+
+
+def _fill(template: Template, facts: Mapping[str, Fact], loaded: Considerations) -> str | None:
+    values: dict[str, str] = {}
+    for name in template.names:
+        fact = facts.get(name, MissingFact())
+        if isinstance(fact, MissingFact):
+            return None  # never print "not given" where a name or value belongs
+        spec = loaded.catalogue.get(name)
+        values[name] = display_fact(fact, spec.decimals if spec is not None else None)
+    return template.fill(values)
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """How one consideration fared for a case: whether `when` holds, and which contraindications keep it out.
+
+    `blocked_by` holds the index in `never_when` of each contraindication that is true or undecided;
+    `undecided` those of them that a missing value leaves open. Both are empty when it does not apply.
+    """
+
+    id: str
+    applies: bool
+    blocked_by: tuple[int, ...]
+    undecided: tuple[int, ...] = ()
+
+
+def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
+    facts = consideration_facts(assessment, loaded.pack, loaded.groups)
+    # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
+    env: Env = {
+        name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)
+        for name, fact in facts.items()
+    }
+    return facts, env
+
+
+def _weigh(loaded: Considerations, env: Env) -> tuple[Verdict, ...]:
+    verdicts: list[Verdict] = []
+    for item in loaded.items:
+        if item.when(env) != TRUE:
+            verdicts.append(Verdict(item.spec.id, False, ()))  # contraindications matter only when it applies
+            continue
+        results = [test(env) for test in item.never]
+        verdicts.append(
+            Verdict(
+                item.spec.id,
+                True,
+                tuple(index for index, value in enumerate(results) if value != FALSE),
+                tuple(index for index, value in enumerate(results) if value not in (FALSE, TRUE)),
+            )
         )
+    return tuple(verdicts)
 
 
-def _measured(case: Case) -> frozenset[str]:
-    sections = {"gas": case.gas, "chem": case.chem, "urine": case.urine}
-    return frozenset(
-        name for name in CANONICAL_UNITS if getattr(sections[name.split(".")[0]], name.split(".")[1], None) is not None
-    )
+def _chosen(
+    loaded: Considerations, verdicts: Sequence[Verdict], facts: Mapping[str, Fact], env: Env
+) -> tuple[Chosen, ...]:
+    chosen: list[Chosen] = []
+    for item, verdict in zip(loaded.items, verdicts, strict=True):
+        if not verdict.applies or verdict.blocked_by:
+            continue
+        text = _fill(item.says, facts, loaded)
+        if text is None:
+            continue
+        extra = [_fill(says, facts, loaded) for test, says in item.also if test(env) == TRUE]
+        chosen.append(Chosen(item.spec.id, " ".join([text, *(e for e in extra if e)])))
+    return tuple(chosen)
 
 
-def _any(wanted: tuple[str, ...] | None, present: frozenset[str] | str | None) -> bool:
-    if wanted is None:
-        return True
-    if present is None:
-        return False
-    if isinstance(present, str):
-        return present in wanted
-    return bool(present.intersection(wanted))
+def _withheld(loaded: Considerations, verdicts: Sequence[Verdict]) -> tuple[WithheldConsideration, ...]:
+    withheld: list[WithheldConsideration] = []
+    for item, verdict in zip(loaded.items, verdicts, strict=True):
+        if not verdict.applies or not verdict.blocked_by:
+            continue
+        reasons = []
+        for index in verdict.blocked_by:
+            contraindication = item.spec.never_when[index]
+            because = " ".join(contraindication.because.split())
+            if index in verdict.undecided:
+                because = f"cannot be ruled out from the values given: {because}"
+            reasons.append(f"{because} [{' '.join(contraindication.source.split())}]")
+        withheld.append(WithheldConsideration(id=verdict.id, reasons=tuple(reasons)))
+    return tuple(withheld)
 
 
-def _holds(condition: Condition, facts: _Facts) -> bool:
-    if condition.alkalosis is not None and condition.alkalosis != facts.alkalosis:
-        return False
-    if condition.egfr_below is not None and (facts.egfr is None or facts.egfr >= condition.egfr_below):
-        return False
-    if condition.unmeasured is not None and facts.measured.intersection(condition.unmeasured):
-        return False
-    checks: tuple[tuple[tuple[str, ...] | None, frozenset[str] | str | None], ...] = (
-        (condition.chloride_class, facts.chloride_class),
-        (condition.cause, facts.causes),
-        (condition.factor, facts.factors),
-        (condition.alert, facts.alerts),
-        (condition.finding, facts.findings),
-        (condition.volume, facts.volume),
-        (condition.med_class, facts.med_classes),
-        (condition.disorder, facts.disorders),
-        (condition.primary, facts.primary),
-        (condition.chronicity, facts.chronicity),
-    )
-    return all(_any(wanted, present) for wanted, present in checks)
+def weigh_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Verdict, ...]:
+    """Every consideration's verdict for this assessment, in file order (printed or not)."""
+    return _weigh(loaded, _env(assessment, loaded)[1])
 
 
-def select_considerations(assessment: Assessment, considerations: Sequence[Consideration]) -> tuple[Consideration, ...]:
-    """The considerations whose `when` holds and no `unless` does, in file order."""
-    facts = _Facts.of(assessment)
-    return tuple(
-        item
-        for item in considerations
-        if any(_holds(c, facts) for c in item.when) and not any(_holds(c, facts) for c in item.unless)
-    )
+def select_considerations(assessment: Assessment, loaded: Considerations) -> tuple[Chosen, ...]:
+    """The considerations whose `when` holds and no contraindication can hold, in file order."""
+    facts, env = _env(assessment, loaded)
+    return _chosen(loaded, _weigh(loaded, env), facts, env)
+
+
+def consider(
+    assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
+) -> tuple[tuple[str, ...], tuple[WithheldConsideration, ...]]:
+    """The considerations to print, and those that apply but a contraindication keeps out (with why)."""
+    loaded = load_considerations(rules_dirs)
+    facts, env = _env(assessment, loaded)
+    verdicts = _weigh(loaded, env)
+    return tuple(item.text for item in _chosen(loaded, verdicts, facts, env)), _withheld(loaded, verdicts)
+
+
+def withheld_considerations(
+    assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
+) -> tuple[WithheldConsideration, ...]:
+    """The considerations that apply but that a contraindication keeps out, each with its reasons and sources."""
+    return consider(assessment, rules_dirs=rules_dirs)[1]
 
 
 def management_considerations(assessment: Assessment, *, rules_dirs: Sequence[Path] = ()) -> tuple[str, ...]:
     """General considerations for this assessment, phrased for the clinician to weigh, no doses."""
-    chosen = select_considerations(assessment, load_considerations(rules_dirs))
-    return tuple(" ".join(item.says.split()) for item in chosen)
+    return consider(assessment, rules_dirs=rules_dirs)[0]

@@ -24,6 +24,13 @@ from notegen.workup.model import (
 SCHEMA_VERSION = "1.0"
 
 
+class WithheldConsideration(FrozenModel):
+    """A management consideration that applies to the case but is not printed, and why."""
+
+    id: str
+    reasons: tuple[str, ...]  # each contraindication that holds or cannot be ruled out, with its source
+
+
 class Assessment(FrozenModel):
     """The drafted assessment of one case."""
 
@@ -39,6 +46,7 @@ class Assessment(FrozenModel):
     maintenance: tuple[FactorEntry, ...] = ()
     next_tests: tuple[SuggestedTest, ...] = ()
     management: tuple[str, ...] = ()
+    management_withheld: tuple[WithheldConsideration, ...] = ()  # kept out by a contraindication
     warnings: tuple[str, ...] = ()  # missing data and input notices, in words
     trend: tuple[TrendSeries, ...] = ()  # serial results, oldest first, for analytes measured twice or more
     trace: tuple[TraceEntry, ...] = ()

@@ -273,6 +273,8 @@ def check_pack(
 ) -> None:
     """Check a service's rule pack and report every problem with its file and line.
 
+    Checks acid_base.yaml, the alkalosis/ pack and management.yaml, as `draft --rules` loads them.
+
     Example: notegen check-pack ./our-rules
     """
 

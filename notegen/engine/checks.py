@@ -21,7 +21,7 @@ from notegen.engine.conditions import (
     Reached,
     walk_tests,
 )
-from notegen.engine.pack import FactSpec, PackModel, PackSpec, Problem, SettingSpec, Tree
+from notegen.engine.pack import FactSpec, PackInfo, PackModel, PackSpec, Problem, SettingSpec, Tree
 from notegen.engine.source import Where
 from notegen.engine.wording import parse_template
 
@@ -290,3 +290,20 @@ class _Checker:
 def check_spec(spec: PackSpec) -> list[Problem]:
     """All load-time problems of a validated pack, sorted by file and line."""
     return _Checker(spec).run()
+
+
+def check_conditions(
+    conditions: Iterable[Condition], facts: Iterable[FactSpec], settings: Iterable[SettingSpec] = ()
+) -> list[Problem]:
+    """Problems of conditions written outside a pack's trees, against a fact catalogue and settings.
+
+    The same checks as inside a pack (unknown facts and settings, units, a word not in an enum's
+    list), for a data file that reuses the condition syntax; `reached:` has no tree to name here.
+    """
+    spec = PackSpec(pack=PackInfo(id="conditions", title="conditions"), facts=tuple(facts), settings=tuple(settings))
+    checker = _Checker(spec)
+    for fact in spec.facts:
+        checker._fact(fact)
+    for condition in conditions:
+        checker._condition(condition, set(), set())
+    return sorted(set(checker.problems), key=lambda p: (p[0], p[1] or 0, p[2]))

@@ -22,7 +22,7 @@ from typing import Any
 
 from notegen._format import format_number, format_value, join_words, ph_text, sentence_case, trimmed_number
 from notegen.acidbase.calculations import Calculation
-from notegen.assess.considerations import management_considerations
+from notegen.assess.considerations import consider
 from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
@@ -56,6 +56,9 @@ CALCULATION_LABELS: dict[str, str] = {
     "chloride_deficit": "Chloride deficit",
     "corrected_calcium": "Calcium corrected for albumin",
 }
+# Kept in the JSON only, never in the note: the chloride deficit is an estimate resting on
+# assumptions, and printed as a bare mmol figure it reads like an amount to give.
+JSON_ONLY_CALCULATIONS = frozenset({"chloride_deficit"})
 # Decimals shown for a result; one decimal unless listed.
 _CALCULATION_DIGITS: dict[str, int] = {"egfr": 0, "fe_na": 2, "fe_cl": 2, "chloride_deficit": 0}
 _CLASS_WORDS: dict[str, str] = {
@@ -78,11 +81,9 @@ def complete_assessment(assessment: Assessment, *, rules_dirs: Sequence[Path] = 
 
     `rules_dirs` are a service's rule folders, whose `management.yaml` is laid over the shipped one.
     """
+    management, withheld = consider(assessment, rules_dirs=rules_dirs)
     return assessment.model_copy(
-        update={
-            "paragraph": draft_paragraph(assessment),
-            "management": management_considerations(assessment, rules_dirs=rules_dirs),
-        }
+        update={"paragraph": draft_paragraph(assessment), "management": management, "management_withheld": withheld}
     )
 
 
@@ -211,6 +212,10 @@ def note_context(
         "maintenance": [_labelled(f.model_dump(mode="json")) for f in assessment.maintenance],
         "next_tests": [_labelled(t.model_dump(mode="json")) for t in assessment.next_tests],
         "management": list(assessment.management),
+        "management_withheld": [
+            {"label": sentence_case(item.id.replace("_", " ")), "reasons": list(item.reasons)}
+            for item in assessment.management_withheld
+        ],
         "reading_steps": list(reading.findings),
         "trace": [_trace_row(t.model_dump(mode="json")) for t in assessment.trace],
         "reference": {
@@ -326,6 +331,8 @@ def _context_items(case: Case) -> list[dict[str, str]]:
 def _split_calculations(assessment: Assessment) -> tuple[list[Calculation], list[Calculation]]:
     """Calculations that bear on this reading, and the rest (named in one line, all kept in JSON).
 
+    `JSON_ONLY_CALCULATIONS` appear in neither list.
+
     Expected bicarbonate for a respiratory disorder says nothing when there is none, the delta
     gap and ratio nothing when the gap is normal, the expected total CO2 nothing without a panel.
     """
@@ -338,7 +345,7 @@ def _split_calculations(assessment: Assessment) -> tuple[list[Calculation], list
         irrelevant |= {"delta_gap", "delta_ratio"}
     if assessment.case.chem.tco2 is None:
         irrelevant.add("expected_total_co2")
-    calculations = list(assessment.calculations.values())
+    calculations = [c for c in assessment.calculations.values() if c.name not in JSON_ONLY_CALCULATIONS]
     return (
         [c for c in calculations if c.name not in irrelevant],
         [c for c in calculations if c.name in irrelevant],
