@@ -56,6 +56,12 @@ class Drafter:
 
         return load_alkalosis_pack(self.rules_dirs)
 
+    @cached_property
+    def acidosis_pack(self) -> RulePack:
+        from notegen.workup.acidosis import load_acidosis_pack
+
+        return load_acidosis_pack(self.rules_dirs)
+
     def assess(self, case: Case, *, explain: bool = False) -> Assessment:
         """Run every stage on a validated case and gather the results.
 
@@ -65,6 +71,7 @@ class Drafter:
         """
         if self.rules_dirs:
             self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
+            self.acidosis_pack  # noqa: B018
         calculations = compute_calculations(case, self.settings)
         reading = read_acid_base(case, self.settings)
         rules = None
@@ -72,6 +79,13 @@ class Drafter:
             from notegen.workup.alkalosis import evaluate_alkalosis
 
             rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+        acidosis = None
+        if _acidosis_to_work_up(reading):
+            from notegen.acidbase.calculations import urine_gap_calculations
+            from notegen.workup.acidosis import evaluate_acidosis
+
+            calculations = {**calculations, **urine_gap_calculations(case)}
+            acidosis = evaluate_acidosis(case, reading, self.acidosis_pack, calculations=calculations, explain=explain)
         assessment = Assessment(
             case=case,
             acid_base=reading,
@@ -86,6 +100,7 @@ class Drafter:
             trace=rules.trace if rules is not None else (),
             warnings=collect_warnings(case, reading, calculations),
             trend=build_trend(case),
+            acidosis=acidosis,
         )
         from notegen.note.writer import complete_assessment
 
@@ -115,10 +130,16 @@ def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
     return "metabolic_alkalosis" in reading.disorders or "metabolic_alkalosis" in reading.possible_disorders
 
 
+def _acidosis_to_work_up(reading: AcidBaseReading) -> bool:
+    """Whether the acidosis pack applies: the test `evaluate_acidosis` makes, without importing the engine."""
+    return "metabolic_acidosis" in reading.disorders and reading.metabolic_acidosis_kind is not None
+
+
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
     from notegen.errors import RulePackError
     from notegen.knowledge.settings import load_acid_base_settings
+    from notegen.workup.acidosis import check_acidosis_pack
     from notegen.workup.alkalosis import check_alkalosis_pack
 
     lines: list[str] = []
@@ -129,7 +150,7 @@ def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
         load_acid_base_settings(list(folders))
     except RulePackError as error:
         lines.extend(str(error).splitlines())
-    for filename, line, message in check_alkalosis_pack(folders):
+    for filename, line, message in [*check_alkalosis_pack(folders), *check_acidosis_pack(folders)]:
         lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
     return lines
 

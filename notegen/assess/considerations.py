@@ -21,6 +21,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import CANONICAL_UNITS, Case, Volume
 from notegen.errors import RulePackError
 from notegen.resources import rules_dir, strict_yaml_loader
+from notegen.workup.acidosis_model import ACIDOSIS_CAUSE_IDS
 from notegen.workup.model import ChlorideClass
 
 __all__ = ["Consideration", "load_considerations", "management_considerations"]
@@ -40,7 +41,7 @@ CAUSE_IDS = frozenset(
         "chloride_losing_diarrhea",
         "potassium_magnesium_depletion",
     }
-)
+) | ACIDOSIS_CAUSE_IDS
 FACTOR_IDS = frozenset({"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"})
 ALERT_CODES = frozenset(
     {
@@ -229,7 +230,11 @@ class _Facts:
         return cls(
             alkalosis="metabolic_alkalosis" in reading.disorders,
             chloride_class=assessment.chloride_class,
-            causes=frozenset(c.cause for c in assessment.differential if c.tier in ("likely", "possible")),
+            causes=frozenset(
+                c.cause
+                for c in (*assessment.differential, *(assessment.acidosis.differential if assessment.acidosis else ()))
+                if c.tier in ("likely", "possible")
+            ),
             factors=frozenset(f.factor for f in assessment.maintenance if f.status == "present"),
             alerts=frozenset(
                 text for alert in assessment.alerts for text in (alert.code, f"{alert.code}:{alert.level}")

@@ -27,6 +27,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
 from notegen.errors import TemplateError, UsageError
+from notegen.note.acidosis_paragraph import acidosis_context
 from notegen.note.options import DraftOptions
 from notegen.note.paragraph import draft_paragraph
 from notegen.workup.model import CauseEntry, Evidence
@@ -55,6 +56,8 @@ CALCULATION_LABELS: dict[str, str] = {
     "fe_cl": "Fractional excretion of chloride",
     "chloride_deficit": "Chloride deficit",
     "corrected_calcium": "Calcium corrected for albumin",
+    "urine_anion_gap": "Urine anion gap",
+    "urine_osmolal_gap": "Urine osmolal gap",
 }
 # Decimals shown for a result; one decimal unless listed.
 _CALCULATION_DIGITS: dict[str, int] = {"egfr": 0, "fe_na": 2, "fe_cl": 2, "chloride_deficit": 0}
@@ -211,6 +214,7 @@ def note_context(
         "maintenance": [_labelled(f.model_dump(mode="json")) for f in assessment.maintenance],
         "next_tests": [_labelled(t.model_dump(mode="json")) for t in assessment.next_tests],
         "management": list(assessment.management),
+        "acidosis": acidosis_context(assessment),  # the acidosis work-up, or None
         "reading_steps": list(reading.findings),
         "trace": [_trace_row(t.model_dump(mode="json")) for t in assessment.trace],
         "reference": {
