@@ -196,3 +196,18 @@ def test_an_unplaced_ph_line_is_named_as_a_clinician_writes_it() -> None:
         "line 1: 'pH 7.47' could be blood or urine pH: the paste holds urine values and this line has no "
         "URINE heading or 'urine' in its name"
     ]
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("Chemistry\nBeta-hydroxybutyrate 5.2 mmol/L", {"chem": {"bhb": {"value": 5.2, "unit": "mmol/L"}}}),
+        ("BHB 4.8", {"chem": {"bhb": {"value": 4.8}}}),
+        ("Salicylate level 42 mg/dL", {"chem": {"salicylate": {"value": 42, "unit": "mg/dL"}}}),
+        ("Urine ketones 80 mg/dL", {"urine": {"ketones": {"value": 80, "unit": "mg/dL"}}}),
+        ("UUN 650 mg/dL", {"urine": {"urea_nitrogen": {"value": 650, "unit": "mg/dL"}}}),
+    ],
+    ids=["beta-hydroxybutyrate", "bhb", "salicylate", "urine-ketones", "urine-urea-nitrogen"],
+)
+def test_acidosis_work_up_analytes(text: str, expected: dict[str, object]) -> None:
+    assert parse_paste(text).data == expected

@@ -74,7 +74,7 @@ def evaluate_acidosis(
     if kind is None:
         return None
     pack = pack or default_acidosis_pack()
-    facts: dict[str, Fact] = derive_acidosis_facts(case, reading, calculations)
+    facts: dict[str, Fact] = derive_acidosis_facts(case, reading, calculations, pack)
     for name, value in (extra_facts or {}).items():
         facts[name] = as_fact(value)
     result = walk(pack, facts)

@@ -14,7 +14,7 @@ from notegen._format import join_words
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case, Medication
-from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
+from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
 from notegen.workup.acidosis_model import AcidosisWorkupKind
 
@@ -67,7 +67,11 @@ _CALCULATED = {
     "urine_anion_gap": "mmol/L",
     "urine_osmolal_gap": "mOsm/kg",
 }
-_KINDS: dict[str, AcidosisWorkupKind] = {"high_gap": "high_gap", "normal_gap": "normal_gap", "high_and_normal_gap": "mixed"}
+_KINDS: dict[str, AcidosisWorkupKind] = {
+    "high_gap": "high_gap",
+    "normal_gap": "normal_gap",
+    "high_and_normal_gap": "mixed",
+}
 
 
 def acidosis_kind(reading: AcidBaseReading) -> AcidosisWorkupKind | None:
@@ -87,7 +91,7 @@ def _case_number(case: Case, field: str, unit: str) -> Fact:
         if measurement.field == field:
             qualifier = measurement.qualifier
             break
-    return NumberFact(value, unit or None, qualifier)  # type: ignore[arg-type]
+    return NumberFact(value, unit or None, qualifier)
 
 
 def _of_classes(meds: tuple[Medication, ...], classes: tuple[str, ...]) -> list[Medication]:
@@ -112,10 +116,36 @@ def acidosis_medication_facts(case: Case) -> dict[str, Fact]:
     return facts
 
 
+def _setting(pack: RulePack, setting: str, unit: str) -> float:
+    if setting not in pack.settings:
+        raise NotegenError(f"rule pack `{pack.id}` lacks the setting `{setting}` that the acidosis facts read")
+    value, found = pack.settings[setting]
+    if found != unit:
+        raise NotegenError(f"setting `{setting}` of pack `{pack.id}` must be in {unit}, not {found}")
+    return value
+
+
+def ketonuria_fact(case: Case, pack: RulePack) -> Fact:
+    """Whether measured ketones reach the pack's thresholds; missing when no ketone was measured.
+
+    A derived fact that no test provides, so the urine anion gap's ketonuria caveat never asks for a
+    ketone test by itself.
+    """
+    measured = [
+        (case.urine.ketones, _setting(pack, "urine_ketones_positive_from", "mg/dL")),
+        (case.chem.bhb, _setting(pack, "bhb_high_from", "mmol/L")),
+    ]
+    known = [(value, limit) for value, limit in measured if value is not None]
+    if not known:
+        return MissingFact("no ketones measured")
+    return BooleanFact(any(value >= limit for value, limit in known))
+
+
 def derive_acidosis_facts(
     case: Case,
     reading: AcidBaseReading,
     calculations: Mapping[str, Calculation] | None = None,
+    pack: RulePack | None = None,
 ) -> dict[str, Fact]:
     """Every fact of the acidosis pack's catalogue, present or missing with a reason."""
     calcs = calculations or {}
@@ -140,4 +170,5 @@ def derive_acidosis_facts(
     for finding in ACIDOSIS_FINDINGS:
         facts[finding] = BooleanFact(finding in case.context.findings)
     facts.update(acidosis_medication_facts(case))
+    facts["ketonuria"] = ketonuria_fact(case, pack) if pack is not None else MissingFact("no pack settings")
     return facts
