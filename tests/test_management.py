@@ -176,3 +176,27 @@ def test_broken_files_are_refused_with_file_and_line(tmp_path: Path, text: str, 
         load_considerations([folder])
     (filename, where, what), *_ = caught.value.problems
     assert filename.endswith("management.yaml") and where == line and message in what
+
+
+def test_acidosis_considerations_follow_the_acidosis_work_up() -> None:
+    # A suspected toxic alcohol: an emergency to discuss with poison control or toxicology.
+    assert "poisoning_emergency" in ids(sample("toxic_alcohol_osmolal_gap"))
+    assert "bicarbonate_cautions" in ids(sample("toxic_alcohol_osmolal_gap"))  # severe acidemia, pH 7.16
+    # Salicylate with hypokalemia maintaining an alkalosis: potassium before alkali.
+    triple = ids(sample("salicylate_triple_disorder"))
+    assert {"poisoning_emergency", "potassium_before_alkali"} <= set(triple)
+    assert "bicarbonate_cautions" not in triple
+    # A normal-gap acidosis from the gut raises none of them.
+    assert not {"poisoning_emergency", "potassium_before_alkali", "bicarbonate_cautions"} & set(
+        ids(sample("ileostomy_normal_gap"))
+    )
+
+
+def test_a_consideration_may_name_an_acidosis_cause_and_a_typo_fails_at_load(tmp_path: Path) -> None:
+    text = "considerations:\n  - id: ours\n    when: {cause: [ketoacidosis]}\n    says: x\n    source: x\n"
+    for name, cause in (("good", "ketoacidosis"), ("typo", "ketoacidosiss")):
+        (tmp_path / name).mkdir()
+        (tmp_path / name / "management.yaml").write_text(text.replace("ketoacidosis", cause), encoding="utf-8")
+    assert "ours" in [item.id for item in load_considerations([tmp_path / "good"])]
+    with pytest.raises(RulePackError):
+        load_considerations([tmp_path / "typo"])
