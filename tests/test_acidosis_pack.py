@@ -312,3 +312,16 @@ def test_the_engine_source_names_no_acidosis_cause() -> None:
 
     text = " ".join(p.read_text(encoding="utf-8") for p in Path(notegen.engine.__file__).parent.glob("*.py"))
     assert not [cause for cause in ACIDOSIS_CAUSE_IDS if cause in text]
+
+
+def test_a_service_overlay_changes_a_threshold_in_the_drafted_note(tmp_path: Any) -> None:
+    (tmp_path / "acidosis").mkdir()
+    (tmp_path / "acidosis" / "ours.yaml").write_text(
+        "settings:\n  - {id: lactate_high_from, value: 9, unit: mmol/L, source: our laboratory}\n", encoding="utf-8"
+    )
+    data = case_with(HIGH_GAP, chem={"lactate": 8.0})
+    shipped = DRAFTER.assess(read_case_data(data)).acidosis
+    ours = Drafter(rules_dirs=(tmp_path,)).assess(read_case_data(data)).acidosis
+    assert shipped is not None and ours is not None
+    assert {e.id for e in cause_of(shipped, "lactic_acidosis").supporting} == {"lactate_high"}
+    assert {e.id for e in cause_of(ours, "lactic_acidosis").supporting} == {"lactate_raised"}
