@@ -211,3 +211,17 @@ def test_an_unplaced_ph_line_is_named_as_a_clinician_writes_it() -> None:
 )
 def test_acidosis_work_up_analytes(text: str, expected: dict[str, object]) -> None:
     assert parse_paste(text).data == expected
+
+
+@pytest.mark.parametrize("text", ["BMP\nKetones 3.2", "ABG\nUNa 12"])
+def test_a_urine_only_name_under_a_blood_heading_is_refused_not_a_crash(text: str) -> None:
+    # Before the fix, the heading left no section for the line and the reader stopped with a
+    # StopIteration (exit 1, "anything unforeseen"). Serum ketones are not urine ketones: never guessed.
+    with pytest.raises(PasteError, match="give it a URINE heading or 'urine' in its name"):
+        parse_paste(text)
+
+
+def test_a_urine_only_name_under_a_blood_heading_beside_usable_values_is_listed_as_not_used() -> None:
+    parsed = parse_paste("BMP\nNa 138\nKetones 3.2")
+    assert parsed.data == {"chem": {"na": {"value": 138}}}
+    assert any("Ketones 3.2" in line and "URINE heading" in line for line in parsed.unused)

@@ -380,6 +380,9 @@ class _PasteReader:
                 return f"sits under a urine heading, but urine {label} is not a field notegen uses"
             else:
                 candidates.discard("urine")
+                if not candidates:
+                    return (f"sits under a {heading.section} heading, but {label} is read as a urine value here: "
+                            "give it a URINE heading or 'urine' in its name")
         if len(candidates) > 1:
             if evidence is None:
                 return None
