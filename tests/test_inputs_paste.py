@@ -225,3 +225,10 @@ def test_a_urine_only_name_under_a_blood_heading_beside_usable_values_is_listed_
     parsed = parse_paste("BMP\nNa 138\nKetones 3.2")
     assert parsed.data == {"chem": {"na": {"value": 138}}}
     assert any("Ketones 3.2" in line and "URINE heading" in line for line in parsed.unused)
+
+
+def test_ketones_without_a_urine_heading_or_word_are_not_guessed() -> None:
+    # "Ketones 3.2 mmol/L" may be a serum result; read as urine it would become 33 mg/dL of acetoacetate.
+    with pytest.raises(PasteError, match="could be blood or urine ketones"):
+        parse_paste("Ketones 3.2 mmol/L")
+    assert parse_paste("URINE\nKetones 40 mg/dL").data == {"urine": {"ketones": {"value": 40, "unit": "mg/dL"}}}

@@ -365,6 +365,8 @@ class _PasteReader:
         marker = lab_line.marker
         heading = lab_line.block.heading
         label = _ANALYTE_WORDS.get(lab_line.analyte, lab_line.analyte.replace("_", " "))
+        if analyte.needs_origin and marker is None and heading is None:
+            return f"could be blood or urine {label}: give it a URINE heading or 'urine' in its name"
         if marker == "urine":
             candidates &= {"urine"}
             if not candidates:
