@@ -12,6 +12,7 @@ from typing import Any
 
 from notegen._format import join_words, sentence_case
 from notegen.assess.model import Assessment
+from notegen.workup.acidosis_model import AcidosisTest
 from notegen.workup.model import CauseEntry, Evidence, SuggestedTest
 
 __all__ = ["acidosis_context", "acidosis_sentences", "acidosis_test_labels"]
@@ -120,6 +121,17 @@ def _evidence_rows(evidence: Sequence[Evidence]) -> list[dict[str, str]]:
     return [{"text": e.text, "strength": e.strength, "source": e.source} for e in ranked]
 
 
+def _short_reason(test: AcidosisTest) -> str:
+    """The note's shorter reason: the purpose, then what the result would settle and bear on (the JSON keeps `why`)."""
+    parts = []
+    if test.settles:
+        parts.append(f"settle the {join_words(test.settles)}")
+    if test.bears_on:
+        parts.append(f"bear on {join_words([_inline(label) for label in test.bears_on])}")
+    decides = f"It would {' and '.join(parts)}." if parts else ""
+    return " ".join(text for text in (test.purpose, decides) if text) or test.why
+
+
 def acidosis_context(assessment: Assessment) -> dict[str, Any] | None:
     """What `templates/parts/acidosis.md.j2` reads, as plain data; None when the work-up did not run."""
     workup = assessment.acidosis
@@ -142,6 +154,7 @@ def acidosis_context(assessment: Assessment) -> dict[str, Any] | None:
             for cause in workup.differential
         ],
         "next_tests": [
-            {"test": t.test, "label": sentence_case(t.label), "why": t.why} for t in workup.next_tests
+            {"test": t.test, "label": sentence_case(t.label), "why": t.why, "reason": _short_reason(t)}
+            for t in workup.next_tests
         ],
     }

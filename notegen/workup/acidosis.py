@@ -21,11 +21,12 @@ from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
 from notegen.engine import Fact, FactInput, Problem, RulePack, check_pack, load_pack, walk
 from notegen.engine.facts import as_fact
+from notegen.engine.results import Suggestion
 from notegen.resources import rules_dir
 from notegen.workup.acidosis_facts import acidosis_kind, derive_acidosis_facts
-from notegen.workup.acidosis_model import AcidosisWorkup
+from notegen.workup.acidosis_model import AcidosisTest, AcidosisWorkup
 from notegen.workup.alkalosis import _evidence, _undecided
-from notegen.workup.model import CauseEntry, SuggestedTest, TraceEntry
+from notegen.workup.model import CauseEntry, TraceEntry
 
 ACIDOSIS_FOLDER = "acidosis"
 KIND_TREE = "gap_pattern"  # the tree whose leaf names the causes in view
@@ -54,6 +55,18 @@ def default_acidosis_pack() -> RulePack:
 def check_acidosis_pack(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
     """Every problem of the layered pack as (file, line, message); empty when it loads cleanly."""
     return check_pack(acidosis_pack_dirs(rules_dirs))
+
+
+def _test(pack: RulePack, suggestion: Suggestion) -> AcidosisTest:
+    purposes = {test.id: test.purpose for test in pack.spec.tests}
+    return AcidosisTest(
+        test=suggestion.test,
+        label=suggestion.label,
+        why=suggestion.why,
+        purpose=purposes.get(suggestion.test, ""),
+        settles=tuple(d.label for d in suggestion.decides if d.kind == "tree"),
+        bears_on=tuple(d.label for d in suggestion.decides if d.kind == "cause"),
+    )
 
 
 def evaluate_acidosis(
@@ -98,7 +111,7 @@ def evaluate_acidosis(
     return AcidosisWorkup(
         kind=kind,
         differential=differential,
-        next_tests=tuple(SuggestedTest(test=s.test, label=s.label, why=s.why) for s in result.suggestions),
+        next_tests=tuple(_test(pack, s) for s in result.suggestions),
         ammonium=ammonium.outcome if ammonium is not None else None,
         notes=ammonium.notes if ammonium is not None else (),
         trace=tuple(TraceEntry(**step.as_dict()) for step in result.trace()) if explain else (),

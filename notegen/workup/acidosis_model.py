@@ -34,12 +34,20 @@ ACIDOSIS_CAUSE_IDS = frozenset(
 )
 
 
+class AcidosisTest(SuggestedTest):
+    """A suggested test, with what its result would decide as typed data for the note to word."""
+
+    purpose: str = ""  # the pack's note on how to send it
+    settles: tuple[str, ...] = ()  # pack trees whose outcome it could change, e.g. "urine ammonium excretion"
+    bears_on: tuple[str, ...] = ()  # labels of the causes whose tier it could change
+
+
 class AcidosisWorkup(FrozenModel):
     """The acidosis pack's conclusions for one case: the top-level `acidosis` object of the JSON."""
 
     kind: AcidosisWorkupKind
     differential: tuple[CauseEntry, ...] = ()
-    next_tests: tuple[SuggestedTest, ...] = ()
+    next_tests: tuple[AcidosisTest, ...] = ()
     ammonium: str | None = None  # the urine ammonium reading: adequate, low, unreadable, unknown, not_asked
     notes: tuple[str, ...] = ()  # what the pack's trees said, e.g. why the urine anion gap cannot be read
     trace: tuple[TraceEntry, ...] = ()
