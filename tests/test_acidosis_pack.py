@@ -325,3 +325,15 @@ def test_a_service_overlay_changes_a_threshold_in_the_drafted_note(tmp_path: Any
     assert shipped is not None and ours is not None
     assert {e.id for e in cause_of(shipped, "lactic_acidosis").supporting} == {"lactate_high"}
     assert {e.id for e in cause_of(ours, "lactic_acidosis").supporting} == {"lactate_raised"}
+
+
+def test_the_sample_service_overlay_reads_a_lower_urine_osmolal_gap_as_adequate() -> None:
+    from pathlib import Path
+
+    service = Path(__file__).resolve().parent.parent / "samples" / "service"
+    # Urine osmolal gap 500 - (2 x (50 + 30) + 616/2.8) = 120 mOsm/kg: below the shipped 150, above the service's 100.
+    data = case_with(NORMAL_GAP, urine={**URINE_POSITIVE_GAP, "osm": 500, "urea_nitrogen": 616})
+    shipped = DRAFTER.assess(read_case_data(data)).acidosis
+    ours = Drafter(rules_dirs=(service,)).assess(read_case_data(data)).acidosis
+    assert shipped is not None and ours is not None
+    assert (shipped.ammonium, ours.ammonium) == ("low", "adequate")
