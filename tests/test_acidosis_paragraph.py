@@ -8,8 +8,15 @@ from __future__ import annotations
 import json
 from functools import cache
 from pathlib import Path
+from typing import Any
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from test_no_invented_numbers import allowed_numbers, invented_numbers
+from test_prose import assert_well_formed
 
 from notegen.assess.model import Assessment
+from notegen.case.validation import validate_case
 from notegen.intake.read import read_case
 from notegen.note.acidosis_paragraph import acidosis_sentences
 from notegen.note.paragraph import draft_paragraph
@@ -93,3 +100,75 @@ def test_the_output_schema_describes_the_acidosis_object() -> None:
     assert "acidosis" in schema["properties"]
     workup = schema["$defs"]["AcidosisWorkup"]
     assert workup["properties"]["kind"]["enum"] == ["high_gap", "normal_gap", "mixed"]
+
+
+@settings(max_examples=60, deadline=None, derandomize=True)
+@given(
+    normal_gap=st.booleans(),
+    chem=st.fixed_dictionaries(
+        {},
+        optional={
+            "bhb": st.sampled_from([0.2, 1.1, 3.0, 7.5]),
+            "lactate": st.sampled_from([0.9, 2.0, 3.9, 11.2]),
+            "osm": st.sampled_from([285, 300, 345]),
+            "salicylate": st.sampled_from([2, 12, 30, 71]),
+            "k": st.sampled_from([2.8, 3.6, 5.0, 6.3]),
+            "phos": st.sampled_from([1.4, 3.5]),
+            "creatinine": st.sampled_from([0.8, 2.5, 7.0]),
+        },
+    ),
+    urine=st.fixed_dictionaries(
+        {},
+        optional={
+            "na": st.sampled_from([8, 45]),
+            "k": st.sampled_from([20, 40]),
+            "cl": st.sampled_from([40, 110]),
+            "ph": st.sampled_from([5.0, 6.6]),
+            "ketones": st.sampled_from([0, 80]),
+        },
+    ),
+    findings=st.lists(
+        st.sampled_from(
+            ["diabetes", "sepsis", "diarrhea", "ileostomy", "saline resuscitation", "short bowel", "overdose"]
+        ),
+        max_size=3,
+        unique=True,
+    ),
+    meds=st.lists(
+        st.sampled_from(["aspirin", "acetazolamide", "metformin", "paracetamol", "lisinopril"]), max_size=2, unique=True
+    ),
+)
+def test_any_acidosis_work_up_reads_as_sentences_and_invents_no_number(
+    normal_gap: bool,
+    chem: dict[str, float],
+    urine: dict[str, float],
+    findings: list[str],
+    meds: list[str],
+) -> None:
+    base = (
+        {"sample": "arterial", "ph": 7.28, "pco2": 28, "hco3": 13}
+        if normal_gap
+        else {"sample": "arterial", "ph": 7.20, "pco2": 20, "hco3": 8}
+    )
+    data: dict[str, Any] = {
+        "patient": {"age": 50, "sex": "female"},
+        "gas": base,
+        "chem": {
+            "na": 138,
+            "cl": 115 if normal_gap else 100,
+            "albumin": 4.0,
+            "bun": 20,
+            "glucose": 110,
+            "k": 4.2,
+            **chem,
+        },
+        "context": {"findings": findings, "meds": meds},
+    }
+    if urine:
+        data["urine"] = urine
+    case = validate_case(data)
+    assessment = DRAFTER.assess(case)
+    assert assessment.acidosis is not None
+    assert_well_formed(assessment.paragraph)
+    note = DRAFTER.draft(case)
+    assert invented_numbers(note, allowed_numbers(assessment)) == []
