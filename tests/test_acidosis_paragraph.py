@@ -172,3 +172,12 @@ def test_any_acidosis_work_up_reads_as_sentences_and_invents_no_number(
     assert_well_formed(assessment.paragraph)
     note = DRAFTER.draft(case)
     assert invented_numbers(note, allowed_numbers(assessment)) == []
+
+
+def test_explain_shows_the_walk_of_the_acidosis_pack() -> None:
+    note = DRAFTER.draft(read_case(str(SAMPLES / "ileostomy_normal_gap.yaml")), DraftOptions(explain=True))
+    assert "The alkalosis pack was not walked for this case." in note
+    assert "**Rule walk of the acidosis pack:**" in note
+    assert "| node urine\\_gap\\_sign | urine anion gap below 0 mmol/L" in note
+    plain = DRAFTER.draft(read_case(str(SAMPLES / "ileostomy_normal_gap.yaml")))
+    assert "Rule walk of the acidosis pack" not in plain

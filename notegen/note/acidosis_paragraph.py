@@ -157,4 +157,17 @@ def acidosis_context(assessment: Assessment) -> dict[str, Any] | None:
             {"test": t.test, "label": sentence_case(t.label), "why": t.why, "reason": _short_reason(t)}
             for t in workup.next_tests
         ],
+        # The walk, step by step, when the draft was asked to explain itself (empty otherwise).
+        "trace": [
+            {
+                "kind": step.kind,
+                "id": step.id,
+                "condition": step.condition,
+                "seen": "; ".join(f"{name} = {value}" for name, value in step.values.items()) or "none",
+                "outcome": step.outcome,
+                "goes_to": step.goes_to or "",
+                "source": step.source,
+            }
+            for step in workup.trace
+        ],
     }
