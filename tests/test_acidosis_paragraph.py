@@ -181,3 +181,16 @@ def test_explain_shows_the_walk_of_the_acidosis_pack() -> None:
     assert "| node urine\\_gap\\_sign | urine anion gap below 0 mmol/L" in note
     plain = DRAFTER.draft(read_case(str(SAMPLES / "ileostomy_normal_gap.yaml")))
     assert "Rule walk of the acidosis pack" not in plain
+
+
+def test_two_likely_causes_are_named_together_in_words() -> None:
+    # Beta-hydroxybutyrate 5.5 with diabetes, and lactate 9.0 with septic shock: both lead.
+    data: dict[str, Any] = {
+        "patient": {"age": 50, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.20, "pco2": 20, "hco3": 8},
+        "chem": {"na": 138, "cl": 100, "k": 4.4, "albumin": 4.0, "glucose": 480, "bhb": 5.5, "lactate": 9.0},
+        "context": {"findings": ["diabetes", "septic shock"]},
+    }
+    sentences = acidosis_sentences(DRAFTER.assess(validate_case(data)))
+    assert sentences[0].startswith("For the high anion gap acidosis two causes are likely together: ketoacidosis (")
+    assert "; and lactic acidosis (lactate 9.0 mmol/L is at or above 4 mmol/L" in sentences[0]

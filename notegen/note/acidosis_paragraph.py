@@ -23,6 +23,7 @@ KIND_WORDS = {
     "mixed": "the acidosis, with its high-gap and normal-gap parts,",
 }
 _STRENGTH_ORDER = {"strong": 0, "moderate": 1, "weak": 2}
+_COUNT_WORDS = {2: "two", 3: "three", 4: "four", 5: "five", 6: "six", 7: "seven"}
 FINDINGS_PER_CAUSE = 2
 POSSIBLE_NAMED = 3
 _KEEP_CAPITAL = ("D-", "eGFR", "BUN")
@@ -66,7 +67,8 @@ def _causes(subject: str, differential: Sequence[CauseEntry]) -> list[str]:
         sentences.append(f"For {subject} the likely cause is {_with_findings(likely[0])}.")
     elif likely:
         items = [_with_findings(cause) for cause in likely]
-        sentences.append(f"For {subject} {len(likely)} causes are likely together: {'; and '.join(items)}.")
+        count = _COUNT_WORDS.get(len(likely), "several")
+        sentences.append(f"For {subject} {count} causes are likely together: {'; and '.join(items)}.")
     if likely and possible:
         verb = "is" if len(possible) == 1 else "are"
         sentences.append(f"{sentence_case(join_words(named))} {verb} also possible.")
