@@ -59,6 +59,10 @@ class Drafter:
     def alkalosis_pack(self) -> RulePack:
         return self.knowledge.alkalosis_pack
 
+    @property
+    def acidosis_pack(self) -> RulePack:
+        return self.knowledge.acidosis_pack
+
     def assess(self, case: Case, *, explain: bool = False) -> Assessment:
         """Run every stage on a validated case and gather the results.
 
@@ -68,6 +72,7 @@ class Drafter:
         """
         if self.rules_dirs:
             self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
+            self.acidosis_pack  # noqa: B018
         calculations = compute_calculations(case, self.settings)
         reading = read_acid_base(case, self.settings)
         rules = None
@@ -75,6 +80,13 @@ class Drafter:
             from notegen.workup.alkalosis import evaluate_alkalosis
 
             rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+        acidosis = None
+        if _acidosis_to_work_up(reading):
+            from notegen.acidbase.calculations import urine_gap_calculations
+            from notegen.workup.acidosis import evaluate_acidosis
+
+            calculations = {**calculations, **urine_gap_calculations(case)}
+            acidosis = evaluate_acidosis(case, reading, self.acidosis_pack, calculations=calculations, explain=explain)
         assessment = Assessment(
             case=case,
             acid_base=reading,
@@ -89,6 +101,7 @@ class Drafter:
             trace=rules.trace if rules is not None else (),
             warnings=collect_warnings(case, reading, calculations),
             trend=build_trend(case),
+            acidosis=acidosis,
         )
         from notegen.note.writer import complete_assessment
 
@@ -116,6 +129,11 @@ class Drafter:
 def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
     """Whether the alkalosis pack applies: the same test `evaluate_alkalosis` makes, without importing the engine."""
     return "metabolic_alkalosis" in reading.disorders or "metabolic_alkalosis" in reading.possible_disorders
+
+
+def _acidosis_to_work_up(reading: AcidBaseReading) -> bool:
+    """Whether the acidosis pack applies: the test `evaluate_acidosis` makes, without importing the engine."""
+    return "metabolic_acidosis" in reading.disorders and reading.metabolic_acidosis_kind is not None
 
 
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:

@@ -291,3 +291,45 @@ def test_missing_egfr_says_which_of_age_and_sex_is_lacking() -> None:
     assert missing_calculations(Case(chem=Chem(creatinine=1.4)))["egfr"] == (
         "not calculated: serum creatinine is given, but the patient's age and sex are not"
     )
+
+
+# --- Urine gaps, for the metabolic-acidosis work-up ------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("na", "k", "cl", "gap"),
+    [
+        # Batlle et al., NEJM 1988;318:594: Na + K - Cl. The group means quoted here are from memory:
+        # negative in diarrhea (about -20 mmol/L), positive in distal RTA (about +23 mmol/L).
+        (40, 30, 90, -20),
+        (50, 33, 60, 23),
+        (40, 30, 100, -30),
+    ],
+)
+def test_urine_anion_gap_is_sodium_plus_potassium_minus_chloride(na: float, k: float, cl: float, gap: float) -> None:
+    from notegen.acidbase.formulas import urine_anion_gap
+
+    assert urine_anion_gap(na, k, cl) == pytest.approx(gap)
+
+
+def test_urine_osmolal_gap_and_the_ammonium_it_implies() -> None:
+    from notegen.acidbase.formulas import urine_calculated_osmolality, urine_osmolal_gap
+
+    # From memory (review literature, e.g. Kraut & Madias, Nat Rev Nephrol 2010;6:274): calculated
+    # urine osmolality 2 x (Na + K) + urea; urea nitrogen 560 mg/dL is 200 mmol/L of urea (/2.8).
+    assert urine_calculated_osmolality(50, 40, 560) == pytest.approx(380)
+    assert urine_osmolal_gap(500, 50, 40, 560) == pytest.approx(120)  # about 60 mmol/L of ammonium
+    # Glucose in mg/dL counts /18, as in the serum formula (Hoffman et al., 1993).
+    assert urine_osmolal_gap(500, 50, 40, 560, urine_glucose=180) == pytest.approx(110)
+
+
+def test_urine_gaps_are_computed_only_on_request_and_only_with_their_inputs() -> None:
+    from notegen.acidbase.calculations import urine_gap_calculations
+
+    case = Case(urine=Urine(na=40, k=30, cl=100, osm=500, urea_nitrogen=560))
+    assert "urine_anion_gap" not in compute_calculations(case)  # alkalosis notes are unchanged
+    found = urine_gap_calculations(case)
+    assert found["urine_anion_gap"].value == -30
+    assert found["urine_anion_gap"].source == "Batlle et al., NEJM 1988;318:594"
+    assert found["urine_osmolal_gap"].value == pytest.approx(500 - (140 + 200))
+    assert urine_gap_calculations(Case(urine=Urine(na=40, cl=100))) == {}

@@ -96,3 +96,44 @@ def test_the_example_service_folder_is_consistent_and_takes_effect() -> None:
     assert result.exit_code == 0, result.output
     assert result.stdout.startswith("# Nephrology consult: acid-base\n")
     assert "Urine chloride 14 mmol/L, below 25 mmol/L, makes the alkalosis chloride-responsive." in result.stdout
+
+
+ACIDOSIS_OVERLAY = """\
+settings:
+  - id: lactate_high_from
+    value: 5
+    unit: mmol/L
+    source: our laboratory
+causes:
+  - id: ketoacidosis
+    evidence:
+      for:
+        - id: our_ketone_meter
+          when: {fact: bhb_meter, at_least: 1.5}
+          strength: weak
+          says: "Our meter reads {bhb_meter}."
+          source: common practice
+"""
+
+
+def test_a_broken_acidosis_overlay_is_named_with_file_and_line(tmp_path: Path) -> None:
+    (tmp_path / "acidosis").mkdir()
+    (tmp_path / "acidosis" / "ours.yaml").write_text(ACIDOSIS_OVERLAY, encoding="utf-8")
+    result = runner.invoke(app, ["check-pack", str(tmp_path)])
+    assert result.exit_code == 2
+    lines = result.stderr.splitlines()
+    assert f"{tmp_path / 'acidosis' / 'ours.yaml'}:11: unknown fact `bhb_meter`" in lines
+    assert lines[-1].endswith("problem(s) found")
+
+
+def test_a_sound_acidosis_overlay_passes_and_changes_the_threshold(tmp_path: Path) -> None:
+    (tmp_path / "acidosis").mkdir()
+    sound = ACIDOSIS_OVERLAY.replace(
+        "fact: bhb_meter, at_least: 1.5", "fact: bhb, at_least: 1.5, unit: mmol/L"
+    ).replace("{bhb_meter}", "{bhb}")
+    (tmp_path / "acidosis" / "ours.yaml").write_text(sound, encoding="utf-8")
+    result = runner.invoke(app, ["check-pack", str(tmp_path)])
+    assert result.exit_code == 0, result.output
+    from notegen.workup.acidosis import load_acidosis_pack
+
+    assert load_acidosis_pack([tmp_path]).settings["lactate_high_from"] == (5.0, "mmol/L")

@@ -211,3 +211,25 @@ def test_every_lab_field_has_a_code() -> None:
         for name in model.model_fields:
             if name not in ("sample", "taken_at"):
                 assert f"{section}.{name}" in fields, f"{section}.{name}"
+
+
+@pytest.mark.parametrize(
+    ("code", "value", "unit", "section", "field"),
+    [
+        ("53060-9", 4.2, "mmol/L", "chem", "bhb"),
+        ("4024-6", 35, "mg/dL", "chem", "salicylate"),
+        ("5797-6", 80, "mg/dL", "urine", "ketones"),
+        ("3095-7", 700, "mg/dL", "urine", "urea_nitrogen"),
+    ],
+)
+def test_acidosis_work_up_codes(code: str, value: float, unit: str, section: str, field: str) -> None:
+    parsed = read_fhir(observation(code, value, unit), source="obs.json")
+    assert parsed.data[section][field] == {"value": value, "unit": unit}
+
+
+def test_the_table_cites_the_loinc_standard_not_a_commercial_site() -> None:
+    from notegen.resources import rules_dir
+
+    text = (rules_dir() / "vocabulary" / "loinc.yaml").read_text(encoding="utf-8")
+    assert "loinc.org" in text and "Regenstrief" in text
+    assert "healthassure" not in text

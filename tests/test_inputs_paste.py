@@ -196,3 +196,39 @@ def test_an_unplaced_ph_line_is_named_as_a_clinician_writes_it() -> None:
         "line 1: 'pH 7.47' could be blood or urine pH: the paste holds urine values and this line has no "
         "URINE heading or 'urine' in its name"
     ]
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("Chemistry\nBeta-hydroxybutyrate 5.2 mmol/L", {"chem": {"bhb": {"value": 5.2, "unit": "mmol/L"}}}),
+        ("BHB 4.8", {"chem": {"bhb": {"value": 4.8}}}),
+        ("Salicylate level 42 mg/dL", {"chem": {"salicylate": {"value": 42, "unit": "mg/dL"}}}),
+        ("Urine ketones 80 mg/dL", {"urine": {"ketones": {"value": 80, "unit": "mg/dL"}}}),
+        ("UUN 650 mg/dL", {"urine": {"urea_nitrogen": {"value": 650, "unit": "mg/dL"}}}),
+    ],
+    ids=["beta-hydroxybutyrate", "bhb", "salicylate", "urine-ketones", "urine-urea-nitrogen"],
+)
+def test_acidosis_work_up_analytes(text: str, expected: dict[str, object]) -> None:
+    assert parse_paste(text).data == expected
+
+
+@pytest.mark.parametrize("text", ["BMP\nKetones 3.2", "ABG\nUNa 12"])
+def test_a_urine_only_name_under_a_blood_heading_is_refused_not_a_crash(text: str) -> None:
+    # Before the fix, the heading left no section for the line and the reader stopped with a
+    # StopIteration (exit 1, "anything unforeseen"). Serum ketones are not urine ketones: never guessed.
+    with pytest.raises(PasteError, match="give it a URINE heading or 'urine' in its name"):
+        parse_paste(text)
+
+
+def test_a_urine_only_name_under_a_blood_heading_beside_usable_values_is_listed_as_not_used() -> None:
+    parsed = parse_paste("BMP\nNa 138\nKetones 3.2")
+    assert parsed.data == {"chem": {"na": {"value": 138}}}
+    assert any("Ketones 3.2" in line and "URINE heading" in line for line in parsed.unused)
+
+
+def test_ketones_without_a_urine_heading_or_word_are_not_guessed() -> None:
+    # "Ketones 3.2 mmol/L" may be a serum result; read as urine it would become 33 mg/dL of acetoacetate.
+    with pytest.raises(PasteError, match="could be blood or urine ketones"):
+        parse_paste("Ketones 3.2 mmol/L")
+    assert parse_paste("URINE\nKetones 40 mg/dL").data == {"urine": {"ketones": {"value": 40, "unit": "mg/dL"}}}

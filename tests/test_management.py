@@ -22,7 +22,15 @@ from notegen.assess.considerations import (
     weigh_considerations,
 )
 from notegen.assess.model import Assessment
+from notegen.intake.read import read_case
 from notegen.pipeline import Drafter
+
+SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+
+
+def sample(name: str) -> Callable[[], Assessment]:
+    """An invented sample's assessment, for the considerations the acidosis work-up brings."""
+    return lambda: Drafter().assess(read_case(str(SAMPLES / f"{name}.yaml")))
 
 
 def chosen(assessment: Assessment) -> dict[str, str]:
@@ -57,6 +65,13 @@ MINERALOCORTICOID = {"differential": (cause("mineralocorticoid_excess"),)}
 RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
 
 EXAMPLES = [
+    # The acidosis work-up (rules/acidosis): an emergency to discuss, and the bicarbonate cautions.
+    printed("poisoning_emergency", sample("toxic_alcohol_osmolal_gap"), "poison control or toxicology"),
+    printed("poisoning_emergency", sample("salicylate_triple_disorder"), "emergency"),
+    kept_out("poisoning_emergency", sample("ileostomy_normal_gap")),
+    printed("bicarbonate_cautions", sample("toxic_alcohol_osmolal_gap"), "weighed decision"),
+    kept_out("bicarbonate_cautions", sample("ileostomy_normal_gap")),
+    kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
     printed("generation_and_maintenance", lambda: assess(BASE), "generates the alkalosis"),
     kept_out(
         "generation_and_maintenance", lambda: assess(case(gas={"ph": 7.40, "pco2": 40, "hco3": 24}, chem={"cl": 104}))
@@ -427,3 +442,18 @@ def test_the_shipped_samples_print_no_order() -> None:
             # Lab values fill some sentences ("calcium 11.2 mg/dL"), so only orders are checked here;
             # the dose check runs on the file's sentences before their values are filled.
             assert not ORDERS.match(text), (path.name, text)
+
+
+def test_a_consideration_may_name_an_acidosis_cause_and_a_typo_fails_at_load(tmp_path: Path) -> None:
+    from notegen.errors import RulePackError
+
+    text = (
+        "considerations:\n  - id: ours\n    when: {fact: cause_ketoacidosis, is: true}\n"
+        "    says: x\n    source: invented\n"
+    )
+    for name, cause_id in (("good", "ketoacidosis"), ("typo", "ketoacidosiss")):
+        (tmp_path / name).mkdir()
+        (tmp_path / name / "management.yaml").write_text(text.replace("ketoacidosis", cause_id), encoding="utf-8")
+    assert "ours" in [item.id for item in load_considerations([tmp_path / "good"]).specs]
+    with pytest.raises(RulePackError):
+        load_considerations([tmp_path / "typo"])

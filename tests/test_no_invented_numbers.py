@@ -86,14 +86,14 @@ def _fixed_numbers(drafter: Drafter) -> set[float]:
     for _, setting in drafter.settings:
         allowed.add(float(setting.value))
         allowed |= {*_numbers(setting.source), *_numbers(setting.unit)}
-    pack = drafter.alkalosis_pack
-    for value, unit in pack.settings.values():
-        allowed |= {float(value), *_numbers(unit or "")}
-    for folder in pack.dirs:
-        for path in sorted(Path(folder).glob("*.yaml")):
-            for where, text in _leaves(yaml.safe_load(path.read_text(encoding="utf-8"))):
-                if where.endswith(".source") and isinstance(text, str):
-                    allowed |= set(_numbers(text))
+    for pack in (drafter.alkalosis_pack, drafter.acidosis_pack):
+        for value, unit in pack.settings.values():
+            allowed |= {float(value), *_numbers(unit or "")}
+        for folder in pack.dirs:
+            for path in sorted(Path(folder).glob("*.yaml")):
+                for where, text in _leaves(yaml.safe_load(path.read_text(encoding="utf-8"))):
+                    if where.endswith(".source") and isinstance(text, str):
+                        allowed |= set(_numbers(text))
     return allowed
 
 

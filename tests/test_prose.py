@@ -66,6 +66,7 @@ NO_WORK_UP: dict[str, Any] = {
     "maintenance": (),
     "next_tests": (),
     "trace": (),
+    "acidosis": None,  # the acidosis work-up (rules/acidosis) is tested in test_acidosis_paragraph.py
 }
 
 

@@ -33,6 +33,11 @@ MOLAR = [
     ("chem.phos", "mmol/L", 30.974, 3.097),
     ("urine.creatinine", "µmol/L", 113.12, 1 / 88.4),
     ("urine.calcium", "mmol/L", 40.078, 4.008),
+    # Salicylic acid C7H6O3 (IUPAC atomic weights); 1 mmol/L is about 13.8 mg/dL (from memory).
+    ("chem.salicylate", "mmol/L", 138.12, 13.81),
+    # Acetoacetic acid C4H6O3, the ketone a urine strip reads.
+    ("urine.ketones", "mmol/L", 102.09, 10.21),
+    ("urine.urea_nitrogen", "mmol/L", 2 * 14.007, 2.801),
 ]
 
 
@@ -63,6 +68,11 @@ def test_lactate_and_ionized_calcium_inverse_factors_match_pint() -> None:
     assert u.to_canonical("chem.lactate", lactate, "mg/dL") == pytest.approx(1.0)
     calcium = _mmol_per_l_to_mg_per_dl(40.078)
     assert u.to_canonical("chem.ionized_ca", calcium, "mg/dL") == pytest.approx(1.0)
+
+
+def test_beta_hydroxybutyrate_mass_to_moles_matches_pint() -> None:
+    # C4H8O3, 104.10 g/mol: 10.41 mg/dL is 1 mmol/L.
+    assert u.to_canonical("chem.bhb", _mmol_per_l_to_mg_per_dl(104.10), "mg/dL") == pytest.approx(1.0)
 
 
 def test_divalent_mEq_is_half_a_millimole() -> None:

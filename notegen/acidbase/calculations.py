@@ -32,6 +32,8 @@ from notegen.acidbase.formulas import (
     fractional_excretion,
     henderson_hasselbalch_ph,
     osmolal_gap,
+    urine_anion_gap,
+    urine_osmolal_gap,
     urine_potassium_creatinine_ratio,
 )
 from notegen.case.model import Case
@@ -364,6 +366,50 @@ def compute_calculations(case: Case, settings: AcidBaseSettings | None = None) -
     _gas_calculations(case, s, out)
     _gap_calculations(case, s, out)
     _kidney_calculations(case, s, out)
+    return out
+
+
+def urine_gap_calculations(case: Case) -> dict[str, Calculation]:
+    """The urine anion and osmolal gaps, for the metabolic-acidosis work-up only.
+
+    Kept out of `compute_calculations` so that a note without a metabolic acidosis is unchanged;
+    the pipeline adds them when the acidosis work-up runs.
+    """
+    urine = case.urine
+    out: dict[str, Calculation] = {}
+    if usable(urine.na) and usable(urine.k) and usable(urine.cl):
+        assert urine.na is not None and urine.k is not None and urine.cl is not None
+        out["urine_anion_gap"] = _calc(
+            "urine_anion_gap",
+            urine_anion_gap(urine.na, urine.k, urine.cl),
+            "mmol/L",
+            "urine Na + urine K - urine Cl",
+            {
+                "urine Na": format_value(urine.na, "mmol/L"),
+                "urine K": format_value(urine.k, "mmol/L"),
+                "urine Cl": format_value(urine.cl, "mmol/L"),
+            },
+            "Batlle et al., NEJM 1988;318:594",
+            note="negative when ammonium is excreted; unreliable with ketonuria, other unmeasured anions "
+            "or urine sodium below about 20 mmol/L",
+        )
+    if usable(urine.osm) and usable(urine.na) and usable(urine.k) and usable(urine.urea_nitrogen):
+        assert urine.osm is not None and urine.na is not None and urine.k is not None
+        assert urine.urea_nitrogen is not None
+        out["urine_osmolal_gap"] = _calc(
+            "urine_osmolal_gap",
+            urine_osmolal_gap(urine.osm, urine.na, urine.k, urine.urea_nitrogen),
+            "mOsm/kg",
+            "measured urine osmolality - (2 x (urine Na + urine K) + urine urea nitrogen/2.8)",
+            {
+                "urine osmolality": format_value(urine.osm, "mOsm/kg"),
+                "urine Na": format_value(urine.na, "mmol/L"),
+                "urine K": format_value(urine.k, "mmol/L"),
+                "urine urea nitrogen": format_value(urine.urea_nitrogen, "mg/dL"),
+            },
+            "review literature, e.g. Kraut & Madias, Nat Rev Nephrol 2010;6:274 (from memory)",
+            note="about twice the urine ammonium; urine glucose is not counted, so glycosuria raises it",
+        )
     return out
 
 

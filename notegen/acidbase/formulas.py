@@ -209,3 +209,41 @@ def corrected_calcium(
 ) -> float:
     """Ca + 0.8 x (4.0 - albumin), mg/dL and g/dL (Payne et al., BMJ 1973; from memory)."""
     return calcium + factor * (normal_albumin - albumin)
+
+
+# --- Urine gaps (metabolic acidosis) ----------------------------------------------------------------
+
+UREA_NITROGEN_MG_DL_PER_MMOL = 2.8  # BUN mg/dL per mmol/L of urea, as in the serum osmolality formula
+GLUCOSE_MG_DL_PER_MMOL = 18.0
+
+
+def urine_anion_gap(urine_na: float, urine_k: float, urine_cl: float) -> float:
+    """Urine Na + K - Cl, mmol/L (Batlle et al., NEJM 1988;318:594).
+
+    A surrogate for urine ammonium: negative when the kidney excretes ammonium (with its chloride),
+    as after gut bicarbonate loss; positive when it cannot, as in distal renal tubular acidosis.
+    Unreliable with ketonuria or other unmeasured urine anions, and with urine sodium below about 20.
+    """
+    return urine_na + urine_k - urine_cl
+
+
+def urine_calculated_osmolality(
+    urine_na: float, urine_k: float, urine_urea_nitrogen: float, urine_glucose: float = 0.0
+) -> float:
+    """2 x (Na + K) + urea nitrogen/2.8 + glucose/18, in mOsm/kg (review literature; from memory)."""
+    return (
+        2 * (urine_na + urine_k)
+        + urine_urea_nitrogen / UREA_NITROGEN_MG_DL_PER_MMOL
+        + urine_glucose / GLUCOSE_MG_DL_PER_MMOL
+    )
+
+
+def urine_osmolal_gap(
+    measured_osm: float, urine_na: float, urine_k: float, urine_urea_nitrogen: float, urine_glucose: float = 0.0
+) -> float:
+    """Measured minus calculated urine osmolality, mOsm/kg; about twice the urine ammonium.
+
+    Below about 150 points to impaired ammonium excretion (review literature, e.g. Kraut & Madias,
+    Nat Rev Nephrol 2010;6:274; the figure is from memory). Read where the urine anion gap cannot be.
+    """
+    return measured_osm - urine_calculated_osmolality(urine_na, urine_k, urine_urea_nitrogen, urine_glucose)

@@ -169,6 +169,7 @@ class Considerations:
     pack: RulePack
     groups: tuple[MedicationGroup, ...]
     catalogue: Mapping[str, FactSpec]
+    acidosis_pack: RulePack | None = None
 
     @property
     def specs(self) -> tuple[ConsiderationSpec, ...]:
@@ -228,18 +229,20 @@ def _files(folders: tuple[Path, ...]) -> list[Path]:
     return [folders[0] / FILE_NAME, *(f / FILE_NAME for f in folders[1:] if (f / FILE_NAME).is_file())]
 
 
-def _build(folders: tuple[Path, ...], pack: RulePack) -> tuple[Considerations | None, list[Problem]]:
+def _build(
+    folders: tuple[Path, ...], pack: RulePack, acidosis_pack: RulePack | None = None
+) -> tuple[Considerations | None, list[Problem]]:
     problems: list[Problem] = []
     files = [parsed for path in _files(folders) if (parsed := _read(path, problems)) is not None]
     if problems:
         return None, problems
     merged = _merge(files, problems)
     groups = tuple(MedicationGroup(g.id, g.classes, g.label) for g in merged.medication_groups)
-    catalogue = consideration_catalogue(pack, groups)
+    catalogue = consideration_catalogue(pack, groups, acidosis_pack)
     problems += _check(merged, pack, catalogue)
     if problems:
         return None, sorted(set(problems), key=lambda p: (p[0], p[1] or 0, p[2]))
-    return Considerations(_compile(merged, pack), pack, groups, catalogue), []
+    return Considerations(_compile(merged, pack), pack, groups, catalogue, acidosis_pack), []
 
 
 def _pack(service_folders: tuple[Path, ...]) -> RulePack:
@@ -248,10 +251,16 @@ def _pack(service_folders: tuple[Path, ...]) -> RulePack:
     return load_alkalosis_pack(service_folders)
 
 
+def _acidosis_pack(service_folders: tuple[Path, ...]) -> RulePack:
+    from notegen.workup.acidosis import load_acidosis_pack
+
+    return load_acidosis_pack(service_folders)
+
+
 @functools.lru_cache(maxsize=16)
 def _load(resolved: tuple[Path, ...], given: tuple[Path, ...]) -> Considerations:
     # Cached by where the folders are (`resolved`); problems name the files as the user gave them.
-    loaded, problems = _build((_shipped_folder(), *given), _pack(given))
+    loaded, problems = _build((_shipped_folder(), *given), _pack(given), _acidosis_pack(given))
     if loaded is None:
         raise RulePackError(problems)
     return loaded
@@ -277,10 +286,10 @@ def check_considerations(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
     """
     folders = tuple(Path(folder) for folder in rules_dirs)
     try:
-        pack = _pack(folders)
+        pack, acidosis_pack = _pack(folders), _acidosis_pack(folders)
     except RulePackError:
         return []
-    return _build((_shipped_folder(), *folders), pack)[1]
+    return _build((_shipped_folder(), *folders), pack, acidosis_pack)[1]
 
 
 # Selecting -------------------------------------------------------------------------------------
@@ -320,7 +329,7 @@ class Verdict:
 
 
 def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
-    facts = consideration_facts(assessment, loaded.pack, loaded.groups)
+    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_pack)
     # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
     env: Env = {
         name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)

@@ -72,8 +72,13 @@ def _spec(fact_id: str, kind: str, label: str, *, unit: str | None = None, value
     )
 
 
-def consideration_catalogue(pack: RulePack, groups: Sequence[MedicationGroup]) -> dict[str, FactSpec]:
-    """Every fact a consideration may read: the pack's catalogue and the facts this module adds."""
+def consideration_catalogue(
+    pack: RulePack, groups: Sequence[MedicationGroup], acidosis_pack: RulePack | None = None
+) -> dict[str, FactSpec]:
+    """Every fact a consideration may read: the pack's catalogue and the facts this module adds.
+
+    `acidosis_pack` adds `cause_<id>` for each cause of the acidosis work-up (likely or possible).
+    """
     catalogue: dict[str, FactSpec] = dict(pack.facts)
     added = [
         _spec("metabolic_alkalosis", "boolean", "metabolic alkalosis established"),
@@ -90,6 +95,8 @@ def consideration_catalogue(pack: RulePack, groups: Sequence[MedicationGroup]) -
     if CHLORIDE_TREE in trees:
         added.append(_spec(CHLORIDE_TREE, "enum", "chloride class", values=trees[CHLORIDE_TREE].outcomes))
     added += [_spec(f"cause_{c.id}", "boolean", f"{c.label} likely or possible") for c in pack.causes]
+    if acidosis_pack is not None:
+        added += [_spec(f"cause_{c.id}", "boolean", f"{c.label} likely or possible") for c in acidosis_pack.causes]
     added += [_spec(f"factor_{f.id}", "boolean", f"{f.label} present") for f in pack.factors]
     added += [_spec(f"test_{t.id}", "boolean", f"{t.label} suggested") for t in pack.tests]
     added += [_spec(f"alert_{code}", "enum", f"{code} alert", values=ALERT_LEVELS) for code in ALERT_CODES]
@@ -137,7 +144,12 @@ def _reading_facts(assessment: Assessment) -> dict[str, Fact]:
     }
 
 
-def consideration_facts(assessment: Assessment, pack: RulePack, groups: Sequence[MedicationGroup]) -> dict[str, Fact]:
+def consideration_facts(
+    assessment: Assessment,
+    pack: RulePack,
+    groups: Sequence[MedicationGroup],
+    acidosis_pack: RulePack | None = None,
+) -> dict[str, Fact]:
     """The facts of `consideration_catalogue` for this assessment; a value not held is missing, never guessed."""
     case = assessment.case
     facts: dict[str, Fact] = dict(derive_facts(case, assessment.acid_base, pack, assessment.calculations))
@@ -147,6 +159,10 @@ def consideration_facts(assessment: Assessment, pack: RulePack, groups: Sequence
     present |= {m.mechanism for m in assessment.generation if m.status == "present"}
     suggested = {t.test for t in assessment.next_tests}
     facts.update({f"cause_{c.id}": BooleanFact(c.id in likely) for c in pack.causes})
+    if acidosis_pack is not None:
+        entries = assessment.acidosis.differential if assessment.acidosis is not None else ()
+        acidosis_likely = {c.cause for c in entries if c.tier in ("likely", "possible")}
+        facts.update({f"cause_{c.id}": BooleanFact(c.id in acidosis_likely) for c in acidosis_pack.causes})
     facts.update({f"factor_{f.id}": BooleanFact(f.id in present) for f in pack.factors})
     facts.update({f"test_{t.id}": BooleanFact(t.id in suggested) for t in pack.tests})
     levels: dict[str, str] = {}

@@ -12,6 +12,7 @@ from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
 from notegen.case.trend import TrendSeries
+from notegen.workup.acidosis_model import AcidosisWorkup
 from notegen.workup.model import (
     CauseEntry,
     ChlorideClass,
@@ -51,3 +52,6 @@ class Assessment(FrozenModel):
     trend: tuple[TrendSeries, ...] = ()  # serial results, oldest first, for analytes measured twice or more
     trace: tuple[TraceEntry, ...] = ()
     paragraph: str = ""  # the assessment paragraph as drafted
+    # The metabolic-acidosis work-up (rules/acidosis); None when there is no metabolic acidosis
+    # with a known anion gap. The alkalosis work-up keeps the keys above.
+    acidosis: AcidosisWorkup | None = None

@@ -38,6 +38,8 @@ CANONICAL_UNITS: dict[str, str] = {
     "chem.phos": "mg/dL",
     "chem.lactate": "mmol/L",
     "chem.osm": "mOsm/kg",
+    "chem.bhb": "mmol/L",
+    "chem.salicylate": "mg/dL",
     "urine.na": "mmol/L",
     "urine.k": "mmol/L",
     "urine.cl": "mmol/L",
@@ -45,6 +47,8 @@ CANONICAL_UNITS: dict[str, str] = {
     "urine.ph": "",
     "urine.osm": "mOsm/kg",
     "urine.calcium": "mg/dL",
+    "urine.ketones": "mg/dL",
+    "urine.urea_nitrogen": "mg/dL",
 }
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
@@ -102,6 +106,8 @@ class Chem(BaseModel):
     phos: float | None = None
     lactate: float | None = None
     osm: float | None = None
+    bhb: float | None = None  # beta-hydroxybutyrate
+    salicylate: float | None = None
     taken_at: datetime | None = None
 
 
@@ -115,6 +121,8 @@ class Urine(BaseModel):
     ph: float | None = None
     osm: float | None = None
     calcium: float | None = None
+    ketones: float | None = None  # acetoacetate, as a strip or assay reports it
+    urea_nitrogen: float | None = None  # urine urea nitrogen, for the urine osmolal gap
     taken_at: datetime | None = None
 
 

@@ -2,7 +2,8 @@
 
 Factors convert a reported unit to the field's canonical (conventional) unit. They
 come from molar masses (creatinine 113.12 g/mol, urea nitrogen 2 x 14.007, glucose
-180.16, Mg 24.305, Ca 40.078, P 30.974, lactate 90.08) and 1 mmHg = 133.322 Pa, and
+180.16, Mg 24.305, Ca 40.078, P 30.974, lactate 90.08,
+beta-hydroxybutyrate 104.10, salicylic acid 138.12, acetoacetic acid 102.09) and 1 mmHg = 133.322 Pa, and
 every one is checked in tests/test_units.py against pint, an independent units library.
 """
 
@@ -67,6 +68,9 @@ MAGNESIUM_G_PER_MOL = 24.305
 CALCIUM_G_PER_MOL = 40.078
 PHOSPHORUS_G_PER_MOL = 30.974
 LACTATE_G_PER_MOL = 90.08
+BETA_HYDROXYBUTYRATE_G_PER_MOL = 104.10  # C4H8O3
+SALICYLATE_G_PER_MOL = 138.12  # salicylic acid, C7H6O3, as levels are reported
+ACETOACETATE_G_PER_MOL = 102.09  # acetoacetic acid, C4H6O3
 PASCAL_PER_MMHG = 133.322
 
 _MMOL_TO_MG_DL = 0.1  # mmol/L x (g/mol) x 0.1 = mg/dL
@@ -122,6 +126,13 @@ FIELD_UNITS: dict[str, FieldUnits] = {
         "mmol/L", "mmol/L", "mmol/L", {"mmol/L": 1.0, "mg/dL": 1.0 / (LACTATE_G_PER_MOL * _MMOL_TO_MG_DL)}
     ),
     "chem.osm": _OSMOLALITY,
+    "chem.bhb": FieldUnits(
+        "mmol/L",
+        "mmol/L",
+        "mmol/L",
+        {"mmol/L": 1.0, "mg/dL": 1.0 / (BETA_HYDROXYBUTYRATE_G_PER_MOL * _MMOL_TO_MG_DL)},
+    ),
+    "chem.salicylate": FieldUnits("mg/dL", "mg/dL", "mmol/L", _mass(SALICYLATE_G_PER_MOL)),
     "urine.na": _ELECTROLYTE,
     "urine.k": _ELECTROLYTE,
     "urine.cl": _ELECTROLYTE,
@@ -130,6 +141,10 @@ FIELD_UNITS: dict[str, FieldUnits] = {
     "urine.ph": _UNITLESS,
     "urine.osm": _OSMOLALITY,
     "urine.calcium": _CALCIUM,
+    "urine.ketones": FieldUnits("mg/dL", "mg/dL", "mmol/L", _mass(ACETOACETATE_G_PER_MOL)),
+    "urine.urea_nitrogen": FieldUnits(
+        "mg/dL", "mg/dL", "mmol/L", {"mg/dL": 1.0, "mmol/L": UREA_NITROGEN_G_PER_MOL * _MMOL_TO_MG_DL}
+    ),
 }
 
 # A urea (not urea nitrogen) value in mg/dL, as some laboratories report it, to BUN mg/dL.

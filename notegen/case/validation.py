@@ -55,8 +55,10 @@ LAB_SECTIONS: dict[str, tuple[str, ...]] = {
         "phos",
         "lactate",
         "osm",
+        "bhb",
+        "salicylate",
     ),
-    "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium"),
+    "urine": ("na", "k", "cl", "creatinine", "ph", "osm", "calcium", "ketones", "urea_nitrogen"),
 }
 
 def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> tuple[float, str, str | None] | None:

@@ -372,6 +372,8 @@ class _PasteReader:
         marker = lab_line.marker
         heading = lab_line.block.heading
         label = _ANALYTE_WORDS.get(lab_line.analyte, lab_line.analyte.replace("_", " "))
+        if analyte.needs_origin and marker is None and heading is None:
+            return f"could be blood or urine {label}: give it a URINE heading or 'urine' in its name"
         if marker == "urine":
             candidates &= {"urine"}
             if not candidates:
@@ -387,6 +389,9 @@ class _PasteReader:
                 return f"sits under a urine heading, but urine {label} is not a field notegen uses"
             else:
                 candidates.discard("urine")
+                if not candidates:
+                    return (f"sits under a {heading.section} heading, but {label} is read as a urine value here: "
+                            "give it a URINE heading or 'urine' in its name")
         if len(candidates) > 1:
             if evidence is None:
                 return None

@@ -23,9 +23,10 @@ if TYPE_CHECKING:
     from notegen.knowledge.settings import AcidBaseSettings
     from notegen.knowledge.vocabulary import DrugInfo, FieldInfo, FindingInfo
 
-__all__ = ["ALKALOSIS_PACK", "Knowledge", "shipped_knowledge"]
+__all__ = ["ACIDOSIS_PACK", "ALKALOSIS_PACK", "Knowledge", "shipped_knowledge"]
 
 ALKALOSIS_PACK = "alkalosis"
+ACIDOSIS_PACK = "acidosis"
 Problems = list[tuple[str, int | None, str]]
 
 
@@ -49,6 +50,12 @@ class Knowledge:
         from notegen.knowledge.packs import load_rule_pack
 
         return load_rule_pack(ALKALOSIS_PACK, self.rules_dirs)
+
+    @cached_property
+    def acidosis_pack(self) -> RulePack:
+        from notegen.knowledge.packs import load_rule_pack
+
+        return load_rule_pack(ACIDOSIS_PACK, self.rules_dirs)
 
     # The vocabularies are the shipped ones: a service adds rules and wording, not case fields.
     @cached_property
@@ -99,7 +106,8 @@ class Knowledge:
                 getattr(self, part)
             except RulePackError as error:
                 problems.extend(error.problems)
-        problems.extend(check_rule_pack(ALKALOSIS_PACK, self.rules_dirs))
+        for pack in (ALKALOSIS_PACK, ACIDOSIS_PACK):
+            problems.extend(check_rule_pack(pack, self.rules_dirs))
         return problems
 
 

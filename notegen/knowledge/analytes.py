@@ -34,6 +34,9 @@ class Analyte(BaseModel):
     fields: dict[SectionName, str]
     names: list[str]
     sample: SampleName | None = None
+    # Used only when a marker word or a heading says where the sample came from ("ketones" alone
+    # may be serum or urine, in different units): never assigned by default.
+    needs_origin: bool = False
 
 
 class Heading(BaseModel):

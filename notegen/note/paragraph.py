@@ -15,6 +15,7 @@ from notegen._format import join_words, ph_text, sentence_case, trimmed_number
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading, Disorder, ExpectedRange
 from notegen.assess.model import Assessment
+from notegen.note.acidosis_paragraph import acidosis_sentences, acidosis_test_labels
 from notegen.workup.model import CauseEntry, Evidence, FactorEntry
 
 __all__ = ["draft_paragraph"]
@@ -51,6 +52,7 @@ def draft_paragraph(assessment: Assessment) -> str:
     sentences += _anion_gap(reading, said, gap_said)
     sentences += _other_disorders(reading, said)
     sentences += _alkalosis(assessment)
+    sentences += acidosis_sentences(assessment)  # the acidosis work-up, after the alkalosis one
     sentences += _next_tests(assessment)
     return _with_reported_kpa(" ".join(sentence for sentence in sentences if sentence), assessment)
 
@@ -593,7 +595,7 @@ def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
 
 
 def _next_tests(assessment: Assessment) -> list[str]:
-    labels = [_inline(test.label) for test in assessment.next_tests]
+    labels = [_inline(test.label) for test in assessment.next_tests] + acidosis_test_labels(assessment)
     if not labels:
         return []
     noun = "test" if len(labels) == 1 else "tests"

@@ -27,6 +27,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
 from notegen.errors import TemplateError, UsageError
+from notegen.note.acidosis_paragraph import acidosis_context
 from notegen.note.options import DraftOptions
 from notegen.note.paragraph import draft_paragraph
 from notegen.workup.model import CauseEntry, Evidence
@@ -55,6 +56,8 @@ CALCULATION_LABELS: dict[str, str] = {
     "fe_cl": "Fractional excretion of chloride",
     "chloride_deficit": "Chloride deficit",
     "corrected_calcium": "Calcium corrected for albumin",
+    "urine_anion_gap": "Urine anion gap",
+    "urine_osmolal_gap": "Urine osmolal gap",
 }
 # Kept in the JSON only, never in the note: the chloride deficit is an estimate resting on
 # assumptions, and printed as a bare mmol figure it reads like an amount to give.
@@ -216,6 +219,7 @@ def note_context(
             {"label": sentence_case(item.id.replace("_", " ")), "reasons": list(item.reasons)}
             for item in assessment.management_withheld
         ],
+        "acidosis": acidosis_context(assessment),  # the acidosis work-up, or None
         "reading_steps": list(reading.findings),
         "trace": [_trace_row(t.model_dump(mode="json")) for t in assessment.trace],
         "reference": {

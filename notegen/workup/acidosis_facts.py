@@ -1,0 +1,179 @@
+"""The flat facts the metabolic-acidosis pack reads, derived from a validated case and its reading.
+
+The same conventions as `notegen.workup.facts` (the alkalosis pack's facts): every value in the
+unit the pack's catalogue declares; a value the case does not hold is a `MissingFact`, never a
+default; a finding not listed is `false` ("not reported"); a medication class is absent only when
+every listed medication was recognised.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+from notegen._format import join_words
+from notegen.acidbase.calculations import Calculation
+from notegen.acidbase.model import AcidBaseReading
+from notegen.case.model import Case, Medication
+from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
+from notegen.errors import NotegenError
+from notegen.knowledge.vocabulary import finding_label
+from notegen.workup.acidosis_model import AcidosisWorkupKind
+
+ACIDOSIS_FINDINGS = (
+    "diabetes",
+    "starvation",
+    "malnutrition",
+    "alcohol_use",
+    "toxic_ingestion",
+    "sepsis",
+    "shock",
+    "seizure",
+    "short_bowel",
+    "kidney_disease",
+    "diarrhea",
+    "ostomy",
+    "fistula",
+    "urinary_diversion",
+    "saline_load",
+)
+# Findings named together in the gut-loss sentence, in this order.
+GUT_LOSSES = ("diarrhea", "ostomy", "fistula", "urinary_diversion")
+# Listed-class facts and the medication classes (rules/vocabulary/medications.yaml) behind them.
+ACIDOSIS_CLASS_FACTS = {
+    "metformin_listed": ("biguanide",),
+    "acetaminophen_listed": ("acetaminophen",),
+    "salicylate_listed": ("salicylate",),
+    "ca_inhibitor_listed": ("carbonic_anhydrase_inhibitor",),
+    "potassium_retaining_listed": ("ace_inhibitor", "angiotensin_receptor_blocker", "potassium_sparing_diuretic"),
+}
+ACIDOSIS_NAME_FACTS = {
+    "ca_inhibitor_names": ("carbonic_anhydrase_inhibitor",),
+    "potassium_retaining_names": ("ace_inhibitor", "angiotensin_receptor_blocker", "potassium_sparing_diuretic"),
+}
+# Case values: fact id -> (case field, canonical unit).
+_CASE_NUMBERS = {
+    "glucose": ("chem.glucose", "mg/dL"),
+    "bhb": ("chem.bhb", "mmol/L"),
+    "lactate": ("chem.lactate", "mmol/L"),
+    "salicylate": ("chem.salicylate", "mg/dL"),
+    "bun": ("chem.bun", "mg/dL"),
+    "k": ("chem.k", "mmol/L"),
+    "phos": ("chem.phos", "mg/dL"),
+    "urine_ketones": ("urine.ketones", "mg/dL"),
+    "urine_na": ("urine.na", "mmol/L"),
+    "urine_ph": ("urine.ph", ""),
+}
+# Calculations: fact id -> the unit the pack expects.
+_CALCULATED = {
+    "osmolal_gap": "mOsm/kg",
+    "egfr": "mL/min/1.73 m2",
+    "urine_anion_gap": "mmol/L",
+    "urine_osmolal_gap": "mOsm/kg",
+}
+_KINDS: dict[str, AcidosisWorkupKind] = {
+    "high_gap": "high_gap",
+    "normal_gap": "normal_gap",
+    "high_and_normal_gap": "mixed",
+}
+
+
+def acidosis_kind(reading: AcidBaseReading) -> AcidosisWorkupKind | None:
+    """The kind the pack reads: the reading's metabolic-acidosis kind, or None when there is none to work up."""
+    if "metabolic_acidosis" not in reading.disorders or reading.metabolic_acidosis_kind is None:
+        return None
+    return _KINDS[reading.metabolic_acidosis_kind]
+
+
+def _case_number(case: Case, field: str, unit: str) -> Fact:
+    section, name = field.split(".")
+    value = getattr(getattr(case, section), name)
+    if value is None:
+        return MissingFact()
+    qualifier = None
+    for measurement in reversed(case.measurements):
+        if measurement.field == field:
+            qualifier = measurement.qualifier
+            break
+    return NumberFact(value, unit or None, qualifier)
+
+
+def _of_classes(meds: tuple[Medication, ...], classes: tuple[str, ...]) -> list[Medication]:
+    return [m for m in meds if set(m.classes) & set(classes)]
+
+
+def acidosis_medication_facts(case: Case) -> dict[str, Fact]:
+    """Class facts and the names to show, from `Case.context.meds`."""
+    meds = case.context.meds
+    unknown = [m.name for m in meds if not m.recognised]
+    facts: dict[str, Fact] = {}
+    for name, classes in ACIDOSIS_CLASS_FACTS.items():
+        if _of_classes(meds, classes):
+            facts[name] = BooleanFact(True)
+        elif unknown:
+            facts[name] = MissingFact(f"unrecognised medication: {', '.join(unknown)}")
+        else:
+            facts[name] = BooleanFact(False)
+    for name, classes in ACIDOSIS_NAME_FACTS.items():
+        listed = _of_classes(meds, classes)
+        facts[name] = TextFact(join_words(m.generic or m.name for m in listed)) if listed else MissingFact()
+    return facts
+
+
+def _setting(pack: RulePack, setting: str, unit: str) -> float:
+    if setting not in pack.settings:
+        raise NotegenError(f"rule pack `{pack.id}` lacks the setting `{setting}` that the acidosis facts read")
+    value, found = pack.settings[setting]
+    if found != unit:
+        raise NotegenError(f"setting `{setting}` of pack `{pack.id}` must be in {unit}, not {found}")
+    return value
+
+
+def ketonuria_fact(case: Case, pack: RulePack) -> Fact:
+    """Whether measured ketones reach the pack's thresholds; missing when no ketone was measured.
+
+    A derived fact that no test provides, so the urine anion gap's ketonuria caveat never asks for a
+    ketone test by itself.
+    """
+    measured = [
+        (case.urine.ketones, _setting(pack, "urine_ketones_positive_from", "mg/dL")),
+        (case.chem.bhb, _setting(pack, "bhb_high_from", "mmol/L")),
+    ]
+    known = [(value, limit) for value, limit in measured if value is not None]
+    if not known:
+        return MissingFact("no ketones measured")
+    return BooleanFact(any(value >= limit for value, limit in known))
+
+
+def derive_acidosis_facts(
+    case: Case,
+    reading: AcidBaseReading,
+    calculations: Mapping[str, Calculation] | None = None,
+    pack: RulePack | None = None,
+) -> dict[str, Fact]:
+    """Every fact of the acidosis pack's catalogue, present or missing with a reason."""
+    calcs = calculations or {}
+    kind = acidosis_kind(reading)
+    gap = reading.anion_gap_corrected if reading.anion_gap_corrected is not None else reading.anion_gap
+    facts: dict[str, Fact] = {
+        "acidosis_kind": TextFact(kind) if kind is not None else MissingFact("no metabolic acidosis with a known gap"),
+        "anion_gap": NumberFact(gap, "mmol/L") if gap is not None else MissingFact("no anion gap"),
+        "hco3": NumberFact(reading.hco3, "mmol/L") if reading.hco3 is not None else MissingFact("no bicarbonate"),
+        "respiratory_alkalosis": BooleanFact("respiratory_alkalosis" in reading.disorders),
+        # Results of tests the case file does not hold; a caller passes them as extra facts.
+        "toxic_alcohol_detected": MissingFact("not given"),
+        "acetaminophen_detected": MissingFact("not given"),
+    }
+    for name, (field, unit) in _CASE_NUMBERS.items():
+        facts[name] = _case_number(case, field, unit)
+    for name, unit in _CALCULATED.items():
+        calculation = calcs.get(name)
+        if calculation is not None and calculation.unit != unit:
+            raise NotegenError(f"calculation `{name}` is in {calculation.unit}; the pack expects {unit}")
+        facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
+    for finding in ACIDOSIS_FINDINGS:
+        facts[finding] = BooleanFact(finding in case.context.findings)
+    losses = [finding_label(f) for f in GUT_LOSSES if f in case.context.findings]
+    facts["gut_losses"] = TextFact(join_words(losses)) if losses else MissingFact("none reported")
+    facts.update(acidosis_medication_facts(case))
+    facts["ketonuria"] = ketonuria_fact(case, pack) if pack is not None else MissingFact("no pack settings")
+    return facts
