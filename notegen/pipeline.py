@@ -71,7 +71,9 @@ class Drafter:
         if _alkalosis_to_work_up(reading):
             from notegen.workup.alkalosis import evaluate_alkalosis
 
-            rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+            rules = evaluate_alkalosis(
+                case, reading, self.alkalosis_pack, calculations=calculations, explain=explain, settings=self.settings
+            )
         assessment = Assessment(
             case=case,
             acid_base=reading,

@@ -47,6 +47,7 @@ def test_shipped_pack_passes_its_checks() -> None:
     assert {c.id for c in pack.causes} == {
         "gastric_loss", "diuretic", "mineralocorticoid_excess", "alkali_load", "reduced_gfr",
         "post_hypercapnia", "salt_wasting_tubulopathy", "chloride_losing_diarrhea", "potassium_magnesium_depletion",
+        "calcium_alkali",
     }  # fmt: skip
     assert {"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"} <= {
         f.id for f in pack.factors if f.group == "maintenance"
@@ -375,7 +376,7 @@ SAMPLE_LEADS: dict[str, set[str] | None] = {
     "loop_diuretic_heart_failure": {"diuretic"},
     "gastric_suction": {"gastric_loss"},
     "hypertension_low_potassium": {"mineralocorticoid_excess"},
-    "alkali_kidney_disease": {"alkali_load"},
+    "alkali_kidney_disease": {"alkali_load", "calcium_alkali"},  # calcium carbonate, corrected Ca 11.6, eGFR 15
     "chronic_co2_retention": None,
     "ketoacidosis_with_vomiting": {"gastric_loss"},
     "venous_si_units": {"gastric_loss"},

@@ -1,4 +1,4 @@
-"""Severity alerts of the acid-base reading: pH, potassium, calcium, magnesium, hypoventilation.
+"""Severity alerts of the acid-base reading: pH, potassium, sodium, glucose, calcium, magnesium, hypoventilation.
 
 Thresholds come from `AcidBaseSettings`; each message is a sentence for the clinician, phrased as
 considerations, never doses.
@@ -9,6 +9,7 @@ from __future__ import annotations
 from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
+from notegen.acidbase.critical_values import calcium_alerts, sodium_glucose_alerts
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
@@ -150,11 +151,16 @@ def severity_alerts(
     alkalemic: bool,
     venous: bool,
 ) -> list[Alert]:
-    """Alerts for dangerous values, in a fixed order (pH, potassium, calcium, magnesium, ventilation)."""
+    """Alerts for dangerous values, in a fixed order.
+
+    pH, potassium, sodium and glucose, calcium, magnesium, ventilation.
+    """
     alerts: list[Alert] = []
     alerts += _ph_alerts(ph, ph_calculated, s)
     alerts += _potassium_alerts(case.chem.k, s)
+    alerts += sodium_glucose_alerts(case, s)
     alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)
+    alerts += calcium_alerts(case, s)
     alerts += _magnesium_alerts(case.chem.mg, s)
     alerts += _hypoventilation_alert(hco3, pco2, venous, s)
     return alerts

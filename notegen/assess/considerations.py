@@ -39,6 +39,7 @@ CAUSE_IDS = frozenset(
         "salt_wasting_tubulopathy",
         "chloride_losing_diarrhea",
         "potassium_magnesium_depletion",
+        "calcium_alkali",
     }
 )
 FACTOR_IDS = frozenset({"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"})
@@ -56,6 +57,12 @@ ALERT_CODES = frozenset(
         "inconsistent_gas",
         "gas_panel_mismatch",
         "sample_unstated",
+        "hypercalcemia",
+        "severe_hypocalcemia",
+        "severe_hyponatremia",
+        "severe_hypernatremia",
+        "hypoglycemia",
+        "severe_hyperglycemia",
     }
 )
 ALERT_LEVELS = frozenset({"critical", "warning", "info"})

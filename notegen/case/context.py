@@ -36,6 +36,7 @@ LEVEL_WORDS = {
 SCREEN_WORDS = {"positive": "positive", "detected": "positive", "negative": "negative", "not detected": "negative"}
 YES_NO = {"yes": True, "true": True, "present": True, "no": False, "false": False, "absent": False}
 MAX_MEDICATIONS = 200
+ADULT_AGE = 18  # years; the published rules and ranges notegen uses were set in adults
 
 SEX_WORDS = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
 VOLUME_WORDS = {
@@ -94,10 +95,15 @@ def validate_patient(raw: Any, col: _Collector) -> Patient:
             else:
                 values[key] = number
     age = values.get("age")
-    if age is not None and age < 18:
-        col.notices.append(
-            f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind"
+    if age is not None and age < ADULT_AGE:
+        # Compensation rules, reference ranges and CKD-EPI 2021 were set in adults; a child's note
+        # drafted from them would read as settled when it is not, so the case is refused.
+        col.problem(
+            "patient.age",
+            f"{_fmt(age)} years: notegen's compensation rules and reference ranges are for adults "
+            f"({ADULT_AGE} and over) only; no note is drafted",
         )
+        del values["age"]
     return Patient(**values)
 
 

@@ -86,6 +86,14 @@ class AcidBaseSettings(BaseModel):
     hypoventilation_pco2: Setting
     ionized_ca_low_warning: Setting
     ionized_ca_low_critical: Setting
+    ionized_ca_high: Setting
+    calcium_high: Setting
+    calcium_high_critical: Setting
+    calcium_low_critical: Setting
+    sodium_low_critical: Setting
+    sodium_high_critical: Setting
+    glucose_low_critical: Setting
+    glucose_high_critical: Setting
     magnesium_low: Setting
     magnesium_low_warning: Setting
     chloride_target: Setting
@@ -113,6 +121,11 @@ _ORDERED: tuple[tuple[str, str], ...] = (
     ("potassium_low_critical", "potassium_low_warning"),
     ("potassium_high_warning", "potassium_high_critical"),
     ("ionized_ca_low_critical", "ionized_ca_low_warning"),
+    ("ionized_ca_low_warning", "ionized_ca_high"),
+    ("calcium_low_critical", "calcium_high"),
+    ("calcium_high", "calcium_high_critical"),
+    ("sodium_low_critical", "sodium_high_critical"),
+    ("glucose_low_critical", "glucose_high_critical"),
     ("magnesium_low_warning", "magnesium_low"),
 )
 _POSITIVE: tuple[str, ...] = (
