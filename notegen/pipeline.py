@@ -66,7 +66,7 @@ class Drafter:
         if self.rules_dirs:
             self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
         calculations = compute_calculations(case, self.settings)
-        reading = read_acid_base(case, self.settings)
+        reading = read_acid_base(case, self.settings, calculations)
         rules = None
         if _alkalosis_to_work_up(reading):
             from notegen.workup.alkalosis import evaluate_alkalosis

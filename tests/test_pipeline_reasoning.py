@@ -76,3 +76,35 @@ def test_calcium_alerts_read_the_albumin_corrected_calcium() -> None:
     assert "13.6 mg/dL" in alerts["hypercalcemia"].message
     low = assess({**CALCIUM_ALKALI, "chem": {**CALCIUM_ALKALI["chem"], "ca": 6.0, "albumin": 4.0}})
     assert "severe_hypocalcemia" in alert_codes(low)
+
+
+# --- The anion gap's bicarbonate ------------------------------------------------------------------------
+# Kraut & Madias, CJASN 2007;2:162; Winter et al., Arch Intern Med 1990: anion-gap reference ranges were
+# set with the panel's measured total CO2, so the gap uses it when the case has one, and says so.
+
+PANEL_AND_GAS: dict[str, Any] = {
+    "case": "invented: gas and panel drawn together",
+    "patient": {"age": 52, "sex": "male"},
+    "gas": {"sample": "arterial", "ph": 7.40, "pco2": 40, "hco3": 24},
+    "chem": {"na": 140, "cl": 102, "tco2": 25, "albumin": 4.0},
+}
+
+
+def test_anion_gap_uses_the_panel_total_co2_and_says_so() -> None:
+    reading = assess(PANEL_AND_GAS).acid_base
+    assert reading.anion_gap_bicarbonate == "panel total CO2"
+    assert reading.anion_gap == 13  # 140 - (102 + 25), not 14 from the gas 24
+    assert any("using the panel total CO2" in f for f in reading.findings)
+
+
+def test_a_gap_from_a_panel_that_disagrees_with_the_gas_carries_no_firm_diagnosis() -> None:
+    # Gas HCO3 24 at PaCO2 40 predicts a total CO2 of 25.2 (HCO3 + 0.0307 x PaCO2, CLSI C46-A); a panel
+    # total CO2 of 17 lies more than 3 mmol/L away (Story, Poustie & Bellomo 2001), so the gap of 21
+    # it gives makes a metabolic acidosis possible, not established.
+    data = {**PANEL_AND_GAS, "chem": {"na": 140, "cl": 102, "tco2": 17, "albumin": 4.0}}
+    assessment = assess(data)
+    reading = assessment.acid_base
+    assert "gas_panel_mismatch" in alert_codes(assessment)
+    assert "metabolic_acidosis" not in reading.disorders
+    assert "metabolic_acidosis" in reading.possible_disorders
+    assert any("disagree" in f for f in reading.findings)

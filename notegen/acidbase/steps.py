@@ -6,12 +6,14 @@ the gaps (here). Everything here writes its findings into a `ReadingDraft`.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert
-from notegen.acidbase.calculations import gap_bicarbonate, usable
+from notegen.acidbase.calculations import Calculation, gap_bicarbonate, usable
 from notegen.acidbase.formulas import (
+    Estimate,
     anion_gap,
     corrected_anion_gap,
     delta_gap,
@@ -27,6 +29,7 @@ from notegen.acidbase.model import (
     Certainty,
     Chronicity,
     CompensationStatus,
+    DeltaRatioVerdict,
     Disorder,
     DisorderBasis,
     ExpectedRange,
@@ -72,6 +75,9 @@ class ReadingDraft:
 
     s: AcidBaseSettings
     venous: bool
+    calcs: Mapping[str, Calculation] = field(default_factory=dict)  # the case's compute_calculations
+    gas_panel_checked: bool = False
+    gas_panel_disagree: bool = False  # the panel total CO2 is not the one the gas predicts
     findings: list[str] = field(default_factory=list)
     missing: list[str] = field(default_factory=list)
     alerts: list[Alert] = field(default_factory=list)
@@ -99,16 +105,24 @@ class GasValues:
     hco3_source: ValueSource | None
 
 
+def _estimate(done: Calculation | None) -> Estimate | None:
+    """A rule's prediction as `compute_calculations` worked it out, when it did."""
+    if done is None or done.low is None or done.high is None:
+        return None
+    return Estimate(done.value, done.low, done.high)
+
+
 def metabolic_compensation(
     primary: Disorder, g: GasValues, w: ReadingDraft
 ) -> tuple[CompensationStatus, ExpectedRange]:
     s = w.s
     assert g.pco2 is not None and g.hco3 is not None
+    done = _estimate(w.calcs.get("expected_pco2"))
     if primary == "metabolic_acidosis":
-        est = expected_pco2_metabolic_acidosis(g.hco3, s.winters_tolerance.value)
+        est = done or expected_pco2_metabolic_acidosis(g.hco3, s.winters_tolerance.value)
         rule, source = "Winter's formula", "Albert, Dell & Winters, Ann Intern Med 1967"
     else:
-        est = expected_pco2_metabolic_alkalosis(
+        est = done or expected_pco2_metabolic_alkalosis(
             g.hco3,
             s.alkalosis_pco2_slope.value,
             s.alkalosis_pco2_tolerance.value,
@@ -180,19 +194,21 @@ def respiratory_compensation(
     s = w.s
     assert g.pco2 is not None and g.hco3 is not None
     tol, n_p, n_h = s.resp_hco3_tolerance.value, s.pco2_normal.value, s.hco3_normal.value
+    done_acute = _estimate(w.calcs.get("expected_hco3_acute"))
+    done_chronic = _estimate(w.calcs.get("expected_hco3_chronic"))
     if primary == "respiratory_acidosis":
-        acute = expected_hco3_acute_respiratory_acidosis(
+        acute = done_acute or expected_hco3_acute_respiratory_acidosis(
             g.pco2, s.resp_acidosis_acute_slope.value, tol, n_p, n_h
         )
-        chronic = expected_hco3_chronic_respiratory_acidosis(
+        chronic = done_chronic or expected_hco3_chronic_respiratory_acidosis(
             g.pco2, s.resp_acidosis_chronic_slope.value, tol, n_p, n_h
         )
         sources = (s.resp_acidosis_acute_slope.source, s.resp_acidosis_chronic_slope.source)
     else:
-        acute = expected_hco3_acute_respiratory_alkalosis(
+        acute = done_acute or expected_hco3_acute_respiratory_alkalosis(
             g.pco2, s.resp_alkalosis_acute_slope.value, tol, n_p, n_h
         )
-        chronic = expected_hco3_chronic_respiratory_alkalosis(
+        chronic = done_chronic or expected_hco3_chronic_respiratory_alkalosis(
             g.pco2, s.resp_alkalosis_chronic_slope.value, tol, n_p, n_h
         )
         sources = (s.resp_alkalosis_acute_slope.source, s.resp_alkalosis_chronic_slope.source)
@@ -268,6 +284,7 @@ class GapResult:
     delta_gap: float | None = None
     delta_ratio: float | None = None
     interpretation: str | None = None
+    verdict: DeltaRatioVerdict | None = None
     normal_gap_acidosis: bool = False
 
 
@@ -280,14 +297,18 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     assert chem.na is not None and chem.cl is not None
     hco3, label = source
     out.bicarbonate = label
-    out.value = anion_gap(chem.na, chem.cl, hco3)
+    done = w.calcs.get("anion_gap")
+    out.value = done.value if done is not None else anion_gap(chem.na, chem.cl, hco3)
     used = out.value
     low, high = s.anion_gap_low.value, s.anion_gap_high.value
     text = f"Anion gap {mmol(out.value)} (using the {label})"
     if usable(chem.albumin):
         assert chem.albumin is not None
-        out.corrected = corrected_anion_gap(
-            out.value, chem.albumin, s.normal_albumin.value, s.albumin_gap_factor.value
+        done_corrected = w.calcs.get("anion_gap_corrected")
+        out.corrected = (
+            done_corrected.value
+            if done_corrected is not None
+            else corrected_anion_gap(out.value, chem.albumin, s.normal_albumin.value, s.albumin_gap_factor.value)
         )
         used = out.corrected
         text += (
@@ -306,17 +327,28 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     w.findings.append(text)
     if out.status != "high":
         return out
-    w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
+    if w.gas_panel_disagree:
+        # Kraut & Madias, CJASN 2007;2:162: a gap is only as good as its bicarbonate; with the gas and
+        # the panel apart, the gap alone does not carry a diagnosis.
+        w.findings.append(
+            "The gas and the panel disagree about the bicarbonate, so a metabolic acidosis resting on "
+            "this gap alone is possible, not established, until they are repeated together."
+        )
+        w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}", "possible")
+    else:
+        w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
     if ph_status == "alkalemia" and used <= high + 4:
         w.findings.append(
             "Alkalemia itself raises the anion gap by a few mmol/L, so a modest rise like this "
             "may not mean a separate acidosis; a lactate would help."
         )
     n_gap, n_hco3 = s.anion_gap_normal.value, s.hco3_normal.value
-    out.delta_gap = delta_gap(used, n_gap)
+    done_delta = w.calcs.get("delta_gap")
+    out.delta_gap = done_delta.value if done_delta is not None else delta_gap(used, n_gap)
     lo, pure, hi = s.delta_ratio_low.value, s.delta_ratio_pure.value, s.delta_ratio_high.value
     resp_acidosis = w.has("respiratory_acidosis")
     if hco3 >= n_hco3:
+        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
         out.interpretation = (
             "bicarbonate has not fallen despite the high gap: a concurrent metabolic "
             "alkalosis" + (" or the compensation of the respiratory acidosis" if resp_acidosis else "")
@@ -327,16 +359,21 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
         )
         _add_gap_alkalosis(w, "a high anion gap without a fall in bicarbonate")
         return out
-    out.delta_ratio = delta_ratio(used, hco3, n_gap, n_hco3)
+    done_ratio = w.calcs.get("delta_ratio")
+    out.delta_ratio = done_ratio.value if done_ratio is not None else delta_ratio(used, hco3, n_gap, n_hco3)
     r = out.delta_ratio
     if r < lo:
+        out.verdict = "normal_gap_acidosis_too"
         out.interpretation = "a normal-gap acidosis accompanies the high-gap acidosis"
         out.normal_gap_acidosis = True
     elif r < pure:
+        out.verdict = "mixed_possible"
         out.interpretation = "a mixed high-gap and normal-gap acidosis is possible"
     elif r <= hi:
+        out.verdict = "high_gap_alone"
         out.interpretation = "a high-gap acidosis alone"
     else:
+        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
         out.interpretation = "a concurrent metabolic alkalosis" + (
             " or the compensation of a respiratory acidosis" if resp_acidosis else ""
         )
@@ -354,5 +391,6 @@ def _add_gap_alkalosis(w: ReadingDraft, why: str) -> None:
     # Rastegar 2007: a high ratio also follows a compensated respiratory acidosis. When that acidosis is
     # the primary disorder, its compensation is the likelier source of the bicarbonate, so the alkalosis
     # is only possible; when it is merely a failed compensation of the metabolic acidosis, it is listed.
+    # With the gas and panel apart, nothing rests on the gap alone (Kraut & Madias, CJASN 2007).
     resp_primary = bool(w.bases) and w.bases[0].disorder == "respiratory_acidosis"
-    w.add("metabolic_alkalosis", why, "possible" if resp_primary else "established")
+    w.add("metabolic_alkalosis", why, "possible" if resp_primary or w.gas_panel_disagree else "established")

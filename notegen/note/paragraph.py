@@ -340,6 +340,12 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
         text = f"The {adjective}anion gap is high at {_mmol(used)} (reference {reference})"
         if reading.primary == "metabolic_acidosis":
             text += ", so this is a high anion gap acidosis"
+        elif "metabolic_acidosis" not in reading.disorders and reading.gas_panel_agreement == "disagree":
+            said.add("metabolic_acidosis")
+            text += (
+                ", which would add a high anion gap metabolic acidosis, but the gas and the panel disagree "
+                "about the bicarbonate, so both are worth repeating together before relying on it"
+            )
         else:
             said.add("metabolic_acidosis")
             text += ", which adds a high anion gap metabolic acidosis"
@@ -369,9 +375,14 @@ def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
         return []
     ratio = reading.delta_ratio
     shown = f"The delta ratio of {ratio:.1f}" if ratio is not None else ""
-    if "metabolic alkalosis" in meaning:
+    verdict = reading.delta_ratio_verdict
+    if verdict in ("metabolic_alkalosis_too", "metabolic_alkalosis_or_respiratory_compensation"):
         said.add("metabolic_alkalosis")
-        other = " or the compensation of a respiratory acidosis" if "compensation" in meaning else ""
+        other = (
+            " or the compensation of a respiratory acidosis"
+            if verdict == "metabolic_alkalosis_or_respiratory_compensation"
+            else ""
+        )
         if ratio is None:
             return [
                 "The bicarbonate has not fallen although the gap is high, which points to a concurrent "
@@ -383,11 +394,11 @@ def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
         ]
     if ratio is None:
         return [_sentence(meaning)]
-    if "accompanies" in meaning:
+    if verdict == "normal_gap_acidosis_too":
         return [f"{shown} points to a normal anion gap acidosis alongside it."]
-    if "mixed" in meaning:
+    if verdict == "mixed_possible":
         return [f"{shown} leaves room for a normal anion gap component as well."]
-    if "alone" in meaning:
+    if verdict == "high_gap_alone":
         return [f"{shown} fits a high anion gap acidosis alone."]
     return [f"{shown} suggests {_clause(meaning)}."]
 
