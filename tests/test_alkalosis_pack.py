@@ -40,7 +40,6 @@ def factor_status(result: WalkResult, factor: str) -> str | None:
         ("loop_diuretic_action_hours", 6, "h", "common practice"),
         ("thiazide_diuretic_action_hours", 24, "h", "common practice"),
         ("urine_na_high_from", 20, "mmol/L", "common practice"),
-        ("pco2_high_above", 45, "mmHg", "common practice"),
     ],
 )
 def test_settings_hold_the_published_figures(setting: str, value: float, unit: str, source_words: str) -> None:
@@ -147,12 +146,18 @@ def test_urine_sodium_with_low_chloride_common_practice() -> None:
     assert "bicarbonaturia" not in evidence_ids(run(urine_cl=low_cl, urine_na=NumberFact(19, "mmol/L")), "gastric_loss")
 
 
-def test_pco2_after_hypercapnia_common_practice() -> None:
-    corrected = BooleanFact(True)
-    normal = run(corrected_hypercapnia=corrected, arterial_pco2=NumberFact(45, "mmHg"))
+def test_pco2_after_hypercapnia() -> None:
+    # Berend, de Vries & Gans, NEJM 2014: compensation does not overshoot, so "the bicarbonate may still
+    # be compensation" holds only without alkalemia; `hypercapnic` reads rules/acid_base.yaml pco2_high.
+    corrected, yes, no = BooleanFact(True), BooleanFact(True), BooleanFact(False)
+    normal = run(corrected_hypercapnia=corrected, hypercapnic=no, arterial_pco2=NumberFact(45, "mmHg"))
     assert "pco2_now_normal" in evidence_ids(normal, "post_hypercapnia")
-    still = run(corrected_hypercapnia=corrected, arterial_pco2=NumberFact(45.1, "mmHg"))
+    still = run(corrected_hypercapnia=corrected, hypercapnic=yes, alkalemia=no)
     assert "still_hypercapnic" in evidence_ids(still, "post_hypercapnia")
+    alkalemic = run(corrected_hypercapnia=corrected, hypercapnic=yes, alkalemia=yes)
+    assert "still_hypercapnic" not in evidence_ids(alkalemic, "post_hypercapnia")
+    assert "alkalemic_despite_hypercapnia" in evidence_ids(alkalemic, "post_hypercapnia")
+    assert alkalemic.cause("post_hypercapnia").tier == "likely"
 
 
 def test_walk_time_is_measured_elsewhere() -> None:

@@ -206,7 +206,9 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
         # Renal or extrarenal potassium loss matters on the normotensive resistant side, not after vomiting.
         ({"urine_cl": 10, "k": 3.0, "findings": ("vomiting",)}, None, None, ["urine_potassium_creatinine"]),
         (
-            {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50},
+            # Not alkalemic: whether the PaCO2 is still high decides between compensation and alkalosis
+            # (Berend, de Vries & Gans, NEJM 2014); when alkalemic, the answer would not change the tier.
+            {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50, "ph": 7.44},
             None,
             "repeat_gas",
             [],

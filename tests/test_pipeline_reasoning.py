@@ -108,3 +108,28 @@ def test_a_gap_from_a_panel_that_disagrees_with_the_gas_carries_no_firm_diagnosi
     assert "metabolic_acidosis" not in reading.disorders
     assert "metabolic_acidosis" in reading.possible_disorders
     assert any("disagree" in f for f in reading.findings)
+
+
+# --- Post-hypercapnic alkalosis -------------------------------------------------------------------------
+# Berend, de Vries & Gans, NEJM 2014;371:1434; Galla, JASN 2000;11:369: compensation does not overshoot;
+# with an alkalemic pH a high bicarbonate is a metabolic alkalosis even while the PaCO2 is above 40, and
+# treated hypercapnia in a CO2 retainer makes post-hypercapnic alkalosis likely.
+
+POST_HYPERCAPNIC: dict[str, Any] = {
+    "case": "invented: day two of non-invasive ventilation in a CO2 retainer",
+    "patient": {"age": 71, "sex": "male"},
+    "gas": {"sample": "arterial", "ph": 7.49, "pco2": 50, "hco3": 37},
+    "chem": {"na": 139, "k": 3.9, "cl": 92, "tco2": 38, "creatinine": 1.0, "albumin": 3.8},
+    "urine": {"cl": 15},
+    "context": {"bp": "130/80", "findings": ["chronic CO2 retention", "non-invasive ventilation"]},
+}
+
+
+def test_treated_hypercapnia_with_alkalemia_makes_post_hypercapnic_alkalosis_likely() -> None:
+    assessment = assess(POST_HYPERCAPNIC)
+    assert assessment.acid_base.primary == "metabolic_alkalosis"
+    cause = next(c for c in assessment.differential if c.cause == "post_hypercapnia")
+    assert cause.tier == "likely"
+    texts = " ".join(e.text for e in (*cause.supporting, *cause.opposing))
+    assert "may still be compensation" not in texts
+    assert "compensation does not overshoot" in texts

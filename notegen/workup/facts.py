@@ -34,6 +34,8 @@ FINDINGS = (
     "diarrhea",
     "edema",
     "corrected_hypercapnia",
+    "chronic_co2_retention",
+    "ventilatory_support",
     "transfusion",
     "hypertension",
     "heart_failure",
@@ -189,10 +191,15 @@ def derive_facts(
     }
     if reading.pco2 is not None and reading.sample in ("arterial", "unstated"):
         facts["arterial_pco2"] = NumberFact(reading.pco2, "mmHg")
+        # Against the reading's own upper limit (rules/acid_base.yaml `pco2_high`), defined once.
+        facts["hypercapnic"] = BooleanFact(reading.pco2 > s.pco2_high.value)
     elif reading.sample == "venous":
-        facts["arterial_pco2"] = MissingFact("venous sample; its PCO2 is not converted")
+        facts["arterial_pco2"] = facts["hypercapnic"] = MissingFact("venous sample; its PCO2 is not converted")
     else:
-        facts["arterial_pco2"] = MissingFact("no blood gas PCO2")
+        facts["arterial_pco2"] = facts["hypercapnic"] = MissingFact("no blood gas PCO2")
+    facts["alkalemia"] = (
+        BooleanFact(reading.ph_status == "alkalemia") if reading.ph_status is not None else MissingFact("no pH")
+    )
     for name, unit in (("egfr", "mL/min/1.73 m2"), ("urine_k_creatinine", "mmol/mmol")):
         calculation = calcs.get(name)
         if calculation is not None and calculation.unit != unit:
