@@ -281,16 +281,24 @@ def test_gas_panel_mismatch() -> None:
     assert "gas_panel_mismatch" not in _codes(read_acid_base(Case(gas=_gas(40, 24), chem=Chem(tco2=26))))
 
 
-def test_venous_gas_softens_the_verdict() -> None:
-    # Berend 2014: HCO3 37 -> 49.1 (47.1-51.1); venous PCO2 52 above it: only a possible respiratory acidosis.
+def test_venous_pco2_is_never_set_against_the_arterial_prediction() -> None:
+    # Berend 2014: HCO3 37 -> 49.1 (47.1-51.1) for arterial blood. A venous PCO2 runs a few mmHg above the
+    # arterial value with limits of agreement -20 to +26 mmHg (Bloom et al., Eur J Emerg Med 2014; Kelly,
+    # Emerg Med J 2016), so a PvCO2 of 52 neither establishes nor suggests an added respiratory acidosis:
+    # compensation is "not assessable on a venous sample".
     r = read_acid_base(Case(gas=_gas(52, 37, sample="venous"), chem=Chem(na=138, cl=90)))
     assert r.sample == "venous"
     assert r.primary == "metabolic_alkalosis"
     assert r.compensation == "uncertain"
     assert r.disorders == ("metabolic_alkalosis",)
-    assert r.possible_disorders == ("respiratory_acidosis",)
+    assert r.possible_disorders == ()
     text = " ".join(r.findings)
     assert "Bloom 2014" in text and "no adjustment" in text
+    assert "not assessable on a venous sample" in text and "PvCO2 52 mmHg" in text
+    # The respiratory rules take an arterial PaCO2 too: neither compensation nor chronicity is read.
+    resp = read_acid_base(Case(gas=_gas(70, 27, sample="venous")))
+    assert resp.primary == "respiratory_acidosis"
+    assert (resp.compensation, resp.chronicity, resp.possible_disorders) == ("uncertain", "indeterminate", ())
 
 
 def test_venous_gas_low_pco2_screen() -> None:

@@ -201,7 +201,7 @@ def test_unlikely_causes_give_their_sources_plainly() -> None:
 
 def test_data_table_shows_units_as_reported_and_converted() -> None:
     note = draft(sample("venous_si_units"))
-    assert "| PCO2 (venous) | 6.1 kPa | 45.8 mmHg | case file |" in note
+    assert "| PvCO2 | 6.1 kPa | 45.8 mmHg | case file |" in note
     assert "| Creatinine | 70 µmol/L | 0.792 mg/dL | case file |" in note
     assert "| BUN | 6.8 mmol/L urea | 19 mg/dL | case file |" in note
     gastric = draft(sample("gastric_suction"))

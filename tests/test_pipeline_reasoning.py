@@ -133,3 +133,47 @@ def test_treated_hypercapnia_with_alkalemia_makes_post_hypercapnic_alkalosis_lik
     texts = " ".join(e.text for e in (*cause.supporting, *cause.opposing))
     assert "may still be compensation" not in texts
     assert "compensation does not overshoot" in texts
+
+
+# --- No double counting; renin and aldosterone cautions -------------------------------------------------
+# Funder et al., Endocrine Society guideline, JCEM 2016;101:1889: replete potassium before renin and
+# aldosterone; ACE inhibitors, ARBs and diuretics raise renin. A listed diuretic's potassium loss is
+# not also evidence of mineralocorticoid excess.
+
+THIAZIDE_HYPERTENSION: dict[str, Any] = {
+    "case": "invented: treated hypertension on hydrochlorothiazide, last dose the day before",
+    "patient": {"age": 58, "sex": "female"},
+    "gas": {"sample": "arterial", "ph": 7.47, "pco2": 45, "hco3": 32},
+    "chem": {"na": 141, "k": 3.0, "cl": 99, "tco2": 33, "creatinine": 0.8, "albumin": 4.0, "ca": 9.4},
+    "urine": {"na": 90, "k": 45, "cl": 70, "creatinine": 60},
+    "context": {"bp": "162/96", "meds": [{"name": "hydrochlorothiazide", "last_dose_hours": 30}, "lisinopril"]},
+}
+
+
+def test_a_thiazide_s_potassium_loss_is_not_counted_again_for_mineralocorticoid_excess() -> None:
+    assessment = assess(THIAZIDE_HYPERTENSION)
+    cause = next(c for c in assessment.differential if c.cause == "mineralocorticoid_excess")
+    ids = {e.id for e in (*cause.supporting, *cause.opposing)}
+    assert "hypokalemia_with_hypertension" not in ids and "renal_potassium_wasting" not in ids
+    assert cause.tier == "possible"  # hypertension on a thiazide: possible, not likely, without more
+
+
+def test_renin_and_aldosterone_come_with_their_cautions() -> None:
+    tests = {t.test: t.why for t in assess(THIAZIDE_HYPERTENSION).next_tests}
+    assert "Replete potassium first" in tests["renin_aldosterone"]
+    assert "ACE inhibitors, ARBs and diuretics raise renin" in tests["renin_aldosterone"]
+
+
+# --- Tiers that match the evidence ------------------------------------------------------------------------
+# Galla, JASN 2000;11:369: a listed loop diuretic, edema and hypokalemia with nothing else on board.
+
+
+def test_a_listed_diuretic_with_its_pattern_and_no_rival_reads_likely() -> None:
+    data = {
+        "case": "invented: leg swelling treated with furosemide, time of last dose not known",
+        "patient": {"age": 80, "sex": "female"},
+        "gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 33},
+        "chem": {"na": 136, "k": 3.1, "cl": 92, "tco2": 34, "creatinine": 1.1, "albumin": 3.6, "ca": 9.0},
+        "context": {"bp": "126/70", "meds": ["furosemide"], "findings": ["edema"]},
+    }
+    assert tiers(assess(data))["diuretic"] == "likely"

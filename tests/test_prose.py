@@ -205,14 +205,18 @@ def test_ketoacidosis_hides_an_alkalosis() -> None:
     )
 
 
-def test_venous_gas_softens_the_compensation_verdict() -> None:
+def test_venous_gas_leaves_compensation_unjudged() -> None:
+    # Never a venous PCO2 against the arterial prediction (Bloom et al., Eur J Emerg Med 2014; Kelly, Emerg
+    # Med J 2016: limits of agreement -20 to +26 mmHg); the venous value is labelled PvCO2.
     text = draft_paragraph(sample("venous_si_units"))
     assert text.startswith(
-        "The venous gas (pH 7.46, PCO2 6.1 kPa (45.8 mmHg), HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
-        "The venous PCO2 of 45.8 mmHg would fit the 43.6–47.6 mmHg that the 0.7 rule predicts, but a venous "
-        "PCO2 cannot confirm compensation; an arterial gas would settle it if that matters."
+        "The venous gas (pH 7.46, PvCO2 6.1 kPa (45.8 mmHg), HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
+        "Respiratory compensation is not assessable on a venous sample, since a venous PCO2 differs from the "
+        "arterial value by a few mmHg on average and far more in some patients; an arterial gas would settle "
+        "it if that matters."
     )
     assert "appropriate" not in text
+    assert "0.7 rule predicts" not in text
 
 
 def test_inconsistent_gas_says_recheck_first() -> None:

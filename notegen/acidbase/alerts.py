@@ -18,10 +18,10 @@ def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
     return [Alert(code=code, level=level, message=" ".join(parts))]
 
 
-def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
+def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings, venous: bool = False) -> list[Alert]:
     if ph is None:
         return []
-    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "")
+    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "") + (" (venous)" if venous else "")
     if ph >= s.alkalemia_critical.value:
         return _alert(
             "severe_alkalemia", "critical",
@@ -131,7 +131,7 @@ def _hypoventilation_alert(
         return []
     if hco3 < s.bicarbonate_very_high.value or pco2 < s.hypoventilation_pco2.value:
         return []
-    kind = "venous PCO2" if venous else "PaCO2"
+    kind = "PvCO2" if venous else "PaCO2"
     return _alert(
         "high_bicarbonate_hypoventilation", "warning",
         f"Bicarbonate {format_value(hco3, 'mmol/L')} with {kind} {format_value(pco2, 'mmHg')}:",
@@ -156,7 +156,7 @@ def severity_alerts(
     pH, potassium, sodium and glucose, calcium, magnesium, ventilation.
     """
     alerts: list[Alert] = []
-    alerts += _ph_alerts(ph, ph_calculated, s)
+    alerts += _ph_alerts(ph, ph_calculated, s, venous)
     alerts += _potassium_alerts(case.chem.k, s)
     alerts += sodium_glucose_alerts(case, s)
     alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)

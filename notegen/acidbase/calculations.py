@@ -136,9 +136,10 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
     gas = case.gas
     pk, sol = s.pk_carbonic.value, s.co2_solubility.value
     hh_source = "Henderson-Hasselbalch; constants as in CLSI C46-A (2001)"
+    pco2_name = "PvCO2" if gas.sample == "venous" else "PaCO2"  # a venous value is never labelled arterial
     if usable(gas.pco2) and usable(gas.hco3):
         assert gas.pco2 is not None and gas.hco3 is not None
-        inputs = {"PaCO2": format_value(gas.pco2, "mmHg"), "HCO3 (gas)": format_value(gas.hco3, "mmol/L")}
+        inputs = {pco2_name: format_value(gas.pco2, "mmHg"), "HCO3 (gas)": format_value(gas.hco3, "mmol/L")}
         out["calculated_ph"] = _calc(
             "calculated_ph",
             henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol),
@@ -160,7 +161,7 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
         assert gas.pco2 is not None
         pco2 = gas.pco2
         n_p, n_h, tol = s.pco2_normal.value, s.hco3_normal.value, s.resp_hco3_tolerance.value
-        inputs = {"PaCO2": format_value(pco2, "mmHg")}
+        inputs = {pco2_name: format_value(pco2, "mmHg")}
         rules: tuple[tuple[str, Setting, str], ...] = ()
         if pco2 > n_p:
             rules = (

@@ -139,7 +139,17 @@ def metabolic_compensation(
         rule=rule,
         source=source,
     )
-    pco2_word = "venous PCO2" if w.venous else "PaCO2"
+    pco2_word = "PvCO2" if w.venous else "PaCO2"
+    if w.venous:
+        # Bloom et al., Eur J Emerg Med 2014; Kelly, Emerg Med J 2016: venous PCO2 runs a few mmHg above
+        # arterial with limits of agreement of -20 to +26 mmHg, so it is never set against a prediction
+        # made for arterial blood.
+        w.findings.append(
+            f"Expected PaCO2 for this {WORDS[primary]} is {span(est.low, est.high, 'mmHg')} ({rule}, {source}); "
+            f"compensation is not assessable on a venous sample, since the PvCO2 {mm(g.pco2)} differs from "
+            "the arterial value by a few mmHg on average and far more in some patients (Bloom 2014; Kelly 2016)."
+        )
+        return "uncertain", expected
     head = (
         f"Expected PaCO2 for this {WORDS[primary]} is {span(est.low, est.high, 'mmHg')} ({rule}, {source}); "
         f"measured {pco2_word} {mm(g.pco2)}"
@@ -158,11 +168,6 @@ def metabolic_compensation(
             )
             w.add("respiratory_acidosis", f"{pco2_word} above the usual ceiling of compensation", "possible")
             return "uncertain", expected
-        if w.venous:
-            w.findings.append(
-                f"{head}: it would fit, but a venous PCO2 cannot confirm compensation (see below)."
-            )
-            return "uncertain", expected
         w.findings.append(f"{head}: compensation is appropriate.")
         return "appropriate", expected
     side = "above" if added == "respiratory_acidosis" else "below"
@@ -176,12 +181,6 @@ def metabolic_compensation(
             "Galla 2000); an added respiratory alkalosis is possible, not established."
         )
         w.add(added, f"{pco2_word} {mm(g.pco2)} is near the usual ceiling of compensation", "possible")
-        return "uncertain", expected
-    if w.venous:
-        w.findings.append(
-            f"{head}, {side} the range; with a venous sample this only suggests an added {WORDS[added]}."
-        )
-        w.add(added, f"venous PCO2 {side} the range expected for the {WORDS[primary]}", "possible")
         return "uncertain", expected
     w.findings.append(f"{head}, {side} the range: an added {WORDS[added]}.")
     w.add(added, f"PaCO2 {mm(g.pco2)} is {side} the {rule} range for the {WORDS[primary]}")
@@ -238,6 +237,13 @@ def respiratory_compensation(
         rule=f"acute to chronic {word} rules",
         source=f"{sources[0]}; {sources[1]}",
     )
+    if w.venous:
+        # The rules take an arterial PaCO2; a venous PCO2 is not converted (Kelly, Emerg Med J 2016).
+        w.findings.append(
+            f"Compensation and chronicity are not assessable on a venous sample: the rules for a {word} take "
+            f"an arterial PaCO2, and the PvCO2 {mm(g.pco2)} is not converted (Bloom 2014; Kelly 2016)."
+        )
+        return "uncertain", both, ranges, "indeterminate"
     head = (
         f"Expected bicarbonate for a {word} at this PaCO2: acute {span(acute.low, acute.high, 'mmol/L')}, "
         f"chronic {span(chronic.low, chronic.high, 'mmol/L')}; measured {mmol(g.hco3)}"
@@ -255,22 +261,12 @@ def respiratory_compensation(
     else:
         added: Disorder = "metabolic_alkalosis" if g.hco3 > highest else "metabolic_acidosis"
         side = "above" if added == "metabolic_alkalosis" else "below"
-        if w.venous:
-            w.findings.append(
-                f"{head}, {side} both ranges; with a venous sample this only suggests an added "
-                f"{WORDS[added]}."
-            )
-            w.add(added, f"bicarbonate {side} the range expected for the {word}", "possible")
-            return "uncertain", both, ranges, "indeterminate"
         w.findings.append(
             f"{head}, {side} both ranges: an added {WORDS[added]}; chronicity cannot be read "
             "from the bicarbonate."
         )
         w.add(added, f"bicarbonate {mmol(g.hco3)} is {side} the compensation expected for the {word}")
         return "inappropriate", both, ranges, "indeterminate"
-    if w.venous:
-        w.findings.append(f"{head}: {verdict}, though a venous PCO2 cannot confirm it.")
-        return "uncertain", expected, ranges, chronicity
     w.findings.append(f"{head}: {verdict}; compensation is appropriate.")
     return "appropriate", expected, ranges, chronicity
 

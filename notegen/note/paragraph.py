@@ -68,7 +68,7 @@ def _with_reported_kpa(text: str, assessment: Assessment) -> str:
     if not reported:
         return text
     shown = f"{trimmed_number(reported[-1].reported_value, 2)} kPa ({_mmhg(reading.pco2)})"
-    for name in ("PaCO2", "PCO2"):
+    for name in ("PaCO2", "PvCO2", "PCO2"):
         text = text.replace(f"({name} {_mmhg(reading.pco2)},", f"({name} {shown},", 1)
         text = text.replace(f", {name} {_mmhg(reading.pco2)},", f", {name} {shown},", 1)
     return text
@@ -133,15 +133,16 @@ def _article(word: str) -> str:
 
 
 def _pco2_name(reading: AcidBaseReading) -> str:
-    return "venous PCO2" if reading.sample == "venous" else "PaCO2"
+    return "PvCO2" if reading.sample == "venous" else "PaCO2"
 
 
 def _gas_values(reading: AcidBaseReading) -> str:
     parts: list[str] = []
     if reading.ph is not None:
+        # Inside "The venous gas (...)" the pH is already named venous; the PCO2 is named PvCO2.
         parts.append(("calculated pH " if reading.ph_source == "calculated" else "pH ") + ph_text(reading.ph))
     if reading.pco2 is not None:
-        parts.append(f"{'PCO2' if reading.sample == 'venous' else 'PaCO2'} {_mmhg(reading.pco2)}")
+        parts.append(f"{_pco2_name(reading)} {_mmhg(reading.pco2)}")
     if reading.hco3 is not None:
         name = {"calculated": "calculated HCO3", "panel": "panel total CO2"}.get(reading.hco3_source or "", "HCO3")
         parts.append(f"{name} {_mmol(reading.hco3)}")
@@ -234,17 +235,12 @@ def _metabolic_primary(
             f"that {rule} predicts."
         ], False
     if reading.sample == "venous":
-        if added is not None and not expected.low <= reading.pco2 <= expected.high:
-            said.add(added)
-            return [
-                f"{gas} shows a primary {word}.",
-                f"The {pco2} is {side} the {span} that {rule} predicts, which suggests an added "
-                f"{WORDS[added]} but cannot establish one from a venous sample.",
-            ], False
+        # Never set against the arterial prediction (Bloom 2014; Kelly 2016): the reading leaves it unjudged.
         return [
             f"{gas} shows a primary {word}.",
-            f"The {pco2} would fit the {span} that {rule} predicts, but a venous PCO2 cannot confirm "
-            "compensation; an arterial gas would settle it if that matters.",
+            "Respiratory compensation is not assessable on a venous sample, since a venous PCO2 differs from "
+            "the arterial value by a few mmHg on average and far more in some patients; an arterial gas "
+            "would settle it if that matters.",
         ], False
     if added is not None and reading.pco2 < expected.low:
         said.add(added)
@@ -287,6 +283,11 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
     acute, chronic = _respiratory_ranges(reading)
     if expected is None or acute is None or chronic is None or reading.hco3 is None:
         return [f"{gas} shows a primary {word}."]
+    if reading.sample == "venous":
+        return [
+            f"{gas} shows a primary {word}; its compensation and chronicity are not assessable on a venous "
+            "sample, since the rules take an arterial PaCO2; an arterial gas would settle them if that matters."
+        ]
     both = f"the acute ({_range(acute)}) and chronic ({_range(chronic)}) ranges"
     hco3 = _mmol(reading.hco3)
     outside = not (min(acute.low, chronic.low) <= reading.hco3 <= max(acute.high, chronic.high))
@@ -294,12 +295,7 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
     if outside and added is not None:
         said.add(added)
         side = "above" if reading.hco3 > max(acute.high, chronic.high) else "below"
-        if reading.compensation == "inappropriate":
-            return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
-        return [
-            f"{gas} shows a primary {word}; the HCO3 of {hco3} is {side} {both}, which suggests an added "
-            f"{WORDS[added]} but cannot establish one from a venous sample."
-        ]
+        return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
     fits = {
         "chronic": f"with appropriate renal compensation for a chronic process (expected HCO3 {_range(chronic)} "
         f"by {_by_rule(chronic.rule)})",
@@ -309,10 +305,7 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
         "between": f"whose bicarbonate of {hco3} lies between {both}, as in a process some days old or an "
         "acute rise on a chronic one",
     }
-    text = f"{gas} shows a primary {word} {fits[reading.chronicity or 'indeterminate']}"
-    if reading.compensation == "uncertain":
-        text += "; with a venous sample this reading is provisional"
-    return [text + "."]
+    return [f"{gas} shows a primary {word} {fits[reading.chronicity or 'indeterminate']}."]
 
 
 # The anion gap ---------------------------------------------------------------------------------
