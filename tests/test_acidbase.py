@@ -468,3 +468,18 @@ def test_pco2_near_the_ceiling_of_compensation_is_not_called_an_added_respirator
     # Well below the ceiling it stays an added respiratory alkalosis.
     low = read_acid_base(Case(gas=Gas(sample="arterial", ph=7.70, pco2=45, hco3=52)))
     assert "respiratory_alkalosis" in low.disorders
+
+
+def test_the_reading_reads_the_calculations_it_is_given() -> None:
+    # One computation per value: the reading takes the gap, delta ratio and expected PaCO2 from
+    # compute_calculations rather than working them out again (a doctored gap shows it is read).
+    from notegen.acidbase.calculations import compute_calculations
+
+    case = Case(gas=_gas(24, 14), chem=Chem(na=140, cl=100, tco2=15))
+    calcs = compute_calculations(case)
+    assert read_acid_base(case).anion_gap == calcs["anion_gap"].value == 25  # old signature still works
+    doctored = {**calcs, "anion_gap": calcs["anion_gap"].model_copy(update={"value": 30.0})}
+    assert read_acid_base(case, None, doctored).anion_gap == 30
+    expected = read_acid_base(case, None, calcs).expected
+    assert expected is not None
+    assert (expected.low, expected.high) == (calcs["expected_pco2"].low, calcs["expected_pco2"].high)

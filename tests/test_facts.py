@@ -122,3 +122,15 @@ def test_chlorthalidone_taken_30_hours_ago_leaves_a_high_urine_chloride_indeterm
     assert {c.cause for c in result.differential if c.tier != "unlikely"}.isdisjoint(
         {"salt_wasting_tubulopathy"}
     )
+
+
+@pytest.mark.parametrize(
+    ("mg", "low", "severe"),
+    [(1.69, True, False), (1.7, False, False), (1.19, True, True), (1.2, True, False)],
+)
+def test_magnesium_limits_are_the_reading_s(mg: float, low: bool, severe: bool) -> None:
+    # rules/acid_base.yaml magnesium_low 1.7 mg/dL (common practice) and magnesium_low_warning 1.2 mg/dL
+    # (about 0.5 mmol/L; common practice, from memory): one pair of limits for the alerts and the pack.
+    facts = facts_of(alkalosis_case(mg=mg))
+    assert facts["mg_low"] == BooleanFact(low)
+    assert facts["mg_severe_low"] == BooleanFact(severe)

@@ -177,3 +177,51 @@ def test_a_listed_diuretic_with_its_pattern_and_no_rival_reads_likely() -> None:
         "context": {"bp": "126/70", "meds": ["furosemide"], "findings": ["edema"]},
     }
     assert tiers(assess(data))["diuretic"] == "likely"
+
+
+# --- An internally inconsistent gas -----------------------------------------------------------------------
+# Henderson-Hasselbalch (pK 6.1, S 0.0307, CLSI C46-A): PaCO2 33 and HCO3 14 give pH 7.24 against 7.20
+# reported, beyond the 0.03 tolerance (after Story, Poustie & Bellomo 2001). Winter's formula (Albert,
+# Dell & Winters 1967) predicts 27-31 mmHg, so on a consistent gas the PaCO2 33 would add a respiratory
+# acidosis; here it is only possible, and the reading says to repeat the gas first.
+
+
+def test_an_inconsistent_gas_gets_no_firm_mixed_disorder() -> None:
+    data = {
+        "case": "invented: values keyed in by hand",
+        "patient": {"age": 45, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.20, "pco2": 33, "hco3": 14},
+        "chem": {"na": 138, "cl": 110},
+    }
+    reading = assess(data).acid_base
+    assert reading.consistency == "inconsistent"
+    assert reading.primary == "metabolic_acidosis"
+    assert reading.disorders == ("metabolic_acidosis",)
+    assert "respiratory_acidosis" in reading.possible_disorders
+    assert any("repeat the gas before relying on a mixed disorder" in f for f in reading.findings)
+    from notegen.pipeline import draft
+
+    text = draft(data).text(width=1000)
+    assert "with an added respiratory acidosis" not in text
+    assert "would add a respiratory acidosis if a repeat gas confirms these values" in text
+
+
+# --- Other critical values in the case --------------------------------------------------------------------
+# Common practice (laboratories set their own critical values): sodium below 125 or above 155 mmol/L,
+# glucose below 54 or above 500 mg/dL, potassium at both ends; thresholds in rules/acid_base.yaml.
+
+
+def _alerts_for(chem: dict[str, float]) -> set[str]:
+    return alert_codes(assess({"case": "invented: critical values", "patient": {"age": 50}, "chem": chem}))
+
+
+def test_critical_sodium_glucose_and_potassium_are_flagged_at_both_ends() -> None:
+    assert "severe_hyponatremia" in _alerts_for({"na": 124})
+    assert "severe_hyponatremia" not in _alerts_for({"na": 125})
+    assert "severe_hypernatremia" in _alerts_for({"na": 156})
+    assert "severe_hypernatremia" not in _alerts_for({"na": 155})
+    assert "hypoglycemia" in _alerts_for({"glucose": 50})
+    assert "hypoglycemia" not in _alerts_for({"glucose": 54})
+    assert "severe_hyperglycemia" in _alerts_for({"glucose": 620})
+    assert "severe_hypokalemia" in _alerts_for({"k": 2.4})
+    assert "severe_hyperkalemia" in _alerts_for({"k": 6.6})

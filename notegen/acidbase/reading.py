@@ -308,6 +308,8 @@ def read_acid_base(
         alkalemic=ph_status == "alkalemia",
         venous=w.venous,
     )
+    if consistency == "inconsistent":
+        _provisional(w, primary)
     ordered = sorted(w.bases, key=lambda b: b.disorder != primary)  # stable: primary first, then as found
     return AcidBaseReading(
         sample=g.sample,
@@ -343,6 +345,20 @@ def read_acid_base(
         missing=tuple(w.missing),
         alerts=tuple(w.alerts),
         findings=tuple(w.findings),
+    )
+
+
+def _provisional(w: ReadingDraft, primary: Primary) -> None:
+    """An internally inconsistent gas gets no firm mixed disorder: every added disorder is only possible."""
+    added = [b for b in w.bases if b.disorder != primary and b.certainty == "established"]
+    if not added:
+        return
+    w.bases = [
+        DisorderBasis(disorder=b.disorder, certainty="possible", basis=b.basis) if b in added else b for b in w.bases
+    ]
+    w.findings.append(
+        "Because the gas values do not agree, any added disorder is provisional: repeat the gas before "
+        "relying on a mixed disorder."
     )
 
 

@@ -228,6 +228,12 @@ def _metabolic_primary(
         return [
             f"{gas} shows a primary {word} with appropriate respiratory compensation (expected PaCO2 {span} by {rule})."
         ], False
+    if reading.compensation == "inappropriate" and added is not None and added not in reading.disorders:
+        said.add(added)  # only possible: the gas is internally inconsistent
+        return [
+            f"{gas} shows a primary {word}; the {pco2} is {side} the {span} that {rule} predicts, which "
+            f"would add a {WORDS[added]} if a repeat gas confirms these values."
+        ], False
     if reading.compensation == "inappropriate" and added is not None:
         said.add(added)
         return [
@@ -295,6 +301,11 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
     if outside and added is not None:
         said.add(added)
         side = "above" if reading.hco3 > max(acute.high, chronic.high) else "below"
+        if added not in reading.disorders:  # only possible: the gas is internally inconsistent
+            return [
+                f"{gas} shows a primary {word}; the HCO3 of {hco3} is {side} {both}, which would add a "
+                f"{WORDS[added]} if a repeat gas confirms these values."
+            ]
         return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
     fits = {
         "chronic": f"with appropriate renal compensation for a chronic process (expected HCO3 {_range(chronic)} "

@@ -217,6 +217,12 @@ def derive_facts(
         facts["bp_reading"] = TextFact(f"{context.bp.systolic}/{context.bp.diastolic} mmHg")
     else:
         facts["systolic_bp"] = facts["diastolic_bp"] = facts["bp_reading"] = MissingFact()
+    if chem.mg is not None:
+        # The reading's own limits (rules/acid_base.yaml), so each is defined once.
+        facts["mg_low"] = BooleanFact(chem.mg < s.magnesium_low.value)
+        facts["mg_severe_low"] = BooleanFact(chem.mg < s.magnesium_low_warning.value)
+    else:
+        facts["mg_low"] = facts["mg_severe_low"] = MissingFact()
     high_calcium = hypercalcemia(case, s)
     facts["hypercalcemia"] = (
         BooleanFact(high_calcium) if high_calcium is not None else MissingFact("no calcium measured")
