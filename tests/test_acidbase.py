@@ -483,3 +483,27 @@ def test_the_reading_reads_the_calculations_it_is_given() -> None:
     expected = read_acid_base(case, None, calcs).expected
     assert expected is not None
     assert (expected.low, expected.high) == (calcs["expected_pco2"].low, calcs["expected_pco2"].high)
+
+
+@pytest.mark.parametrize(
+    ("pco2", "hco3", "added", "established"),
+    [
+        # Winter's formula (Albert, Dell & Winters 1967): HCO3 12 -> 24-28 mmHg.
+        (29.5, 12, "respiratory_acidosis", False),  # 1.5 above the range: within the 2 mmHg edge margin
+        (31, 12, "respiratory_acidosis", True),  # 3 above: an added respiratory acidosis
+        (22.5, 12, "respiratory_alkalosis", False),
+        # 0.7 rule (Berend 2014): HCO3 34 -> 45-49; another published form, 0.7 x HCO3 + 20 +/- 5
+        # (Kidney360 2022;3:1458, Table 3), gives 38.8-48.8.
+        (41, 34, "respiratory_alkalosis", False),  # outside the first, inside the second
+        (37, 34, "respiratory_alkalosis", True),  # outside both and beyond the margin
+    ],
+    ids=["winters-1.5-above", "winters-3-above", "winters-1.5-below", "alkalosis-other-form", "alkalosis-outside-both"],
+)
+def test_compensation_at_the_edge_of_the_rule_is_only_possible(
+    pco2: float, hco3: float, added: str, established: bool
+) -> None:
+    # Published forms of each rule differ by a few mmHg (shared/CLINICAL.md); the 2 mmHg margin is common practice.
+    r = read_acid_base(Case(gas=_gas(pco2, hco3)))
+    assert (added in r.disorders) is established
+    assert (added in r.possible_disorders) is (not established)
+    assert r.compensation == ("inappropriate" if established else "uncertain")

@@ -180,9 +180,9 @@ def test_a_listed_diuretic_with_its_pattern_and_no_rival_reads_likely() -> None:
 
 
 # --- An internally inconsistent gas -----------------------------------------------------------------------
-# Henderson-Hasselbalch (pK 6.1, S 0.0307, CLSI C46-A): PaCO2 33 and HCO3 14 give pH 7.24 against 7.20
+# Henderson-Hasselbalch (pK 6.1, S 0.0307, CLSI C46-A): PaCO2 36 and HCO3 14 give pH 7.20 against 7.14
 # reported, beyond the 0.03 tolerance (after Story, Poustie & Bellomo 2001). Winter's formula (Albert,
-# Dell & Winters 1967) predicts 27-31 mmHg, so on a consistent gas the PaCO2 33 would add a respiratory
+# Dell & Winters 1967) predicts 27-31 mmHg, so on a consistent gas the PaCO2 36 would add a respiratory
 # acidosis; here it is only possible, and the reading says to repeat the gas first.
 
 
@@ -190,7 +190,7 @@ def test_an_inconsistent_gas_gets_no_firm_mixed_disorder() -> None:
     data = {
         "case": "invented: values keyed in by hand",
         "patient": {"age": 45, "sex": "male"},
-        "gas": {"sample": "arterial", "ph": 7.20, "pco2": 33, "hco3": 14},
+        "gas": {"sample": "arterial", "ph": 7.14, "pco2": 36, "hco3": 14},
         "chem": {"na": 138, "cl": 110},
     }
     reading = assess(data).acid_base

@@ -21,6 +21,9 @@ Primary = Literal[
     "undetermined",
 ]
 CompensationStatus = Literal["appropriate", "inappropriate", "uncertain", "not_applicable"]
+# Why a PaCO2 outside the expected range adds a respiratory disorder only as possible: within the edge
+# margin, inside another published form of the rule, or where the rule runs past the usual ceiling.
+CompensationEdge = Literal["near_edge", "other_form", "ceiling"]
 # "indeterminate": the acute and chronic ranges overlap at this PaCO2, or a second metabolic
 # disorder moves the bicarbonate so that chronicity cannot be read from it.
 Chronicity = Literal["acute", "chronic", "between", "indeterminate"]
@@ -94,6 +97,7 @@ class AcidBaseReading(BaseModel):
     disorder_basis: tuple[DisorderBasis, ...]
 
     compensation: CompensationStatus
+    compensation_edge: CompensationEdge | None = None
     expected: ExpectedRange | None
     expected_alternatives: tuple[ExpectedRange, ...]  # acute and chronic ranges of a respiratory primary
     chronicity: Chronicity | None

@@ -328,6 +328,7 @@ def read_acid_base(
         possible_disorders=tuple(b.disorder for b in ordered if b.certainty == "possible"),
         disorder_basis=tuple(ordered),
         compensation=compensation,
+        compensation_edge=w.edge,
         expected=expected,
         expected_alternatives=alternatives,
         chronicity=chronicity,

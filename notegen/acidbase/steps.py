@@ -28,6 +28,7 @@ from notegen.acidbase.formulas import (
 from notegen.acidbase.model import (
     Certainty,
     Chronicity,
+    CompensationEdge,
     CompensationStatus,
     DeltaRatioVerdict,
     Disorder,
@@ -77,6 +78,7 @@ class ReadingDraft:
     venous: bool
     calcs: Mapping[str, Calculation] = field(default_factory=dict)  # the case's compute_calculations
     gas_panel_checked: bool = False
+    edge: CompensationEdge | None = None  # why an added respiratory disorder is only possible
     gas_panel_disagree: bool = False  # the panel total CO2 is not the one the gas predicts
     findings: list[str] = field(default_factory=list)
     missing: list[str] = field(default_factory=list)
@@ -167,6 +169,7 @@ def metabolic_compensation(
                 "uncommon (Galla 2000); an added respiratory acidosis is possible."
             )
             w.add("respiratory_acidosis", f"{pco2_word} above the usual ceiling of compensation", "possible")
+            w.edge = "ceiling"
             return "uncertain", expected
         w.findings.append(f"{head}: compensation is appropriate.")
         return "appropriate", expected
@@ -177,14 +180,44 @@ def metabolic_compensation(
         # The 0.7 rule runs past what ventilation usually delivers (about 55 mmHg, Galla 2000): a PaCO2
         # near that ceiling may be maximal compensation rather than an added respiratory alkalosis.
         w.findings.append(
-            f"{head}, {side} the range, but near the usual ceiling of compensation (about {mm(ceiling)}, "
-            "Galla 2000); an added respiratory alkalosis is possible, not established."
+            f"{head}, {side} the range, but the rule runs past the usual ceiling of compensation (about "
+            f"{mm(ceiling)}, Galla 2000) and the PaCO2 is near it; an added respiratory alkalosis is possible, "
+            "not established."
         )
         w.add(added, f"{pco2_word} {mm(g.pco2)} is near the usual ceiling of compensation", "possible")
+        w.edge = "ceiling"
+        return "uncertain", expected
+    edge = _at_the_edge(primary, g.pco2, g.hco3, est, w)
+    if edge is not None:
+        w.findings.append(f"{head}, {side} the range but {edge}; an added {WORDS[added]} is possible, not established.")
+        w.add(added, f"PaCO2 {mm(g.pco2)} is just {side} the {rule} range for the {WORDS[primary]}", "possible")
         return "uncertain", expected
     w.findings.append(f"{head}, {side} the range: an added {WORDS[added]}.")
     w.add(added, f"PaCO2 {mm(g.pco2)} is {side} the {rule} range for the {WORDS[primary]}")
     return "inappropriate", expected
+
+
+def _at_the_edge(primary: Disorder, pco2: float, hco3: float, est: Estimate, w: ReadingDraft) -> str | None:
+    """Why a PaCO2 just outside the expected range leaves an added disorder only possible, or None.
+
+    Published forms of each rule differ by a few mmHg (shared/CLINICAL.md): within the edge margin of
+    the range, or inside another published form's range, the added disorder is not established.
+    """
+    s = w.s
+    margin = s.compensation_edge_margin.value
+    if est.low - margin - EPS <= pco2 <= est.high + margin + EPS:
+        w.edge = "near_edge"
+        return f"within {mm(margin)} of its edge, where published forms of the rule differ"
+    if primary == "metabolic_alkalosis":
+        alt = s.alkalosis_pco2_slope.value * hco3 + s.alkalosis_pco2_alt_intercept.value
+        tol = s.alkalosis_pco2_alt_tolerance.value
+        if alt - tol - EPS <= pco2 <= alt + tol + EPS:
+            w.edge = "other_form"
+            return (
+                f"inside the {span(alt - tol, alt + tol, 'mmHg')} of another published form "
+                f"(0.7 x HCO3 + {format_value(s.alkalosis_pco2_alt_intercept.value)} +/- {format_value(tol)})"
+            )
+    return None
 
 
 def respiratory_compensation(

@@ -68,6 +68,9 @@ class AcidBaseSettings(BaseModel):
     alkalosis_pco2_slope: Setting
     alkalosis_pco2_tolerance: Setting
     alkalosis_pco2_ceiling: Setting
+    alkalosis_pco2_alt_intercept: Setting
+    alkalosis_pco2_alt_tolerance: Setting
+    compensation_edge_margin: Setting
     resp_acidosis_acute_slope: Setting
     resp_acidosis_chronic_slope: Setting
     resp_alkalosis_acute_slope: Setting

@@ -248,6 +248,17 @@ def _metabolic_primary(
             "the arterial value by a few mmHg on average and far more in some patients; an arterial gas "
             "would settle it if that matters.",
         ], False
+    if added is not None and reading.compensation_edge in ("near_edge", "other_form"):
+        said.add(added)
+        why = (
+            "only just, where published forms of the rule differ"
+            if reading.compensation_edge == "near_edge"
+            else "inside the range another published form of the rule gives"
+        )
+        return [
+            f"{gas} shows a primary {word}; the {pco2} is {side} the {span} that {rule} predicts, but {why}, "
+            f"so an added {WORDS[added]} is possible, not established."
+        ], False
     if added is not None and reading.pco2 < expected.low:
         said.add(added)
         # Below a range that runs past what ventilation usually delivers (about 55 mmHg, Galla 2000).
