@@ -225,3 +225,72 @@ def test_critical_sodium_glucose_and_potassium_are_flagged_at_both_ends() -> Non
     assert "severe_hyperglycemia" in _alerts_for({"glucose": 620})
     assert "severe_hypokalemia" in _alerts_for({"k": 2.4})
     assert "severe_hyperkalemia" in _alerts_for({"k": 6.6})
+
+
+# --- Citrate ------------------------------------------------------------------------------------------------
+# Galla, JASN 2000;11:369: citrate in blood products is metabolised to bicarbonate; an alkalosis follows
+# about 8-10 or more units (the count is from memory), or plasma exchange.
+
+
+def test_the_number_of_citrated_units_given_is_evidence_of_an_alkali_load() -> None:
+    data = {
+        "case": "invented: day after a massive transfusion for a bleeding ulcer",
+        "patient": {"age": 66, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.49, "pco2": 46, "hco3": 34},
+        "chem": {"na": 139, "k": 3.8, "cl": 98, "tco2": 35, "creatinine": 1.0, "albumin": 3.5, "ca": 8.6},
+        "context": {"bp": "118/66", "blood_product_units": 12},
+    }
+    assessment = assess(data)
+    cause = next(c for c in assessment.differential if c.cause == "alkali_load")
+    assert "citrate_units" in {e.id for e in cause.supporting}
+    assert cause.tier == "likely"
+    fewer = assess({**data, "context": {"bp": "118/66", "blood_product_units": 2}})
+    assert tiers(fewer)["alkali_load"] == "unlikely"
+
+
+def test_blood_product_units_must_be_a_whole_number() -> None:
+    import pytest
+
+    from notegen.errors import CaseValueError
+
+    with pytest.raises(CaseValueError, match="not a whole number of units"):
+        validate_case({"context": {"blood_product_units": 2.5}})
+
+
+# --- Covert vomiting and covert diuretic use --------------------------------------------------------------
+# Luke & Galla, JASN 2012;23:204 (details from memory): a low urine chloride with sodium or potassium carried
+# out in an alkaline urine is the bicarbonaturia of recent gastric loss, even when vomiting is denied; a
+# urine diuretic screen tests the alternative, as it does for a urine chloride that swings with no diuretic.
+
+COVERT_VOMITING: dict[str, Any] = {
+    "case": "invented: young woman, denies vomiting, dental erosions",
+    "patient": {"age": 23, "sex": "female", "weight_kg": 50},
+    "gas": {"sample": "arterial", "ph": 7.50, "pco2": 47, "hco3": 36},
+    "chem": {"na": 137, "k": 2.9, "cl": 90, "tco2": 37, "creatinine": 0.7, "albumin": 4.2, "ca": 9.6},
+    "urine": {"na": 48, "k": 38, "cl": 9, "ph": 7.6, "creatinine": 80},
+    "context": {"bp": "100/62"},
+}
+
+
+def test_bicarbonaturia_makes_gastric_loss_likely_though_vomiting_is_denied() -> None:
+    assessment = assess(COVERT_VOMITING)
+    assert tiers(assessment)["gastric_loss"] == "likely"
+    why = {t.test: t.why for t in assessment.next_tests}
+    assert "careful history for vomiting" in why["urine_diuretic_screen"]
+
+
+def test_a_swinging_urine_chloride_with_no_diuretic_listed_calls_for_a_screen() -> None:
+    data = {
+        "case": "invented: recurrent alkalosis, no diuretic prescribed",
+        "patient": {"age": 39, "sex": "female"},
+        "gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 33},
+        "chem": {"na": 138, "k": 3.1, "cl": 95, "tco2": 34, "creatinine": 0.7, "albumin": 4.1, "ca": 9.5},
+        "urine": [
+            {"taken_at": "2026-05-02T08:00", "na": 15, "cl": 11, "creatinine": 90},
+            {"taken_at": "2026-05-03T08:00", "na": 110, "cl": 96, "creatinine": 50},
+        ],
+        "context": {"bp": "104/66"},
+    }
+    assessment = assess(data)
+    assert "urine_diuretic_screen" in {t.test for t in assessment.next_tests}
+    assert tiers(assessment)["diuretic"] in ("likely", "possible")

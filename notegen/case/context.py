@@ -24,7 +24,18 @@ from notegen.case.model import BloodPressure, Context, Medication, Patient
 from notegen.knowledge import vocabulary as vocab
 
 PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
-CONTEXT_KEYS = ("bp", "volume", "meds", "findings", "renin", "aldosterone", "diuretic_screen", "cortisol_excess")
+CONTEXT_KEYS = (
+    "bp",
+    "volume",
+    "meds",
+    "findings",
+    "renin",
+    "aldosterone",
+    "diuretic_screen",
+    "cortisol_excess",
+    "blood_product_units",
+)
+MAX_BLOOD_PRODUCT_UNITS = 500
 LEVEL_WORDS = {
     "low": "low",
     "suppressed": "low",
@@ -193,6 +204,14 @@ def validate_context(raw: Any, col: _Collector) -> Context:
             continue
         elif key == "bp":
             values["bp"] = _blood_pressure(item, col)
+        elif key == "blood_product_units":
+            whole = isinstance(item, int) and not isinstance(item, bool)
+            if not whole or not 0 <= item <= MAX_BLOOD_PRODUCT_UNITS:
+                col.problem(
+                    path, f"{_shown(item)} is not a whole number of units from 0 to {MAX_BLOOD_PRODUCT_UNITS}"
+                )
+            else:
+                values["blood_product_units"] = item
         elif key in WORD_FIELDS:
             table, expected = WORD_FIELDS[key]
             word = item if isinstance(item, bool) and key == "cortisol_excess" else table.get(str(item).strip().lower())

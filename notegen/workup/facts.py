@@ -37,6 +37,7 @@ FINDINGS = (
     "chronic_co2_retention",
     "ventilatory_support",
     "transfusion",
+    "plasma_exchange",
     "hypertension",
     "heart_failure",
     "cirrhosis",
@@ -177,6 +178,8 @@ def derive_facts(
     facts: dict[str, Fact] = {
         "urine_cl": _number(case, "urine.cl", urine.cl, "mmol/L"),
         "urine_na": _number(case, "urine.na", urine.na, "mmol/L"),
+        "urine_k": _number(case, "urine.k", urine.k, "mmol/L"),
+        "urine_ph": _number(case, "urine.ph", urine.ph, ""),
         "k": _number(case, "chem.k", chem.k, "mmol/L"),
         "mg": _number(case, "chem.mg", chem.mg, "mg/dL"),
         "hco3": NumberFact(reading.hco3, "mmol/L") if reading.hco3 is not None else MissingFact("no bicarbonate"),
@@ -228,6 +231,8 @@ def derive_facts(
         BooleanFact(high_calcium) if high_calcium is not None else MissingFact("no calcium measured")
     )
     facts.update(urine_chloride_range(case))
+    units = context.blood_product_units
+    facts["blood_product_units"] = NumberFact(float(units), "units") if units is not None else MissingFact()
     facts["volume"] = TextFact(context.volume) if context.volume != "unknown" else MissingFact()
     for finding in FINDINGS:
         facts[finding] = BooleanFact(finding in context.findings)
