@@ -193,14 +193,15 @@ def test_chronic_co2_retention_is_not_called_a_metabolic_alkalosis() -> None:
 
 
 def test_ketoacidosis_hides_an_alkalosis() -> None:
-    # Delta ratio (28 - 12) / (24 - 22) = 8 (Rastegar, JASN 2007): above 2, a concurrent alkalosis.
-    # Winter's formula (Albert, Dell & Winters 1967): 1.5 x 22 + 8 = 41 +/- 2.
+    # On the panel total CO2 23 (Kraut & Madias 2007): gap 27, delta gap 15 over a bicarbonate fall of 1; the
+    # ratio over so small a fall is unstable (Rastegar, JASN 2007), so the two changes are given instead.
+    # Winter's formula (Albert, Dell & Winters 1967) on the gas HCO3: 1.5 x 22 + 8 = 41 +/- 2.
     assert draft_paragraph(worked_up(sample("ketoacidosis_with_vomiting"))) == (
         "The arterial gas (pH 7.35, PaCO2 40 mmHg, HCO3 22 mmol/L) looks close to normal, but the "
         "albumin-corrected anion gap of 27 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
         "acidosis. The PaCO2 of 40 mmHg fits the 39–43 mmHg that Winter's formula predicts. "
-        "The delta ratio of 15.0 shows that the bicarbonate has fallen far less than the gap has risen, which "
-        "points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
+        "The gap has risen by 15 mmol/L while the bicarbonate has barely fallen, which points to a "
+        "concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
         "draft."
     )
 

@@ -369,8 +369,9 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
         sentences.append(text + ".")
     elif reading.anion_gap_status == "normal" and used < reading.anion_gap_reference[0]:
         sentences.append(
-            f"The {adjective}anion gap is below the reference range at {_mmol(used)} ({reference}); a "
-            "laboratory error is worth excluding."
+            f"The {adjective}anion gap is below the reference range at {_mmol(used)} ({reference}); "
+            "unmeasured cations (a high calcium or magnesium, lithium, a paraprotein) or a laboratory error "
+            "would explain it."
         )
     elif reading.anion_gap_status == "normal":
         if reading.primary == "metabolic_acidosis":
@@ -402,6 +403,13 @@ def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
             return [
                 "The bicarbonate has not fallen although the gap is high, which points to a concurrent "
                 f"metabolic alkalosis{other}."
+            ]
+        fall = reading.delta_gap / ratio if reading.delta_gap is not None and ratio > 0 else None
+        if fall is not None and fall < 2:
+            # A ratio over a fall of 1-2 mmol/L is unstable (Rastegar 2007): give the two changes instead.
+            return [
+                f"The gap has risen by {_mmol(reading.delta_gap or 0)} while the bicarbonate has barely fallen, "
+                f"which points to a concurrent metabolic alkalosis{other}."
             ]
         return [
             f"{shown} shows that the bicarbonate has fallen far less than the gap has risen, which points to "
