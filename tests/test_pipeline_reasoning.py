@@ -286,8 +286,8 @@ def test_a_swinging_urine_chloride_with_no_diuretic_listed_calls_for_a_screen() 
         "gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 33},
         "chem": {"na": 138, "k": 3.1, "cl": 95, "tco2": 34, "creatinine": 0.7, "albumin": 4.1, "ca": 9.5},
         "urine": [
-            {"taken_at": "2026-05-02T08:00", "na": 15, "cl": 11, "creatinine": 90},
-            {"taken_at": "2026-05-03T08:00", "na": 110, "cl": 96, "creatinine": 50},
+            {"taken_at": "2026-05-02T08:00", "na": 110, "cl": 96, "creatinine": 50},
+            {"taken_at": "2026-05-03T08:00", "na": 15, "cl": 11, "creatinine": 90},
         ],
         "context": {"bp": "104/66"},
     }
