@@ -74,12 +74,14 @@ class Drafter:
             self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
             self.acidosis_pack  # noqa: B018
         calculations = compute_calculations(case, self.settings)
-        reading = read_acid_base(case, self.settings)
+        reading = read_acid_base(case, self.settings, calculations)
         rules = None
         if _alkalosis_to_work_up(reading):
             from notegen.workup.alkalosis import evaluate_alkalosis
 
-            rules = evaluate_alkalosis(case, reading, self.alkalosis_pack, calculations=calculations, explain=explain)
+            rules = evaluate_alkalosis(
+                case, reading, self.alkalosis_pack, calculations=calculations, explain=explain, settings=self.settings
+            )
         acidosis = None
         if _acidosis_to_work_up(reading):
             from notegen.acidbase.calculations import urine_gap_calculations

@@ -214,6 +214,10 @@ def case_schema() -> dict[str, Any]:
                             _words(sorted(LEVEL_WORDS), "low, normal or high against the lab's range")
                         ),
                         "diuretic_screen": _nullable(_words(sorted(SCREEN_WORDS), "urine diuretic screen result")),
+                        "blood_product_units": {
+                            "description": "Units of citrated blood products (red cells, plasma) given recently.",
+                            "anyOf": [{"type": "integer", "minimum": 0, "maximum": 500}, {"type": "null"}],
+                        },
                         "cortisol_excess": {
                             "description": "Result of an evaluation for cortisol excess (yes or no).",
                             "anyOf": [{"type": "boolean"}, _words(sorted(YES_NO), "yes or no"), {"type": "null"}],

@@ -10,6 +10,8 @@ from notegen.case.model import BloodPressure, Case, Chem, Context, Gas, Measurem
 CLASSES = {
     "furosemide": ("loop_diuretic",),
     "hydrochlorothiazide": ("thiazide_diuretic",),
+    "chlorthalidone": ("thiazide_diuretic",),
+    "calcium carbonate": ("alkali", "calcium_salt"),
     "fludrocortisone": ("mineralocorticoid",),
     "licorice": ("glycyrrhizin",),
     "sodium bicarbonate": ("alkali",),

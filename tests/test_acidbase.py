@@ -281,16 +281,24 @@ def test_gas_panel_mismatch() -> None:
     assert "gas_panel_mismatch" not in _codes(read_acid_base(Case(gas=_gas(40, 24), chem=Chem(tco2=26))))
 
 
-def test_venous_gas_softens_the_verdict() -> None:
-    # Berend 2014: HCO3 37 -> 49.1 (47.1-51.1); venous PCO2 52 above it: only a possible respiratory acidosis.
+def test_venous_pco2_is_never_set_against_the_arterial_prediction() -> None:
+    # Berend 2014: HCO3 37 -> 49.1 (47.1-51.1) for arterial blood. A venous PCO2 runs a few mmHg above the
+    # arterial value with limits of agreement -20 to +26 mmHg (Bloom et al., Eur J Emerg Med 2014; Kelly,
+    # Emerg Med J 2016), so a PvCO2 of 52 neither establishes nor suggests an added respiratory acidosis:
+    # compensation is "not assessable on a venous sample".
     r = read_acid_base(Case(gas=_gas(52, 37, sample="venous"), chem=Chem(na=138, cl=90)))
     assert r.sample == "venous"
     assert r.primary == "metabolic_alkalosis"
     assert r.compensation == "uncertain"
     assert r.disorders == ("metabolic_alkalosis",)
-    assert r.possible_disorders == ("respiratory_acidosis",)
+    assert r.possible_disorders == ()
     text = " ".join(r.findings)
     assert "Bloom 2014" in text and "no adjustment" in text
+    assert "not assessable on a venous sample" in text and "PvCO2 52 mmHg" in text
+    # The respiratory rules take an arterial PaCO2 too: neither compensation nor chronicity is read.
+    resp = read_acid_base(Case(gas=_gas(70, 27, sample="venous")))
+    assert resp.primary == "respiratory_acidosis"
+    assert (resp.compensation, resp.chronicity, resp.possible_disorders) == ("uncertain", "indeterminate", ())
 
 
 def test_venous_gas_low_pco2_screen() -> None:
@@ -460,3 +468,42 @@ def test_pco2_near_the_ceiling_of_compensation_is_not_called_an_added_respirator
     # Well below the ceiling it stays an added respiratory alkalosis.
     low = read_acid_base(Case(gas=Gas(sample="arterial", ph=7.70, pco2=45, hco3=52)))
     assert "respiratory_alkalosis" in low.disorders
+
+
+def test_the_reading_reads_the_calculations_it_is_given() -> None:
+    # One computation per value: the reading takes the gap, delta ratio and expected PaCO2 from
+    # compute_calculations rather than working them out again (a doctored gap shows it is read).
+    from notegen.acidbase.calculations import compute_calculations
+
+    case = Case(gas=_gas(24, 14), chem=Chem(na=140, cl=100, tco2=15))
+    calcs = compute_calculations(case)
+    assert read_acid_base(case).anion_gap == calcs["anion_gap"].value == 25  # old signature still works
+    doctored = {**calcs, "anion_gap": calcs["anion_gap"].model_copy(update={"value": 30.0})}
+    assert read_acid_base(case, None, doctored).anion_gap == 30
+    expected = read_acid_base(case, None, calcs).expected
+    assert expected is not None
+    assert (expected.low, expected.high) == (calcs["expected_pco2"].low, calcs["expected_pco2"].high)
+
+
+@pytest.mark.parametrize(
+    ("pco2", "hco3", "added", "established"),
+    [
+        # Winter's formula (Albert, Dell & Winters 1967): HCO3 12 -> 24-28 mmHg.
+        (29.5, 12, "respiratory_acidosis", False),  # 1.5 above the range: within the 2 mmHg edge margin
+        (31, 12, "respiratory_acidosis", True),  # 3 above: an added respiratory acidosis
+        (22.5, 12, "respiratory_alkalosis", False),
+        # 0.7 rule (Berend 2014): HCO3 34 -> 45-49; another published form, 0.7 x HCO3 + 20 +/- 5
+        # (Kidney360 2022;3:1458, Table 3), gives 38.8-48.8.
+        (41, 34, "respiratory_alkalosis", False),  # outside the first, inside the second
+        (37, 34, "respiratory_alkalosis", True),  # outside both and beyond the margin
+    ],
+    ids=["winters-1.5-above", "winters-3-above", "winters-1.5-below", "alkalosis-other-form", "alkalosis-outside-both"],
+)
+def test_compensation_at_the_edge_of_the_rule_is_only_possible(
+    pco2: float, hco3: float, added: str, established: bool
+) -> None:
+    # Published forms of each rule differ by a few mmHg (shared/CLINICAL.md); the 2 mmHg margin is common practice.
+    r = read_acid_base(Case(gas=_gas(pco2, hco3)))
+    assert (added in r.disorders) is established
+    assert (added in r.possible_disorders) is (not established)
+    assert r.compensation == ("inappropriate" if established else "uncertain")

@@ -223,9 +223,10 @@ def test_compute_calculations_returns_every_named_calculation() -> None:
         assert name in calcs, name
         assert calcs[name].source, name
         assert calcs[name].formula, name
-    assert "delta_ratio" not in calcs  # bicarbonate 36 has not fallen
-    assert calcs["anion_gap"].value == pytest.approx(19)
-    assert calcs["anion_gap_corrected"].value == pytest.approx(24)
+    assert "delta_ratio" not in calcs  # bicarbonate 37 has not fallen
+    # The panel total CO2 37, not the gas HCO3 36 (Kraut & Madias, CJASN 2007;2:162): 140 - (85 + 37).
+    assert calcs["anion_gap"].value == pytest.approx(18)
+    assert calcs["anion_gap_corrected"].value == pytest.approx(23)
     assert calcs["egfr"].value == pytest.approx(71.4, abs=0.05)
     assert "steady state" in (calcs["egfr"].note or "")
     assert calcs["chloride_deficit"].value == pytest.approx(210)
@@ -236,7 +237,15 @@ def test_compute_calculations_returns_every_named_calculation() -> None:
 
 
 def test_gap_bicarbonate_source_is_stated() -> None:
-    with_gas = compute_calculations(Case(gas=Gas(hco3=20, pco2=35), chem=Chem(na=140, cl=100, tco2=22)))
+    # Anion-gap reference ranges were set with the panel's measured total CO2, so it is used when
+    # given (Kraut & Madias, CJASN 2007;2:162; Winter et al., Arch Intern Med 1990); the gas HCO3 only
+    # without one. Compensation still reads the gas bicarbonate.
+    with_both = compute_calculations(Case(gas=Gas(hco3=20, pco2=35), chem=Chem(na=140, cl=100, tco2=22)))
+    assert "HCO3 (panel total CO2)" in with_both["anion_gap"].inputs
+    assert with_both["anion_gap"].value == 18
+    assert "HCO3 (gas bicarbonate)" in with_both["expected_pco2"].inputs
+    assert with_both["expected_pco2"].value == pytest.approx(38)  # Winter's formula, 1.5 x 20 + 8
+    with_gas = compute_calculations(Case(gas=Gas(hco3=20, pco2=35), chem=Chem(na=140, cl=100)))
     assert "HCO3 (gas bicarbonate)" in with_gas["anion_gap"].inputs
     assert with_gas["anion_gap"].value == 20
     panel_only = compute_calculations(Case(chem=Chem(na=140, cl=100, tco2=22)))

@@ -47,6 +47,7 @@ def test_shipped_pack_passes_its_checks() -> None:
     assert {c.id for c in pack.causes} == {
         "gastric_loss", "diuretic", "mineralocorticoid_excess", "alkali_load", "reduced_gfr",
         "post_hypercapnia", "salt_wasting_tubulopathy", "chloride_losing_diarrhea", "potassium_magnesium_depletion",
+        "calcium_alkali",
     }  # fmt: skip
     assert {"volume_contraction", "hypokalemia", "reduced_gfr", "mineralocorticoid_activity"} <= {
         f.id for f in pack.factors if f.group == "maintenance"
@@ -205,7 +206,9 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
         # Renal or extrarenal potassium loss matters on the normotensive resistant side, not after vomiting.
         ({"urine_cl": 10, "k": 3.0, "findings": ("vomiting",)}, None, None, ["urine_potassium_creatinine"]),
         (
-            {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50},
+            # Not alkalemic: whether the PaCO2 is still high decides between compensation and alkalosis
+            # (Berend, de Vries & Gans, NEJM 2014); when alkalemic, the answer would not change the tier.
+            {"urine_cl": 12, "findings": ("corrected_hypercapnia",), "sample": "venous", "pco2": 50, "ph": 7.44},
             None,
             "repeat_gas",
             [],
@@ -375,7 +378,7 @@ SAMPLE_LEADS: dict[str, set[str] | None] = {
     "loop_diuretic_heart_failure": {"diuretic"},
     "gastric_suction": {"gastric_loss"},
     "hypertension_low_potassium": {"mineralocorticoid_excess"},
-    "alkali_kidney_disease": {"alkali_load"},
+    "alkali_kidney_disease": {"alkali_load", "calcium_alkali"},  # calcium carbonate, corrected Ca 11.6, eGFR 15
     "chronic_co2_retention": None,
     "ketoacidosis_with_vomiting": {"gastric_loss"},
     "venous_si_units": {"gastric_loss"},

@@ -59,10 +59,13 @@ def test_findings_not_listed_are_not_reported() -> None:
     ("meds", "acting", "listed"),
     [
         ((), BooleanFact(False), BooleanFact(False)),
-        ((med("furosemide", 6),), BooleanFact(True), BooleanFact(True)),  # loop window 6 h, common practice
+        # Each drug's own duration of effect (rules/vocabulary/medications.yaml; drug labels, from memory):
+        ((med("furosemide", 6),), BooleanFact(True), BooleanFact(True)),  # furosemide about 6 h
         ((med("furosemide", 6.5),), BooleanFact(False), BooleanFact(True)),
-        ((med("hydrochlorothiazide", 24),), BooleanFact(True), BooleanFact(True)),  # thiazide 24 h, common practice
-        ((med("hydrochlorothiazide", 30),), BooleanFact(False), BooleanFact(True)),
+        ((med("hydrochlorothiazide", 12),), BooleanFact(True), BooleanFact(True)),  # hydrochlorothiazide 6-12 h
+        ((med("hydrochlorothiazide", 13),), BooleanFact(False), BooleanFact(True)),
+        ((med("chlorthalidone", 30),), BooleanFact(True), BooleanFact(True)),  # chlorthalidone 48-72 h
+        ((med("chlorthalidone", 73),), BooleanFact(False), BooleanFact(True)),
         ((med("furosemide"),), MissingFact("no last-dose time for furosemide"), BooleanFact(True)),
         ((med("furosemide"), med("hydrochlorothiazide", 3)), BooleanFact(True), BooleanFact(True)),
         (
@@ -71,7 +74,18 @@ def test_findings_not_listed_are_not_reported() -> None:
             MissingFact("unrecognised medication: mystery pill"),
         ),
     ],
-    ids=["none", "loop-6h", "loop-6.5h", "thiazide-24h", "thiazide-30h", "untimed", "one-acting", "unrecognised"],
+    ids=[
+        "none",
+        "furosemide-6h",
+        "furosemide-6.5h",
+        "hctz-12h",
+        "hctz-13h",
+        "chlorthalidone-30h",
+        "chlorthalidone-73h",
+        "untimed",
+        "one-acting",
+        "unrecognised",
+    ],
 )
 def test_diuretic_action_window(meds: tuple[object, ...], acting: Fact, listed: Fact) -> None:
     facts = facts_of(alkalosis_case(meds=meds))  # type: ignore[arg-type]
@@ -94,3 +108,29 @@ def test_several_medication_names_read_as_a_list_in_a_sentence() -> None:
     bumetanide = Medication(name="bumetanide", generic="bumetanide", classes=("loop_diuretic",), last_dose_hours=5)
     three = facts_of(alkalosis_case(meds=(med("furosemide", 2), med("hydrochlorothiazide", 30), bumetanide)))
     assert three["diuretic_names"] == TextFact("furosemide, hydrochlorothiazide and bumetanide")
+
+
+def test_chlorthalidone_taken_30_hours_ago_leaves_a_high_urine_chloride_indeterminate() -> None:
+    # Chlorthalidone acts for 48-72 h (drug label; from memory): one class-wide 24 h window read it
+    # as worn off at 30 h and called a urine chloride of 64 mmol/L chloride-resistant.
+    from notegen.workup.alkalosis import evaluate_alkalosis
+
+    case = alkalosis_case(urine_cl=64, meds=(med("chlorthalidone", 30),), bp=(150, 92))
+    result = evaluate_alkalosis(case, read_acid_base(case), calculations=compute_calculations(case))
+    assert result.chloride_class == "indeterminate"
+    assert result.resistant_pattern == "not_resistant"
+    assert {c.cause for c in result.differential if c.tier != "unlikely"}.isdisjoint(
+        {"salt_wasting_tubulopathy"}
+    )
+
+
+@pytest.mark.parametrize(
+    ("mg", "low", "severe"),
+    [(1.69, True, False), (1.7, False, False), (1.19, True, True), (1.2, True, False)],
+)
+def test_magnesium_limits_are_the_reading_s(mg: float, low: bool, severe: bool) -> None:
+    # rules/acid_base.yaml magnesium_low 1.7 mg/dL (common practice) and magnesium_low_warning 1.2 mg/dL
+    # (about 0.5 mmol/L; common practice, from memory): one pair of limits for the alerts and the pack.
+    facts = facts_of(alkalosis_case(mg=mg))
+    assert facts["mg_low"] == BooleanFact(low)
+    assert facts["mg_severe_low"] == BooleanFact(severe)

@@ -262,6 +262,16 @@ EXAMPLES = [
         lacks=("milk-alkali",),
     ),
     kept_out("alkali_sources", lambda: assess(BASE)),
+    # Calcium-alkali syndrome (Patel & Goldfarb, JASN 2010; from memory): volume repletion and stopping
+    # the calcium and alkali, even with a high urine chloride; not when volume is recorded as high.
+    printed("calcium_alkali", sample("alkali_kidney_disease"), "first-line even with a high urine chloride"),
+    printed("calcium_alkali", lambda: assess(BASE, differential=(cause("calcium_alkali"),)), "stopping the calcium"),
+    kept_out("calcium_alkali", lambda: assess(BASE)),
+    kept_out(
+        "calcium_alkali",
+        lambda: assess(case(context={"volume": "high"}), differential=(cause("calcium_alkali"),)),
+        0,
+    ),
     printed("reduced_kidney_function", lambda: assess(case(chem=LOW_EGFR)), "cannot clear a bicarbonate load"),
     kept_out("reduced_kidney_function", lambda: assess(BASE)),
     printed("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia"),)), "PaCO2"),

@@ -181,11 +181,12 @@ def test_the_check_finds_a_number_that_was_not_given_or_computed() -> None:
 
 
 def test_a_value_is_rounded_the_same_way_in_the_reading_and_in_the_tables() -> None:
-    # regression: 7 + 2.5 x (4.0 - 3.5) = 8.25 read "8.3" in the calculations and "8.2" in the
-    # reading's steps (Python's round works on the binary value); both now round half up
+    # regression: 6 + 2.5 x (4.0 - 3.5) = 7.25 (the gap on the panel total CO2 35) must read "7.3" in
+    # the calculations and in the reading's steps alike (Python's round works on the binary value,
+    # and would give "7.2"); both round half up
     case = read_case(str(ROOT / "samples/alkali_kidney_disease.yaml"))
     assessment = DRAFTER.assess(case)
-    assert assessment.calculations["anion_gap_corrected"].value == 8.25
-    assert any("8.3 mmol/L corrected for albumin" in step for step in assessment.acid_base.findings)
+    assert assessment.calculations["anion_gap_corrected"].value == 7.25
+    assert any("7.3 mmol/L corrected for albumin" in step for step in assessment.acid_base.findings)
     note = DRAFTER.draft(case, DraftOptions(explain=True))
-    assert "8.2 mmol/L" not in note and "8.3 mmol/L" in note
+    assert "7.2 mmol/L" not in note and "7.3 mmol/L" in note

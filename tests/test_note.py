@@ -201,7 +201,7 @@ def test_unlikely_causes_give_their_sources_plainly() -> None:
 
 def test_data_table_shows_units_as_reported_and_converted() -> None:
     note = draft(sample("venous_si_units"))
-    assert "| PCO2 (venous) | 6.1 kPa | 45.8 mmHg | case file |" in note
+    assert "| PvCO2 | 6.1 kPa | 45.8 mmHg | case file |" in note
     assert "| Creatinine | 70 µmol/L | 0.792 mg/dL | case file |" in note
     assert "| BUN | 6.8 mmol/L urea | 19 mg/dL | case file |" in note
     gastric = draft(sample("gastric_suction"))
@@ -221,8 +221,8 @@ def test_unrecognised_input_is_listed() -> None:
 def test_calculations_show_formula_inputs_result_and_source() -> None:
     note = draft(sample("thiazide_and_vomiting"))
     assert (
-        "- **Anion gap: 9 mmol/L**\\\n  Formula: Na - (Cl + HCO3)\\\n"
-        "  Inputs: Na 131 mmol/L, Cl 84 mmol/L, HCO3 (gas bicarbonate) 38 mmol/L\\\n"
+        "- **Anion gap: 8 mmol/L**\\\n  Formula: Na - (Cl + HCO3)\\\n"
+        "  Inputs: Na 131 mmol/L, Cl 84 mmol/L, HCO3 (panel total CO2) 39 mmol/L\\\n"
     ) in note
     # CKD-EPI 2021 (Inker et al., NEJM 2021): female 74 years, creatinine 1.3 mg/dL -> about 43.
     assert "- **eGFR (CKD-EPI 2021): 43 mL/min/1.73 m2**" in note

@@ -184,7 +184,7 @@ def context(draw: st.DrawFn, allow_diuretics: bool = True) -> dict[str, Any]:
 def patient(draw: st.DrawFn) -> dict[str, Any]:
     out: dict[str, Any] = {}
     if draw(st.booleans()):
-        out["age"] = draw(st.integers(1, 110))
+        out["age"] = draw(st.integers(18, 110))  # under 18 is refused (adults only)
     if draw(st.booleans()):
         out["sex"] = draw(st.sampled_from(["female", "male", "F", "m"]))
     if draw(st.booleans()):

@@ -119,7 +119,7 @@ def test_thiazide_and_vomiting_two_likely_causes() -> None:
     assert text == (
         "The arterial gas (pH 7.50, PaCO2 49 mmHg, HCO3 38 mmol/L) shows a primary metabolic alkalosis with "
         "appropriate respiratory compensation (expected PaCO2 47.8–51.8 mmHg by the 0.7 rule). "
-        "The albumin-corrected anion gap is normal at 10 mmol/L. "
+        "The albumin-corrected anion gap is normal at 9 mmol/L. "
         "The urine chloride of 14 mmol/L makes the alkalosis chloride-responsive. "
         "Two causes are likely, probably acting together: gastric acid loss (vomiting for three days; urine "
         "chloride 14 mmol/L, below 20 mmol/L) and diuretic use (hydrochlorothiazide last taken 40 hours ago; urine "
@@ -146,7 +146,7 @@ def test_loop_diuretic_high_urine_chloride_carries_the_caveat() -> None:
     )
     text = draft_paragraph(assessment)
     assert (
-        "The albumin-corrected anion gap is normal at 11.5 mmol/L. Furosemide was given 4 hours ago, so a high "
+        "The albumin-corrected anion gap is normal at 10.5 mmol/L. Furosemide was given 4 hours ago, so a high "
         "urine chloride cannot be read as chloride resistance. "
         "The likely cause is loop diuretic (furosemide 4 hours before the urine sample). "
         "Mineralocorticoid excess is also possible. "
@@ -194,26 +194,31 @@ def test_chronic_co2_retention_is_not_called_a_metabolic_alkalosis() -> None:
 
 
 def test_ketoacidosis_hides_an_alkalosis() -> None:
-    # Delta ratio (28 - 12) / (24 - 22) = 8 (Rastegar, JASN 2007): above 2, a concurrent alkalosis.
-    # Winter's formula (Albert, Dell & Winters 1967): 1.5 x 22 + 8 = 41 +/- 2.
+    # On the panel total CO2 23 (Kraut & Madias 2007): gap 27, delta gap 15 over a bicarbonate fall of 1; the
+    # ratio over so small a fall is unstable (Rastegar, JASN 2007), so the two changes are given instead.
+    # Winter's formula (Albert, Dell & Winters 1967) on the gas HCO3: 1.5 x 22 + 8 = 41 +/- 2.
     assert draft_paragraph(worked_up(sample("ketoacidosis_with_vomiting"))) == (
         "The arterial gas (pH 7.35, PaCO2 40 mmHg, HCO3 22 mmol/L) looks close to normal, but the "
-        "albumin-corrected anion gap of 28 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
+        "albumin-corrected anion gap of 27 mmol/L (reference 8–16 mmol/L) shows a high anion gap metabolic "
         "acidosis. The PaCO2 of 40 mmHg fits the 39–43 mmHg that Winter's formula predicts. "
-        "The delta ratio of 8.0 shows that the bicarbonate has fallen far less than the gap has risen, which "
-        "points to a concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
+        "The gap has risen by 15 mmol/L while the bicarbonate has barely fallen, which points to a "
+        "concurrent metabolic alkalosis. The causes of the alkalosis have not been weighed in this "
         "draft."
     )
 
 
-def test_venous_gas_softens_the_compensation_verdict() -> None:
+def test_venous_gas_leaves_compensation_unjudged() -> None:
+    # Never a venous PCO2 against the arterial prediction (Bloom et al., Eur J Emerg Med 2014; Kelly, Emerg
+    # Med J 2016: limits of agreement -20 to +26 mmHg); the venous value is labelled PvCO2.
     text = draft_paragraph(sample("venous_si_units"))
     assert text.startswith(
-        "The venous gas (pH 7.46, PCO2 6.1 kPa (45.8 mmHg), HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
-        "The venous PCO2 of 45.8 mmHg would fit the 43.6–47.6 mmHg that the 0.7 rule predicts, but a venous "
-        "PCO2 cannot confirm compensation; an arterial gas would settle it if that matters."
+        "The venous gas (pH 7.46, PvCO2 6.1 kPa (45.8 mmHg), HCO3 32 mmol/L) shows a primary metabolic alkalosis. "
+        "Respiratory compensation is not assessable on a venous sample, since a venous PCO2 differs from the "
+        "arterial value by a few mmHg on average and far more in some patients; an arterial gas would settle "
+        "it if that matters."
     )
     assert "appropriate" not in text
+    assert "0.7 rule predicts" not in text
 
 
 def test_inconsistent_gas_says_recheck_first() -> None:

@@ -1,4 +1,4 @@
-"""Severity alerts of the acid-base reading: pH, potassium, calcium, magnesium, hypoventilation.
+"""Severity alerts of the acid-base reading: pH, potassium, sodium, glucose, calcium, magnesium, hypoventilation.
 
 Thresholds come from `AcidBaseSettings`; each message is a sentence for the clinician, phrased as
 considerations, never doses.
@@ -9,6 +9,7 @@ from __future__ import annotations
 from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
+from notegen.acidbase.critical_values import calcium_alerts, sodium_glucose_alerts
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
@@ -17,13 +18,14 @@ def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
     return [Alert(code=code, level=level, message=" ".join(parts))]
 
 
-def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
+def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings, venous: bool = False) -> list[Alert]:
     if ph is None:
         return []
     limits = (s.alkalemia_critical.value, s.alkalemia_warning.value, s.acidemia_critical.value,
               s.acidemia_warning.value)
     # enough decimals for the comparison to hold as printed: 7.5999 is not shown as 7.60 beside "marked"
-    shown = format_number(ph, decimals_beside(ph, limits, 2)) + (" (calculated)" if calculated else "")
+    shown = format_number(ph, decimals_beside(ph, limits, 2))
+    shown += (" (calculated)" if calculated else "") + (" (venous)" if venous else "")
     if ph >= s.alkalemia_critical.value:
         return _alert(
             "severe_alkalemia", "critical",
@@ -137,7 +139,7 @@ def _hypoventilation_alert(
         return []
     if hco3 < s.bicarbonate_very_high.value or pco2 < s.hypoventilation_pco2.value:
         return []
-    kind = "venous PCO2" if venous else "PaCO2"
+    kind = "PvCO2" if venous else "PaCO2"
     return _alert(
         "high_bicarbonate_hypoventilation", "warning",
         f"Bicarbonate {format_value(hco3, 'mmol/L')} with {kind} {format_value(pco2, 'mmHg')}:",
@@ -157,11 +159,16 @@ def severity_alerts(
     alkalemic: bool,
     venous: bool,
 ) -> list[Alert]:
-    """Alerts for dangerous values, in a fixed order (pH, potassium, calcium, magnesium, ventilation)."""
+    """Alerts for dangerous values, in a fixed order.
+
+    pH, potassium, sodium and glucose, calcium, magnesium, ventilation.
+    """
     alerts: list[Alert] = []
-    alerts += _ph_alerts(ph, ph_calculated, s)
+    alerts += _ph_alerts(ph, ph_calculated, s, venous)
     alerts += _potassium_alerts(case.chem.k, s, magnesium_measured=usable(case.chem.mg))
+    alerts += sodium_glucose_alerts(case, s)
     alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)
+    alerts += calcium_alerts(case, s)
     alerts += _magnesium_alerts(case.chem.mg, s)
     alerts += _hypoventilation_alert(hco3, pco2, venous, s)
     return alerts

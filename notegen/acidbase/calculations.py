@@ -30,6 +30,7 @@ from notegen.acidbase.formulas import (
     expected_pco2_metabolic_alkalosis,
     expected_total_co2,
     fractional_excretion,
+    henderson_hasselbalch_hco3,
     henderson_hasselbalch_ph,
     osmolal_gap,
     urine_anion_gap,
@@ -75,10 +76,31 @@ def usable_ph(value: float | None) -> bool:
 
 
 def gap_bicarbonate(case: Case) -> tuple[float, str] | None:
-    """The bicarbonate used for the anion gap: the gas HCO3 if given, else the panel total CO2."""
+    """The bicarbonate used for the anion gap: the panel total CO2 if given, else the gas HCO3.
+
+    Published anion-gap reference ranges were set with the chemistry panel's measured total CO2
+    (Winter et al., Arch Intern Med 1990; Kraut & Madias, CJASN 2007;2:162).
+    """
+    if usable(case.chem.tco2):
+        assert case.chem.tco2 is not None
+        return case.chem.tco2, "panel total CO2"
     if usable(case.gas.hco3):
         assert case.gas.hco3 is not None
         return case.gas.hco3, "gas bicarbonate"
+    return None
+
+
+def gas_bicarbonate(case: Case, s: AcidBaseSettings) -> tuple[float, str] | None:
+    """The bicarbonate the compensation rules read: the gas HCO3, else one calculated from the gas pH
+    and PaCO2 (Henderson-Hasselbalch), else the panel total CO2."""
+    gas = case.gas
+    if usable(gas.hco3):
+        assert gas.hco3 is not None
+        return gas.hco3, "gas bicarbonate"
+    if usable_ph(gas.ph) and usable(gas.pco2):
+        assert gas.ph is not None and gas.pco2 is not None
+        value = henderson_hasselbalch_hco3(gas.ph, gas.pco2, s.pk_carbonic.value, s.co2_solubility.value)
+        return value, "calculated bicarbonate"
     if usable(case.chem.tco2):
         assert case.chem.tco2 is not None
         return case.chem.tco2, "panel total CO2"
@@ -116,9 +138,10 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
     gas = case.gas
     pk, sol = s.pk_carbonic.value, s.co2_solubility.value
     hh_source = "Henderson-Hasselbalch; constants as in CLSI C46-A (2001)"
+    pco2_name = "PvCO2" if gas.sample == "venous" else "PaCO2"  # a venous value is never labelled arterial
     if usable(gas.pco2) and usable(gas.hco3):
         assert gas.pco2 is not None and gas.hco3 is not None
-        inputs = {"PaCO2": format_value(gas.pco2, "mmHg"), "HCO3 (gas)": format_value(gas.hco3, "mmol/L")}
+        inputs = {pco2_name: format_value(gas.pco2, "mmHg"), "HCO3 (gas)": format_value(gas.hco3, "mmol/L")}
         out["calculated_ph"] = _calc(
             "calculated_ph",
             henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol),
@@ -140,7 +163,7 @@ def _gas_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
         assert gas.pco2 is not None
         pco2 = gas.pco2
         n_p, n_h, tol = s.pco2_normal.value, s.hco3_normal.value, s.resp_hco3_tolerance.value
-        inputs = {"PaCO2": format_value(pco2, "mmHg")}
+        inputs = {pco2_name: format_value(pco2, "mmHg")}
         rules: tuple[tuple[str, Setting, str], ...] = ()
         if pco2 > n_p:
             rules = (
@@ -171,6 +194,7 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
     chem = case.chem
     bicarbonate = gap_bicarbonate(case)
     if bicarbonate is None:
+        _expected_pco2(case, s, out)
         return
     hco3, hco3_label = bicarbonate
     hco3_note = f"bicarbonate taken from the {hco3_label}"
@@ -229,7 +253,16 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
                 s.delta_ratio_high.source,
                 note=f"{hco3_note}; unstable when the bicarbonate has fallen by only 1-2 mmol/L",
             )
-    inputs_h = {f"HCO3 ({hco3_label})": format_value(hco3, "mmol/L")}
+    _expected_pco2(case, s, out)
+
+
+def _expected_pco2(case: Case, s: AcidBaseSettings, out: dict[str, Calculation]) -> None:
+    bicarbonate = gas_bicarbonate(case, s)
+    if bicarbonate is None:
+        return
+    hco3, hco3_label = bicarbonate
+    hco3_note = f"bicarbonate taken from the {hco3_label}"
+    inputs_h = {f"HCO3 ({hco3_label})": format_value(round(hco3, 2), "mmol/L")}
     n_hco3 = s.hco3_normal.value
     if hco3 < n_hco3:
         est = expected_pco2_metabolic_acidosis(hco3, s.winters_tolerance.value)

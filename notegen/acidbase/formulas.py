@@ -7,9 +7,10 @@ tests check each against that source's numbers.
 
 from __future__ import annotations
 
-import math
 from typing import NamedTuple
 
+from notegen._henderson import henderson_hasselbalch_hco3 as henderson_hasselbalch_hco3
+from notegen._henderson import henderson_hasselbalch_ph as henderson_hasselbalch_ph
 from notegen.case.model import Sex
 from notegen.errors import CaseValueError
 
@@ -27,20 +28,6 @@ class Estimate(NamedTuple):
 
 
 # --- Blood gas arithmetic ---------------------------------------------------------------------------
-
-
-def henderson_hasselbalch_ph(pco2: float, hco3: float, pk: float = 6.1, solubility: float = 0.0307) -> float:
-    """pH = pK' + log10(HCO3 / (S x PaCO2)).
-
-    Henderson-Hasselbalch; constants as in CLSI C46-A (2001), pK' 6.1 and S 0.0307 mmol/L per mmHg
-    (DuBose, Harrison's, uses 0.03).
-    """
-    return pk + math.log10(hco3 / (solubility * pco2))
-
-
-def henderson_hasselbalch_hco3(ph: float, pco2: float, pk: float = 6.1, solubility: float = 0.0307) -> float:
-    """HCO3 = S x PaCO2 x 10^(pH - pK'): the analyser's calculated bicarbonate (CLSI C46-A, 2001)."""
-    return solubility * pco2 * 10 ** (ph - pk)
 
 
 def expected_total_co2(hco3: float, pco2: float, solubility: float = 0.0307) -> float:

@@ -21,6 +21,9 @@ Primary = Literal[
     "undetermined",
 ]
 CompensationStatus = Literal["appropriate", "inappropriate", "uncertain", "not_applicable"]
+# Why a PaCO2 outside the expected range adds a respiratory disorder only as possible: within the edge
+# margin, inside another published form of the rule, or where the rule runs past the usual ceiling.
+CompensationEdge = Literal["near_edge", "other_form", "ceiling"]
 # "indeterminate": the acute and chronic ranges overlap at this PaCO2, or a second metabolic
 # disorder moves the bicarbonate so that chronicity cannot be read from it.
 Chronicity = Literal["acute", "chronic", "between", "indeterminate"]
@@ -31,6 +34,16 @@ ValueSource = Literal["measured", "calculated", "panel"]
 Consistency = Literal["consistent", "inconsistent", "not_checked"]
 Certainty = Literal["established", "possible"]
 GapBicarbonate = Literal["gas bicarbonate", "panel total CO2"]
+# Whether the panel total CO2 is the one the gas predicts (HCO3 + dissolved CO2, within tolerance).
+GasPanelAgreement = Literal["agree", "disagree", "not_checked"]
+# What the delta ratio says (Rastegar, JASN 2007), as a code; `delta_ratio_interpretation` words it.
+DeltaRatioVerdict = Literal[
+    "normal_gap_acidosis_too",  # below 0.4
+    "mixed_possible",  # 0.4-1
+    "high_gap_alone",  # 1-2
+    "metabolic_alkalosis_too",  # above 2, or a high gap without a fall in bicarbonate
+    "metabolic_alkalosis_or_respiratory_compensation",  # the same, beside a respiratory acidosis
+]
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
 
@@ -84,6 +97,7 @@ class AcidBaseReading(BaseModel):
     disorder_basis: tuple[DisorderBasis, ...]
 
     compensation: CompensationStatus
+    compensation_edge: CompensationEdge | None = None
     expected: ExpectedRange | None
     expected_alternatives: tuple[ExpectedRange, ...]  # acute and chronic ranges of a respiratory primary
     chronicity: Chronicity | None
@@ -93,9 +107,11 @@ class AcidBaseReading(BaseModel):
     anion_gap_status: GapStatus | None
     anion_gap_reference: tuple[float, float]
     anion_gap_bicarbonate: GapBicarbonate | None
+    gas_panel_agreement: GasPanelAgreement = "not_checked"
     delta_gap: float | None
     delta_ratio: float | None
     delta_ratio_interpretation: str | None
+    delta_ratio_verdict: DeltaRatioVerdict | None = None
     metabolic_acidosis_kind: AcidosisKind | None
 
     missing: tuple[str, ...]

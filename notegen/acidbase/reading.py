@@ -7,11 +7,12 @@ Each step adds a short finding in a clinician's words; what a step lacks goes to
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 
 from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.alerts import severity_alerts
-from notegen.acidbase.calculations import usable, usable_ph
+from notegen.acidbase.calculations import Calculation, compute_calculations, usable, usable_ph
 from notegen.acidbase.formulas import expected_total_co2, henderson_hasselbalch_hco3, henderson_hasselbalch_ph
 from notegen.acidbase.model import (
     AcidBaseReading,
@@ -82,7 +83,8 @@ def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency
         w.missing.append("Consistency check: needs pH, PaCO2 and bicarbonate from the same gas.")
         return "not_checked", None
     assert gas.ph is not None and gas.pco2 is not None and gas.hco3 is not None
-    calc = henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol)
+    done = w.calcs.get("calculated_ph")
+    calc = done.value if done is not None else henderson_hasselbalch_ph(gas.pco2, gas.hco3, pk, sol)
     tol = s.consistency_ph_tolerance.value
     result: Consistency = "consistent"
     if abs(calc - gas.ph) > tol + EPS:
@@ -110,9 +112,12 @@ def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency
         )
     if usable(case.chem.tco2):
         assert case.chem.tco2 is not None
-        expected = expected_total_co2(gas.hco3, gas.pco2, sol)
+        done_tco2 = w.calcs.get("expected_total_co2")
+        expected = done_tco2.value if done_tco2 is not None else expected_total_co2(gas.hco3, gas.pco2, sol)
         tco2_tol = s.consistency_tco2_tolerance.value
+        w.gas_panel_checked = True
         if abs(expected - case.chem.tco2) > tco2_tol + EPS:
+            w.gas_panel_disagree = True
             w.alerts.append(
                 Alert(
                     code="gas_panel_mismatch",
@@ -228,10 +233,20 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     )
 
 
-def read_acid_base(case: Case, settings: AcidBaseSettings | None = None) -> AcidBaseReading:
-    """Read the acid-base status of a validated case. Never raises on a validated case."""
+def read_acid_base(
+    case: Case,
+    settings: AcidBaseSettings | None = None,
+    calculations: Mapping[str, Calculation] | None = None,
+) -> AcidBaseReading:
+    """Read the acid-base status of a validated case. Never raises on a validated case.
+
+    `calculations` is the case's `compute_calculations` result: the reading reads its anion gap,
+    delta gap and ratio, expected PaCO2 or bicarbonate and calculated pH rather than working them
+    out again. Without it they are computed here.
+    """
     s = settings or default_acid_base_settings()
-    w = ReadingDraft(s=s, venous=case.gas.sample == "venous")
+    calcs = compute_calculations(case, s) if calculations is None else calculations
+    w = ReadingDraft(s=s, venous=case.gas.sample == "venous", calcs=calcs)
     g = _gas_values(case, w)
     if g.sample == "unstated":
         w.findings.append("The sample type was not stated; it is read as arterial.")
@@ -293,6 +308,8 @@ def read_acid_base(case: Case, settings: AcidBaseSettings | None = None) -> Acid
         alkalemic=ph_status == "alkalemia",
         venous=w.venous,
     )
+    if consistency == "inconsistent":
+        _provisional(w, primary)
     ordered = sorted(w.bases, key=lambda b: b.disorder != primary)  # stable: primary first, then as found
     return AcidBaseReading(
         sample=g.sample,
@@ -311,6 +328,7 @@ def read_acid_base(case: Case, settings: AcidBaseSettings | None = None) -> Acid
         possible_disorders=tuple(b.disorder for b in ordered if b.certainty == "possible"),
         disorder_basis=tuple(ordered),
         compensation=compensation,
+        compensation_edge=w.edge,
         expected=expected,
         expected_alternatives=alternatives,
         chronicity=chronicity,
@@ -322,10 +340,26 @@ def read_acid_base(case: Case, settings: AcidBaseSettings | None = None) -> Acid
         delta_gap=_r(gap.delta_gap, 2),
         delta_ratio=_r(gap.delta_ratio, 2),
         delta_ratio_interpretation=gap.interpretation,
+        delta_ratio_verdict=gap.verdict,
+        gas_panel_agreement=("disagree" if w.gas_panel_disagree else "agree" if w.gas_panel_checked else "not_checked"),
         metabolic_acidosis_kind=kind,
         missing=tuple(w.missing),
         alerts=tuple(w.alerts),
         findings=tuple(w.findings),
+    )
+
+
+def _provisional(w: ReadingDraft, primary: Primary) -> None:
+    """An internally inconsistent gas gets no firm mixed disorder: every added disorder is only possible."""
+    added = [b for b in w.bases if b.disorder != primary and b.certainty == "established"]
+    if not added:
+        return
+    w.bases = [
+        DisorderBasis(disorder=b.disorder, certainty="possible", basis=b.basis) if b in added else b for b in w.bases
+    ]
+    w.findings.append(
+        "Because the gas values do not agree, any added disorder is provisional: repeat the gas before "
+        "relying on a mixed disorder."
     )
 
 

@@ -6,12 +6,14 @@ the gaps (here). Everything here writes its findings into a `ReadingDraft`.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 from notegen._format import format_value, round_half_up
 from notegen.acidbase.alert import Alert
-from notegen.acidbase.calculations import gap_bicarbonate, usable
+from notegen.acidbase.calculations import Calculation, gap_bicarbonate, usable
 from notegen.acidbase.formulas import (
+    Estimate,
     anion_gap,
     corrected_anion_gap,
     delta_gap,
@@ -26,7 +28,9 @@ from notegen.acidbase.formulas import (
 from notegen.acidbase.model import (
     Certainty,
     Chronicity,
+    CompensationEdge,
     CompensationStatus,
+    DeltaRatioVerdict,
     Disorder,
     DisorderBasis,
     ExpectedRange,
@@ -72,6 +76,10 @@ class ReadingDraft:
 
     s: AcidBaseSettings
     venous: bool
+    calcs: Mapping[str, Calculation] = field(default_factory=dict)  # the case's compute_calculations
+    gas_panel_checked: bool = False
+    edge: CompensationEdge | None = None  # why an added respiratory disorder is only possible
+    gas_panel_disagree: bool = False  # the panel total CO2 is not the one the gas predicts
     findings: list[str] = field(default_factory=list)
     missing: list[str] = field(default_factory=list)
     alerts: list[Alert] = field(default_factory=list)
@@ -99,16 +107,24 @@ class GasValues:
     hco3_source: ValueSource | None
 
 
+def _estimate(done: Calculation | None) -> Estimate | None:
+    """A rule's prediction as `compute_calculations` worked it out, when it did."""
+    if done is None or done.low is None or done.high is None:
+        return None
+    return Estimate(done.value, done.low, done.high)
+
+
 def metabolic_compensation(
     primary: Disorder, g: GasValues, w: ReadingDraft
 ) -> tuple[CompensationStatus, ExpectedRange]:
     s = w.s
     assert g.pco2 is not None and g.hco3 is not None
+    done = _estimate(w.calcs.get("expected_pco2"))
     if primary == "metabolic_acidosis":
-        est = expected_pco2_metabolic_acidosis(g.hco3, s.winters_tolerance.value)
+        est = done or expected_pco2_metabolic_acidosis(g.hco3, s.winters_tolerance.value)
         rule, source = "Winter's formula", "Albert, Dell & Winters, Ann Intern Med 1967"
     else:
-        est = expected_pco2_metabolic_alkalosis(
+        est = done or expected_pco2_metabolic_alkalosis(
             g.hco3,
             s.alkalosis_pco2_slope.value,
             s.alkalosis_pco2_tolerance.value,
@@ -125,7 +141,17 @@ def metabolic_compensation(
         rule=rule,
         source=source,
     )
-    pco2_word = "venous PCO2" if w.venous else "PaCO2"
+    pco2_word = "PvCO2" if w.venous else "PaCO2"
+    if w.venous:
+        # Bloom et al., Eur J Emerg Med 2014; Kelly, Emerg Med J 2016: venous PCO2 runs a few mmHg above
+        # arterial with limits of agreement of -20 to +26 mmHg, so it is never set against a prediction
+        # made for arterial blood.
+        w.findings.append(
+            f"Expected PaCO2 for this {WORDS[primary]} is {span(est.low, est.high, 'mmHg')} ({rule}, {source}); "
+            f"compensation is not assessable on a venous sample, since the PvCO2 {mm(g.pco2)} differs from "
+            "the arterial value by a few mmHg on average and far more in some patients (Bloom 2014; Kelly 2016)."
+        )
+        return "uncertain", expected
     head = (
         f"Expected PaCO2 for this {WORDS[primary]} is {span(est.low, est.high, 'mmHg')} ({rule}, {source}); "
         f"measured {pco2_word} {mm(g.pco2)}"
@@ -143,11 +169,7 @@ def metabolic_compensation(
                 "uncommon (Galla 2000); an added respiratory acidosis is possible."
             )
             w.add("respiratory_acidosis", f"{pco2_word} above the usual ceiling of compensation", "possible")
-            return "uncertain", expected
-        if w.venous:
-            w.findings.append(
-                f"{head}: it would fit, but a venous PCO2 cannot confirm compensation (see below)."
-            )
+            w.edge = "ceiling"
             return "uncertain", expected
         w.findings.append(f"{head}: compensation is appropriate.")
         return "appropriate", expected
@@ -158,20 +180,41 @@ def metabolic_compensation(
         # The 0.7 rule runs past what ventilation usually delivers (about 55 mmHg, Galla 2000): a PaCO2
         # near that ceiling may be maximal compensation rather than an added respiratory alkalosis.
         w.findings.append(
-            f"{head}, {side} the range, but near the usual ceiling of compensation (about {mm(ceiling)}, "
-            "Galla 2000); an added respiratory alkalosis is possible, not established."
+            f"{head}, {side} the range, but the rule runs past the usual ceiling of compensation (about "
+            f"{mm(ceiling)}, Galla 2000) and the PaCO2 is near it; an added respiratory alkalosis is possible, "
+            "not established."
         )
         w.add(added, f"{pco2_word} {mm(g.pco2)} is near the usual ceiling of compensation", "possible")
+        w.edge = "ceiling"
         return "uncertain", expected
-    if w.venous:
-        w.findings.append(
-            f"{head}, {side} the range; with a venous sample this only suggests an added {WORDS[added]}."
-        )
-        w.add(added, f"venous PCO2 {side} the range expected for the {WORDS[primary]}", "possible")
+    edge = _at_the_edge(primary, g.pco2, g.hco3, est, w)
+    if edge is not None:
+        w.findings.append(f"{head}, {side} the range but {edge}; an added {WORDS[added]} is possible, not established.")
+        w.add(added, f"PaCO2 {mm(g.pco2)} is just {side} the {rule} range for the {WORDS[primary]}", "possible")
         return "uncertain", expected
     w.findings.append(f"{head}, {side} the range: an added {WORDS[added]}.")
     w.add(added, f"PaCO2 {mm(g.pco2)} is {side} the {rule} range for the {WORDS[primary]}")
     return "inappropriate", expected
+
+
+def _at_the_edge(primary: Disorder, pco2: float, hco3: float, est: Estimate, w: ReadingDraft) -> str | None:
+    """Why a PaCO2 just outside the expected range leaves an added disorder only possible, or None.
+
+    Published forms of each rule differ by a few mmHg (shared/CLINICAL.md): within the edge margin of
+    the range, or inside another published form's range, the added disorder is not established.
+    """
+    s = w.s
+    margin = s.compensation_edge_margin.value
+    if est.low - margin - EPS <= pco2 <= est.high + margin + EPS:
+        w.edge = "near_edge"
+        return "only just, where published forms of the rule differ"
+    if primary == "metabolic_alkalosis":
+        alt = s.alkalosis_pco2_slope.value * hco3 + s.alkalosis_pco2_alt_intercept.value
+        tol = s.alkalosis_pco2_alt_tolerance.value
+        if alt - tol - EPS <= pco2 <= alt + tol + EPS:
+            w.edge = "other_form"
+            return "inside the range another published form of the rule gives (Kidney360 2022)"
+    return None
 
 
 def respiratory_compensation(
@@ -180,19 +223,21 @@ def respiratory_compensation(
     s = w.s
     assert g.pco2 is not None and g.hco3 is not None
     tol, n_p, n_h = s.resp_hco3_tolerance.value, s.pco2_normal.value, s.hco3_normal.value
+    done_acute = _estimate(w.calcs.get("expected_hco3_acute"))
+    done_chronic = _estimate(w.calcs.get("expected_hco3_chronic"))
     if primary == "respiratory_acidosis":
-        acute = expected_hco3_acute_respiratory_acidosis(
+        acute = done_acute or expected_hco3_acute_respiratory_acidosis(
             g.pco2, s.resp_acidosis_acute_slope.value, tol, n_p, n_h
         )
-        chronic = expected_hco3_chronic_respiratory_acidosis(
+        chronic = done_chronic or expected_hco3_chronic_respiratory_acidosis(
             g.pco2, s.resp_acidosis_chronic_slope.value, tol, n_p, n_h
         )
         sources = (s.resp_acidosis_acute_slope.source, s.resp_acidosis_chronic_slope.source)
     else:
-        acute = expected_hco3_acute_respiratory_alkalosis(
+        acute = done_acute or expected_hco3_acute_respiratory_alkalosis(
             g.pco2, s.resp_alkalosis_acute_slope.value, tol, n_p, n_h
         )
-        chronic = expected_hco3_chronic_respiratory_alkalosis(
+        chronic = done_chronic or expected_hco3_chronic_respiratory_alkalosis(
             g.pco2, s.resp_alkalosis_chronic_slope.value, tol, n_p, n_h
         )
         sources = (s.resp_alkalosis_acute_slope.source, s.resp_alkalosis_chronic_slope.source)
@@ -222,6 +267,13 @@ def respiratory_compensation(
         rule=f"acute to chronic {word} rules",
         source=f"{sources[0]}; {sources[1]}",
     )
+    if w.venous:
+        # The rules take an arterial PaCO2; a venous PCO2 is not converted (Kelly, Emerg Med J 2016).
+        w.findings.append(
+            f"Compensation and chronicity are not assessable on a venous sample: the rules for a {word} take "
+            f"an arterial PaCO2, and the PvCO2 {mm(g.pco2)} is not converted (Bloom 2014; Kelly 2016)."
+        )
+        return "uncertain", both, ranges, "indeterminate"
     head = (
         f"Expected bicarbonate for a {word} at this PaCO2: acute {span(acute.low, acute.high, 'mmol/L')}, "
         f"chronic {span(chronic.low, chronic.high, 'mmol/L')}; measured {mmol(g.hco3)}"
@@ -239,22 +291,12 @@ def respiratory_compensation(
     else:
         added: Disorder = "metabolic_alkalosis" if g.hco3 > highest else "metabolic_acidosis"
         side = "above" if added == "metabolic_alkalosis" else "below"
-        if w.venous:
-            w.findings.append(
-                f"{head}, {side} both ranges; with a venous sample this only suggests an added "
-                f"{WORDS[added]}."
-            )
-            w.add(added, f"bicarbonate {side} the range expected for the {word}", "possible")
-            return "uncertain", both, ranges, "indeterminate"
         w.findings.append(
             f"{head}, {side} both ranges: an added {WORDS[added]}; chronicity cannot be read "
             "from the bicarbonate."
         )
         w.add(added, f"bicarbonate {mmol(g.hco3)} is {side} the compensation expected for the {word}")
         return "inappropriate", both, ranges, "indeterminate"
-    if w.venous:
-        w.findings.append(f"{head}: {verdict}, though a venous PCO2 cannot confirm it.")
-        return "uncertain", expected, ranges, chronicity
     w.findings.append(f"{head}: {verdict}; compensation is appropriate.")
     return "appropriate", expected, ranges, chronicity
 
@@ -268,6 +310,7 @@ class GapResult:
     delta_gap: float | None = None
     delta_ratio: float | None = None
     interpretation: str | None = None
+    verdict: DeltaRatioVerdict | None = None
     normal_gap_acidosis: bool = False
 
 
@@ -280,14 +323,18 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     assert chem.na is not None and chem.cl is not None
     hco3, label = source
     out.bicarbonate = label
-    out.value = anion_gap(chem.na, chem.cl, hco3)
+    done = w.calcs.get("anion_gap")
+    out.value = done.value if done is not None else anion_gap(chem.na, chem.cl, hco3)
     used = out.value
     low, high = s.anion_gap_low.value, s.anion_gap_high.value
     text = f"Anion gap {mmol(out.value)} (using the {label})"
     if usable(chem.albumin):
         assert chem.albumin is not None
-        out.corrected = corrected_anion_gap(
-            out.value, chem.albumin, s.normal_albumin.value, s.albumin_gap_factor.value
+        done_corrected = w.calcs.get("anion_gap_corrected")
+        out.corrected = (
+            done_corrected.value
+            if done_corrected is not None
+            else corrected_anion_gap(out.value, chem.albumin, s.normal_albumin.value, s.albumin_gap_factor.value)
         )
         used = out.corrected
         text += (
@@ -306,17 +353,28 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     w.findings.append(text)
     if out.status != "high":
         return out
-    w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
+    if w.gas_panel_disagree:
+        # Kraut & Madias, CJASN 2007;2:162: a gap is only as good as its bicarbonate; with the gas and
+        # the panel apart, the gap alone does not carry a diagnosis.
+        w.findings.append(
+            "The gas and the panel disagree about the bicarbonate, so a metabolic acidosis resting on "
+            "this gap alone is possible, not established, until they are repeated together."
+        )
+        w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}", "possible")
+    else:
+        w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
     if ph_status == "alkalemia" and used <= high + 4:
         w.findings.append(
             "Alkalemia itself raises the anion gap by a few mmol/L, so a modest rise like this "
             "may not mean a separate acidosis; a lactate would help."
         )
     n_gap, n_hco3 = s.anion_gap_normal.value, s.hco3_normal.value
-    out.delta_gap = delta_gap(used, n_gap)
+    done_delta = w.calcs.get("delta_gap")
+    out.delta_gap = done_delta.value if done_delta is not None else delta_gap(used, n_gap)
     lo, pure, hi = s.delta_ratio_low.value, s.delta_ratio_pure.value, s.delta_ratio_high.value
     resp_acidosis = w.has("respiratory_acidosis")
     if hco3 >= n_hco3:
+        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
         out.interpretation = (
             "bicarbonate has not fallen despite the high gap: a concurrent metabolic "
             "alkalosis" + (" or the compensation of the respiratory acidosis" if resp_acidosis else "")
@@ -327,16 +385,21 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
         )
         _add_gap_alkalosis(w, "a high anion gap without a fall in bicarbonate")
         return out
-    out.delta_ratio = delta_ratio(used, hco3, n_gap, n_hco3)
+    done_ratio = w.calcs.get("delta_ratio")
+    out.delta_ratio = done_ratio.value if done_ratio is not None else delta_ratio(used, hco3, n_gap, n_hco3)
     r = out.delta_ratio
     if r < lo:
+        out.verdict = "normal_gap_acidosis_too"
         out.interpretation = "a normal-gap acidosis accompanies the high-gap acidosis"
         out.normal_gap_acidosis = True
     elif r < pure:
+        out.verdict = "mixed_possible"
         out.interpretation = "a mixed high-gap and normal-gap acidosis is possible"
     elif r <= hi:
+        out.verdict = "high_gap_alone"
         out.interpretation = "a high-gap acidosis alone"
     else:
+        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
         out.interpretation = "a concurrent metabolic alkalosis" + (
             " or the compensation of a respiratory acidosis" if resp_acidosis else ""
         )
@@ -354,5 +417,6 @@ def _add_gap_alkalosis(w: ReadingDraft, why: str) -> None:
     # Rastegar 2007: a high ratio also follows a compensated respiratory acidosis. When that acidosis is
     # the primary disorder, its compensation is the likelier source of the bicarbonate, so the alkalosis
     # is only possible; when it is merely a failed compensation of the metabolic acidosis, it is listed.
+    # With the gas and panel apart, nothing rests on the gap alone (Kraut & Madias, CJASN 2007).
     resp_primary = bool(w.bases) and w.bases[0].disorder == "respiratory_acidosis"
-    w.add("metabolic_alkalosis", why, "possible" if resp_primary else "established")
+    w.add("metabolic_alkalosis", why, "possible" if resp_primary or w.gas_panel_disagree else "established")

@@ -50,6 +50,12 @@ ALERT_CODES = (
     "inconsistent_gas",
     "gas_panel_mismatch",
     "sample_unstated",
+    "hypercalcemia",
+    "severe_hypocalcemia",
+    "severe_hyponatremia",
+    "severe_hypernatremia",
+    "hypoglycemia",
+    "severe_hyperglycemia",
 )
 ALERT_LEVELS = ("none", "info", "warning", "critical")
 CHLORIDE_TREE = "chloride_class"

@@ -24,7 +24,18 @@ from notegen.case.model import BloodPressure, Context, Medication, Patient
 from notegen.knowledge import vocabulary as vocab
 
 PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
-CONTEXT_KEYS = ("bp", "volume", "meds", "findings", "renin", "aldosterone", "diuretic_screen", "cortisol_excess")
+CONTEXT_KEYS = (
+    "bp",
+    "volume",
+    "meds",
+    "findings",
+    "renin",
+    "aldosterone",
+    "diuretic_screen",
+    "cortisol_excess",
+    "blood_product_units",
+)
+MAX_BLOOD_PRODUCT_UNITS = 500
 LEVEL_WORDS = {
     "low": "low",
     "suppressed": "low",
@@ -36,6 +47,7 @@ LEVEL_WORDS = {
 SCREEN_WORDS = {"positive": "positive", "detected": "positive", "negative": "negative", "not detected": "negative"}
 YES_NO = {"yes": True, "true": True, "present": True, "no": False, "false": False, "absent": False}
 MAX_MEDICATIONS = 200
+ADULT_AGE = 18  # years; the published rules and ranges notegen uses were set in adults
 
 SEX_WORDS = {"female": "female", "f": "female", "woman": "female", "male": "male", "m": "male", "man": "male"}
 VOLUME_WORDS = {
@@ -94,10 +106,15 @@ def validate_patient(raw: Any, col: _Collector) -> Patient:
             else:
                 values[key] = number
     age = values.get("age")
-    if age is not None and age < 18:
-        col.notices.append(
-            f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind"
+    if age is not None and age < ADULT_AGE:
+        # Compensation rules, reference ranges and CKD-EPI 2021 were set in adults; a child's note
+        # drafted from them would read as settled when it is not, so the case is refused.
+        col.problem(
+            "patient.age",
+            f"{_fmt(age)} years: notegen's compensation rules and reference ranges are for adults "
+            f"({ADULT_AGE} and over) only; no note is drafted",
         )
+        del values["age"]
     return Patient(**values)
 
 
@@ -187,6 +204,14 @@ def validate_context(raw: Any, col: _Collector) -> Context:
             continue
         elif key == "bp":
             values["bp"] = _blood_pressure(item, col)
+        elif key == "blood_product_units":
+            whole = isinstance(item, int) and not isinstance(item, bool)
+            if not whole or not 0 <= item <= MAX_BLOOD_PRODUCT_UNITS:
+                col.problem(
+                    path, f"{_shown(item)} is not a whole number of units from 0 to {MAX_BLOOD_PRODUCT_UNITS}"
+                )
+            else:
+                values["blood_product_units"] = item
         elif key in WORD_FIELDS:
             table, expected = WORD_FIELDS[key]
             word = item if isinstance(item, bool) and key == "cortisol_excess" else table.get(str(item).strip().lower())

@@ -160,6 +160,8 @@ class Context(BaseModel):
     aldosterone: Level | None = None
     diuretic_screen: Literal["positive", "negative"] | None = None  # urine screen for loop/thiazide drugs
     cortisol_excess: bool | None = None  # the result of an evaluation for cortisol excess
+    # Units of citrated blood products (red cells, plasma) given recently; their citrate becomes bicarbonate.
+    blood_product_units: int | None = None
 
 
 class Case(BaseModel):

@@ -7,11 +7,13 @@ value that fits another unit better is refused with the suggestion, never conver
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from datetime import datetime, timedelta
 from typing import Any
 
+# The one Henderson-Hasselbalch (a pure function on numbers); pyproject's layer contract names this
+# single exception to "case imports only from below".
+from notegen._henderson import henderson_hasselbalch_ph
 from notegen.case import units as u
 from notegen.case.checks import (
     _VALUE_TEXT,
@@ -36,6 +38,7 @@ from notegen.case.model import (
 )
 from notegen.errors import CaseFileError, CaseValueError
 from notegen.knowledge import vocabulary as vocab
+from notegen.knowledge.settings import default_acid_base_settings
 
 TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
 LAB_SECTIONS: dict[str, tuple[str, ...]] = {
@@ -246,7 +249,7 @@ def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tu
 
     Returns (the other unit, the PCO2 in mmHg that reading gives), or None. A kPa value typed
     into a conventional case (6.4 for 48 mmHg) is still "plausible" in mmHg; Henderson-Hasselbalch
-    (pK 6.1, solubility 0.0307) tells the two apart.
+    (the settings' pK' and solubility, the one formula, `notegen._henderson`) tells the two apart.
     """
     if pco2 <= 0 or hco3 <= 0:
         return None
@@ -258,8 +261,11 @@ def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tu
     if not bounds.low <= as_other <= bounds.high:
         return None
 
+    settings = default_acid_base_settings()
+    pk, solubility = settings.pk_carbonic.value, settings.co2_solubility.value
+
     def calculated_ph(pco2_mmhg: float) -> float:
-        return 6.1 + math.log10(hco3 / (0.0307 * pco2_mmhg))
+        return henderson_hasselbalch_ph(pco2_mmhg, hco3, pk, solubility)
 
     if abs(calculated_ph(as_default) - ph) > 0.1 and abs(calculated_ph(as_other) - ph) <= 0.05:
         return other, as_other

@@ -67,6 +67,9 @@ class AcidBaseSettings(BaseModel):
     alkalosis_pco2_slope: Setting
     alkalosis_pco2_tolerance: Setting
     alkalosis_pco2_ceiling: Setting
+    alkalosis_pco2_alt_intercept: Setting
+    alkalosis_pco2_alt_tolerance: Setting
+    compensation_edge_margin: Setting
     resp_acidosis_acute_slope: Setting
     resp_acidosis_chronic_slope: Setting
     resp_alkalosis_acute_slope: Setting
@@ -85,6 +88,14 @@ class AcidBaseSettings(BaseModel):
     hypoventilation_pco2: Setting
     ionized_ca_low_warning: Setting
     ionized_ca_low_critical: Setting
+    ionized_ca_high: Setting
+    calcium_high: Setting
+    calcium_high_critical: Setting
+    calcium_low_critical: Setting
+    sodium_low_critical: Setting
+    sodium_high_critical: Setting
+    glucose_low_critical: Setting
+    glucose_high_critical: Setting
     magnesium_low: Setting
     magnesium_low_warning: Setting
     chloride_target: Setting
@@ -112,6 +123,11 @@ _ORDERED: tuple[tuple[str, str], ...] = (
     ("potassium_low_critical", "potassium_low_warning"),
     ("potassium_high_warning", "potassium_high_critical"),
     ("ionized_ca_low_critical", "ionized_ca_low_warning"),
+    ("ionized_ca_low_warning", "ionized_ca_high"),
+    ("calcium_low_critical", "calcium_high"),
+    ("calcium_high", "calcium_high_critical"),
+    ("sodium_low_critical", "sodium_high_critical"),
+    ("glucose_low_critical", "glucose_high_critical"),
     ("magnesium_low_warning", "magnesium_low"),
 )
 _POSITIVE: tuple[str, ...] = (

@@ -29,6 +29,9 @@ class FieldInfo:
 class DrugInfo:
     generic: str
     classes: tuple[str, ...]
+    # Usual duration of a diuretic's effect, (shortest, longest) hours, and where the figure comes from.
+    action_hours: tuple[float, float] | None = None
+    action_source: str | None = None
 
 
 @dataclass(frozen=True)
@@ -57,13 +60,24 @@ def read_fields(folder: Path | None = None) -> dict[str, FieldInfo]:
 
 def read_medications(folder: Path | None = None) -> dict[str, DrugInfo]:
     """Folded name or synonym -> drug."""
-    data = _load((folder or rules_dir()) / "vocabulary" / "medications.yaml")
+    path = (folder or rules_dir()) / "vocabulary" / "medications.yaml"
+    data = _load(path)
     table: dict[str, DrugInfo] = {}
     for generic, entry in data.items():
-        info = DrugInfo(generic, tuple(entry["classes"]))
+        hours = entry.get("action_hours")
+        action = (float(hours[0]), float(hours[1])) if hours is not None else None
+        if action is not None and not (0 < action[0] <= action[1] and entry.get("action_source")):
+            message = f"medication `{generic}`: action_hours needs 0 < shortest <= longest and an action_source"
+            raise RulePackError([(str(path), None, message)])
+        info = DrugInfo(generic, tuple(entry["classes"]), action, entry.get("action_source"))
         for name in [generic, *entry.get("synonyms", [])]:
             table[fold(name)] = info
     return table
+
+
+def drug(generic: str) -> DrugInfo | None:
+    """The shipped vocabulary's entry for a generic name (or a synonym)."""
+    return medications().get(fold(generic))
 
 
 def read_findings(folder: Path | None = None) -> dict[str, FindingInfo]:

@@ -70,7 +70,7 @@ def _with_reported_kpa(text: str, assessment: Assessment) -> str:
     if not reported:
         return text
     shown = f"{trimmed_number(reported[-1].reported_value, 2)} kPa ({_mmhg(reading.pco2)})"
-    for name in ("PaCO2", "PCO2"):
+    for name in ("PaCO2", "PvCO2", "PCO2"):
         text = text.replace(f"({name} {_mmhg(reading.pco2)},", f"({name} {shown},", 1)
         text = text.replace(f", {name} {_mmhg(reading.pco2)},", f", {name} {shown},", 1)
     return text
@@ -135,15 +135,16 @@ def _article(word: str) -> str:
 
 
 def _pco2_name(reading: AcidBaseReading) -> str:
-    return "venous PCO2" if reading.sample == "venous" else "PaCO2"
+    return "PvCO2" if reading.sample == "venous" else "PaCO2"
 
 
 def _gas_values(reading: AcidBaseReading) -> str:
     parts: list[str] = []
     if reading.ph is not None:
+        # Inside "The venous gas (...)" the pH is already named venous; the PCO2 is named PvCO2.
         parts.append(("calculated pH " if reading.ph_source == "calculated" else "pH ") + ph_text(reading.ph))
     if reading.pco2 is not None:
-        parts.append(f"{'PCO2' if reading.sample == 'venous' else 'PaCO2'} {_mmhg(reading.pco2)}")
+        parts.append(f"{_pco2_name(reading)} {_mmhg(reading.pco2)}")
     if reading.hco3 is not None:
         name = {"calculated": "calculated HCO3", "panel": "panel total CO2"}.get(reading.hco3_source or "", "HCO3")
         parts.append(f"{name} {_mmol(reading.hco3)}")
@@ -229,6 +230,12 @@ def _metabolic_primary(
         return [
             f"{gas} shows a primary {word} with appropriate respiratory compensation (expected PaCO2 {span} by {rule})."
         ], False
+    if reading.compensation == "inappropriate" and added is not None and added not in reading.disorders:
+        said.add(added)  # only possible: the gas is internally inconsistent
+        return [
+            f"{gas} shows a primary {word}; the {pco2} is {side} the {span} that {rule} predicts, which "
+            f"would add a {WORDS[added]} if a repeat gas confirms these values."
+        ], False
     if reading.compensation == "inappropriate" and added is not None:
         said.add(added)
         return [
@@ -236,17 +243,23 @@ def _metabolic_primary(
             f"that {rule} predicts."
         ], False
     if reading.sample == "venous":
-        if added is not None and not expected.low <= reading.pco2 <= expected.high:
-            said.add(added)
-            return [
-                f"{gas} shows a primary {word}.",
-                f"The {pco2} is {side} the {span} that {rule} predicts, which suggests an added "
-                f"{WORDS[added]} but cannot establish one from a venous sample.",
-            ], False
+        # Never set against the arterial prediction (Bloom 2014; Kelly 2016): the reading leaves it unjudged.
         return [
             f"{gas} shows a primary {word}.",
-            f"The {pco2} would fit the {span} that {rule} predicts, but a venous PCO2 cannot confirm "
-            "compensation; an arterial gas would settle it if that matters.",
+            "Respiratory compensation is not assessable on a venous sample, since a venous PCO2 differs from "
+            "the arterial value by a few mmHg on average and far more in some patients; an arterial gas "
+            "would settle it if that matters.",
+        ], False
+    if added is not None and reading.compensation_edge in ("near_edge", "other_form"):
+        said.add(added)
+        why = (
+            "only just, where published forms of the rule differ"
+            if reading.compensation_edge == "near_edge"
+            else "inside the range another published form of the rule gives"
+        )
+        return [
+            f"{gas} shows a primary {word}; the {pco2} is {side} the {span} that {rule} predicts, but {why}, "
+            f"so an added {WORDS[added]} is possible, not established."
         ], False
     if added is not None and reading.pco2 < expected.low:
         said.add(added)
@@ -289,6 +302,11 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
     acute, chronic = _respiratory_ranges(reading)
     if expected is None or acute is None or chronic is None or reading.hco3 is None:
         return [f"{gas} shows a primary {word}."]
+    if reading.sample == "venous":
+        return [
+            f"{gas} shows a primary {word}; its compensation and chronicity are not assessable on a venous "
+            "sample, since the rules take an arterial PaCO2; an arterial gas would settle them if that matters."
+        ]
     both = f"the acute ({_range(acute)}) and chronic ({_range(chronic)}) ranges"
     hco3 = _mmol(reading.hco3)
     outside = not (min(acute.low, chronic.low) <= reading.hco3 <= max(acute.high, chronic.high))
@@ -296,12 +314,12 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
     if outside and added is not None:
         said.add(added)
         side = "above" if reading.hco3 > max(acute.high, chronic.high) else "below"
-        if reading.compensation == "inappropriate":
-            return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
-        return [
-            f"{gas} shows a primary {word}; the HCO3 of {hco3} is {side} {both}, which suggests an added "
-            f"{WORDS[added]} but cannot establish one from a venous sample."
-        ]
+        if added not in reading.disorders:  # only possible: the gas is internally inconsistent
+            return [
+                f"{gas} shows a primary {word}; the HCO3 of {hco3} is {side} {both}, which would add a "
+                f"{WORDS[added]} if a repeat gas confirms these values."
+            ]
+        return [f"{gas} shows a primary {word} with an added {WORDS[added]}: the HCO3 of {hco3} is {side} {both}."]
     fits = {
         "chronic": f"with appropriate renal compensation for a chronic process (expected HCO3 {_range(chronic)} "
         f"by {_by_rule(chronic.rule)})",
@@ -311,10 +329,7 @@ def _respiratory_primary(reading: AcidBaseReading, gas: str, said: set[str]) -> 
         "between": f"whose bicarbonate of {hco3} lies between {both}, as in a process some days old or an "
         "acute rise on a chronic one",
     }
-    text = f"{gas} shows a primary {word} {fits[reading.chronicity or 'indeterminate']}"
-    if reading.compensation == "uncertain":
-        text += "; with a venous sample this reading is provisional"
-    return [text + "."]
+    return [f"{gas} shows a primary {word} {fits[reading.chronicity or 'indeterminate']}."]
 
 
 # The anion gap ---------------------------------------------------------------------------------
@@ -342,6 +357,12 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
         text = f"The {adjective}anion gap is high at {_mmol(used)} (reference {reference})"
         if reading.primary == "metabolic_acidosis":
             text += ", so this is a high anion gap acidosis"
+        elif "metabolic_acidosis" not in reading.disorders and reading.gas_panel_agreement == "disagree":
+            said.add("metabolic_acidosis")
+            text += (
+                ", which would add a high anion gap metabolic acidosis, but the gas and the panel disagree "
+                "about the bicarbonate, so both are worth repeating together before relying on it"
+            )
         else:
             said.add("metabolic_acidosis")
             text += ", which adds a high anion gap metabolic acidosis"
@@ -350,8 +371,9 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
         sentences.append(text + ".")
     elif reading.anion_gap_status == "normal" and used < reading.anion_gap_reference[0]:
         sentences.append(
-            f"The {adjective}anion gap is below the reference range at {_mmol(used)} ({reference}); a "
-            "laboratory error is worth excluding."
+            f"The {adjective}anion gap is below the reference range at {_mmol(used)} ({reference}); "
+            "unmeasured cations (a high calcium or magnesium, lithium, a paraprotein) or a laboratory error "
+            "would explain it."
         )
     elif reading.anion_gap_status == "normal":
         if reading.primary == "metabolic_acidosis":
@@ -371,13 +393,25 @@ def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
         return []
     ratio = reading.delta_ratio
     shown = f"The delta ratio of {ratio:.1f}" if ratio is not None else ""
-    if "metabolic alkalosis" in meaning:
+    verdict = reading.delta_ratio_verdict
+    if verdict in ("metabolic_alkalosis_too", "metabolic_alkalosis_or_respiratory_compensation"):
         said.add("metabolic_alkalosis")
-        other = " or the compensation of a respiratory acidosis" if "compensation" in meaning else ""
+        other = (
+            " or the compensation of a respiratory acidosis"
+            if verdict == "metabolic_alkalosis_or_respiratory_compensation"
+            else ""
+        )
         if ratio is None:
             return [
                 "The bicarbonate has not fallen although the gap is high, which points to a concurrent "
                 f"metabolic alkalosis{other}."
+            ]
+        fall = reading.delta_gap / ratio if reading.delta_gap is not None and ratio > 0 else None
+        if fall is not None and fall < 2:
+            # A ratio over a fall of 1-2 mmol/L is unstable (Rastegar 2007): give the two changes instead.
+            return [
+                f"The gap has risen by {_mmol(reading.delta_gap or 0)} while the bicarbonate has barely fallen, "
+                f"which points to a concurrent metabolic alkalosis{other}."
             ]
         return [
             f"{shown} shows that the bicarbonate has fallen far less than the gap has risen, which points to "
@@ -385,11 +419,11 @@ def _delta_ratio(reading: AcidBaseReading, said: set[str]) -> list[str]:
         ]
     if ratio is None:
         return [_sentence(meaning)]
-    if "accompanies" in meaning:
+    if verdict == "normal_gap_acidosis_too":
         return [f"{shown} points to a normal anion gap acidosis alongside it."]
-    if "mixed" in meaning:
+    if verdict == "mixed_possible":
         return [f"{shown} leaves room for a normal anion gap component as well."]
-    if "alone" in meaning:
+    if verdict == "high_gap_alone":
         return [f"{shown} fits a high anion gap acidosis alone."]
     return [f"{shown} suggests {_clause(meaning)}."]
 

@@ -72,7 +72,7 @@ _CLASS_WORDS: dict[str, str] = {
 }
 _PH_FIELDS = frozenset({"gas.ph", "urine.ph"})
 _GAS_LABELS = {"gas.ph": "pH", "gas.pco2": "PaCO2", "gas.hco3": "HCO3 (gas)", "gas.po2": "PaO2"}
-_VENOUS_LABELS = {"gas.ph": "pH (venous)", "gas.pco2": "PCO2 (venous)", "gas.hco3": "HCO3 (venous gas)"}
+_VENOUS_LABELS = {"gas.ph": "Venous pH", "gas.pco2": "PvCO2", "gas.hco3": "HCO3 (venous gas)"}
 _BLANK_RUNS = re.compile(r"\n{3,}")
 
 

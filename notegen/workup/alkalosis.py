@@ -25,6 +25,7 @@ from notegen.engine.facts import as_fact, plain_value
 from notegen.engine.results import EvidenceResult, OpenEvidence
 from notegen.knowledge import ALKALOSIS_PACK, Knowledge, shipped_knowledge
 from notegen.knowledge.packs import check_rule_pack, pack_dirs
+from notegen.knowledge.settings import AcidBaseSettings
 from notegen.workup.facts import derive_facts
 from notegen.workup.model import (
     CauseEntry,
@@ -110,6 +111,7 @@ def evaluate_alkalosis(
     calculations: Mapping[str, Calculation] | None = None,
     extra_facts: Mapping[str, FactInput] | None = None,
     explain: bool = False,
+    settings: AcidBaseSettings | None = None,
 ) -> RuleResult:
     """Run the alkalosis pack when the reading finds a metabolic alkalosis.
 
@@ -121,7 +123,7 @@ def evaluate_alkalosis(
     label = f"{pack.id} {pack.spec.pack.version}"
     if found is None:
         return RuleResult(applies=False, alkalosis=None, chloride_class=None, pack=label)
-    facts: dict[str, Fact] = derive_facts(case, reading, pack, calculations)
+    facts: dict[str, Fact] = derive_facts(case, reading, pack, calculations, settings)
     for name, value in (extra_facts or {}).items():
         facts[name] = as_fact(value)
     result = walk(pack, facts)

@@ -5,9 +5,10 @@ Every value is in the unit the pack's fact catalogue declares. A value the case 
 - a finding not listed in the case is `false` ("not reported"), which the pack words as such;
 - a medication class counts as absent only when every listed medication was recognised; with an
   unrecognised one, "is a loop diuretic listed?" is unknown;
-- a loop or thiazide is "acting" when its last dose lies within the action window of its class,
-  a pack setting (`loop_diuretic_action_hours`, `thiazide_diuretic_action_hours`), so a service can
-  change the window in its own folder.
+- a loop or thiazide is "acting" when its last dose lies within that drug's usual duration of
+  effect (`action_hours` in rules/vocabulary/medications.yaml: chlorthalidone lasts 48-72 h,
+  furosemide about 6 h); a drug without one falls back on its class's window, a pack setting
+  (`loop_diuretic_action_hours`, `thiazide_diuretic_action_hours`).
 """
 
 from __future__ import annotations
@@ -16,11 +17,14 @@ from collections.abc import Mapping
 
 from notegen._format import join_words
 from notegen.acidbase.calculations import Calculation
+from notegen.acidbase.critical_values import hypercalcemia
 from notegen.acidbase.formulas import CREATININE_MOLAR_MASS
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
+from notegen.knowledge import vocabulary as vocab
+from notegen.knowledge.settings import AcidBaseSettings, default_acid_base_settings
 
 CALCIUM_MOLAR_MASS = 40.078  # g/mol (IUPAC standard atomic weight)
 
@@ -30,7 +34,10 @@ FINDINGS = (
     "diarrhea",
     "edema",
     "corrected_hypercapnia",
+    "chronic_co2_retention",
+    "ventilatory_support",
     "transfusion",
+    "plasma_exchange",
     "hypertension",
     "heart_failure",
     "cirrhosis",
@@ -47,11 +54,13 @@ CLASS_FACTS = {
     "glucocorticoid_listed": ("glucocorticoid",),
     "glycyrrhizin_listed": ("glycyrrhizin",),
     "alkali_listed": ("alkali",),
+    "calcium_salt_listed": ("calcium_salt",),
     "laxative_listed": ("laxative",),
 }
 NAME_FACTS = {
     "diuretic_names": ("loop_diuretic", "thiazide_diuretic"),
     "alkali_names": ("alkali",),
+    "calcium_names": ("calcium_salt",),
     "mineralocorticoid_names": ("mineralocorticoid", "glycyrrhizin"),
 }
 
@@ -84,6 +93,18 @@ def _setting_hours(pack: RulePack, setting: str) -> float:
     return value
 
 
+def action_window(med: Medication, pack: RulePack) -> float:
+    """Hours after the last dose during which this diuretic may still shape the urine chloride.
+
+    The drug's own longest usual duration of effect when the vocabulary has one, else its class's
+    window from the pack.
+    """
+    info = vocab.drug(med.generic) if med.generic else None
+    if info is not None and info.action_hours is not None:
+        return info.action_hours[1]
+    return max(_setting_hours(pack, DIURETIC_WINDOWS[c]) for c in med.classes if c in DIURETIC_WINDOWS)
+
+
 def _of_classes(meds: tuple[Medication, ...], classes: tuple[str, ...]) -> list[Medication]:
     return [m for m in meds if set(m.classes) & set(classes)]
 
@@ -114,7 +135,7 @@ def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
     acting = False
     untimed: list[str] = []
     for med in diuretics:
-        window = max(_setting_hours(pack, DIURETIC_WINDOWS[c]) for c in med.classes if c in DIURETIC_WINDOWS)
+        window = action_window(med, pack)
         if med.last_dose_hours is None:
             untimed.append(med.name)
         elif med.last_dose_hours <= window:
@@ -144,13 +165,21 @@ def derive_facts(
     reading: AcidBaseReading,
     pack: RulePack,
     calculations: Mapping[str, Calculation] | None = None,
+    settings: AcidBaseSettings | None = None,
 ) -> dict[str, Fact]:
-    """Every fact of the alkalosis pack's catalogue, present or missing with a reason."""
+    """Every fact of the alkalosis pack's catalogue, present or missing with a reason.
+
+    `settings` are the acid-base thresholds (calcium, PaCO2) the reading also uses, so each is
+    defined once, in rules/acid_base.yaml.
+    """
     chem, urine, context = case.chem, case.urine, case.context
     calcs = calculations or {}
+    s = settings or default_acid_base_settings()
     facts: dict[str, Fact] = {
         "urine_cl": _number(case, "urine.cl", urine.cl, "mmol/L"),
         "urine_na": _number(case, "urine.na", urine.na, "mmol/L"),
+        "urine_k": _number(case, "urine.k", urine.k, "mmol/L"),
+        "urine_ph": _number(case, "urine.ph", urine.ph, ""),
         "k": _number(case, "chem.k", chem.k, "mmol/L"),
         "mg": _number(case, "chem.mg", chem.mg, "mg/dL"),
         "hco3": NumberFact(reading.hco3, "mmol/L") if reading.hco3 is not None else MissingFact("no bicarbonate"),
@@ -165,10 +194,15 @@ def derive_facts(
     }
     if reading.pco2 is not None and reading.sample in ("arterial", "unstated"):
         facts["arterial_pco2"] = NumberFact(reading.pco2, "mmHg")
+        # Against the reading's own upper limit (rules/acid_base.yaml `pco2_high`), defined once.
+        facts["hypercapnic"] = BooleanFact(reading.pco2 > s.pco2_high.value)
     elif reading.sample == "venous":
-        facts["arterial_pco2"] = MissingFact("venous sample; its PCO2 is not converted")
+        facts["arterial_pco2"] = facts["hypercapnic"] = MissingFact("venous sample; its PCO2 is not converted")
     else:
-        facts["arterial_pco2"] = MissingFact("no blood gas PCO2")
+        facts["arterial_pco2"] = facts["hypercapnic"] = MissingFact("no blood gas PCO2")
+    facts["alkalemia"] = (
+        BooleanFact(reading.ph_status == "alkalemia") if reading.ph_status is not None else MissingFact("no pH")
+    )
     for name, unit in (("egfr", "mL/min/1.73 m2"), ("urine_k_creatinine", "mmol/mmol")):
         calculation = calcs.get(name)
         if calculation is not None and calculation.unit != unit:
@@ -186,7 +220,19 @@ def derive_facts(
         facts["bp_reading"] = TextFact(f"{context.bp.systolic}/{context.bp.diastolic} mmHg")
     else:
         facts["systolic_bp"] = facts["diastolic_bp"] = facts["bp_reading"] = MissingFact()
+    if chem.mg is not None:
+        # The reading's own limits (rules/acid_base.yaml), so each is defined once.
+        facts["mg_low"] = BooleanFact(chem.mg < s.magnesium_low.value)
+        facts["mg_severe_low"] = BooleanFact(chem.mg < s.magnesium_low_warning.value)
+    else:
+        facts["mg_low"] = facts["mg_severe_low"] = MissingFact()
+    high_calcium = hypercalcemia(case, s)
+    facts["hypercalcemia"] = (
+        BooleanFact(high_calcium) if high_calcium is not None else MissingFact("no calcium measured")
+    )
     facts.update(urine_chloride_range(case))
+    units = context.blood_product_units
+    facts["blood_product_units"] = NumberFact(float(units), "units") if units is not None else MissingFact()
     facts["volume"] = TextFact(context.volume) if context.volume != "unknown" else MissingFact()
     for finding in FINDINGS:
         facts[finding] = BooleanFact(finding in context.findings)

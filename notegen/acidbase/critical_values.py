@@ -1,0 +1,173 @@
+"""Calcium, sodium and glucose read against their thresholds, so none is missed in an acid-base note.
+
+Calcium is read as ionized calcium when measured, else as total calcium corrected for albumin
+(Payne et al., BMJ 1973), else as total calcium. Thresholds live in `rules/acid_base.yaml`; each
+is common practice, since laboratories set their own critical values.
+"""
+
+from __future__ import annotations
+
+from typing import Literal
+
+from notegen._format import format_value, round_half_up
+from notegen.acidbase.alert import Alert
+from notegen.acidbase.calculations import usable
+from notegen.acidbase.formulas import corrected_calcium
+from notegen.case.model import Case
+from notegen.knowledge.settings import AcidBaseSettings
+
+CalciumBasis = Literal["ionized", "corrected_total", "total"]
+
+
+def calcium_for_reading(case: Case, s: AcidBaseSettings) -> tuple[CalciumBasis, float] | None:
+    """The total calcium to read (mg/dL), corrected for albumin when albumin is given."""
+    chem = case.chem
+    if not usable(chem.ca):
+        return None
+    assert chem.ca is not None
+    if usable(chem.albumin):
+        assert chem.albumin is not None
+        value = corrected_calcium(chem.ca, chem.albumin, s.normal_albumin.value, s.calcium_albumin_factor.value)
+        return "corrected_total", value
+    return "total", chem.ca
+
+
+def hypercalcemia(case: Case, s: AcidBaseSettings) -> bool | None:
+    """Whether the calcium is high; None when no calcium was measured.
+
+    Ionized calcium, when given, decides: alkalemia shifts calcium onto albumin, so a total
+    calcium can mislead either way.
+    """
+    if usable(case.chem.ionized_ca):
+        assert case.chem.ionized_ca is not None
+        return case.chem.ionized_ca > s.ionized_ca_high.value
+    total = calcium_for_reading(case, s)
+    if total is None:
+        return None
+    return total[1] > s.calcium_high.value
+
+
+def _calcium_words(basis: CalciumBasis, value: float) -> str:
+    shown = format_value(round_half_up(value, 1), "mg/dL")
+    return {"corrected_total": f"Calcium corrected for albumin {shown}", "total": f"Total calcium {shown}"}.get(
+        basis, shown
+    )
+
+
+def calcium_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
+    """High calcium (ionized or corrected total) and a severely low corrected total calcium."""
+    alerts: list[Alert] = []
+    ionized = case.chem.ionized_ca
+    if usable(ionized):
+        assert ionized is not None
+        if ionized > s.ionized_ca_high.value:
+            alerts.append(
+                Alert(
+                    code="hypercalcemia",
+                    level="warning",
+                    message=(
+                        f"Ionized calcium {format_value(ionized, 'mmol/L')} is above "
+                        f"{format_value(s.ionized_ca_high.value, 'mmol/L')}: hypercalcemia; consider its cause "
+                        "(calcium and alkali intake, parathyroid hormone, malignancy) and the volume status."
+                    ),
+                )
+            )
+        return alerts  # ionized calcium decides; its low alerts are in `alerts`
+    total = calcium_for_reading(case, s)
+    if total is None:
+        return alerts
+    basis, value = total
+    words = _calcium_words(basis, value)
+    if value >= s.calcium_high_critical.value:
+        alerts.append(
+            Alert(
+                code="hypercalcemia",
+                level="critical",
+                message=(
+                    f"{words} is at or above {format_value(s.calcium_high_critical.value, 'mg/dL')}: severe "
+                    "hypercalcemia; consider urgent review, an ionized calcium and the volume status."
+                ),
+            )
+        )
+    elif value > s.calcium_high.value:
+        alerts.append(
+            Alert(
+                code="hypercalcemia",
+                level="warning",
+                message=(
+                    f"{words} is above {format_value(s.calcium_high.value, 'mg/dL')}: hypercalcemia; consider "
+                    "an ionized calcium and its cause (calcium and alkali intake, parathyroid hormone, malignancy)."
+                ),
+            )
+        )
+    elif value < s.calcium_low_critical.value:
+        alerts.append(
+            Alert(
+                code="severe_hypocalcemia",
+                level="critical",
+                message=(
+                    f"{words} is below {format_value(s.calcium_low_critical.value, 'mg/dL')}: severe "
+                    "hypocalcemia unless the ionized calcium says otherwise; consider an ionized calcium, "
+                    "cardiac monitoring and urgent review. Alkalemia lowers ionized calcium further."
+                ),
+            )
+        )
+    return alerts
+
+
+def sodium_glucose_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
+    """Sodium and glucose beyond their critical values (common practice; laboratories set their own)."""
+    alerts: list[Alert] = []
+    na, glucose = case.chem.na, case.chem.glucose
+    if usable(na):
+        assert na is not None
+        shown = format_value(na, "mmol/L")
+        if na < s.sodium_low_critical.value:
+            alerts.append(
+                Alert(
+                    code="severe_hyponatremia",
+                    level="critical",
+                    message=(
+                        f"Sodium {shown} is below {format_value(s.sodium_low_critical.value, 'mmol/L')}: severe "
+                        "hyponatremia; consider urgent review, with attention to symptoms and to the rate of "
+                        "correction."
+                    ),
+                )
+            )
+        elif na > s.sodium_high_critical.value:
+            alerts.append(
+                Alert(
+                    code="severe_hypernatremia",
+                    level="critical",
+                    message=(
+                        f"Sodium {shown} is above {format_value(s.sodium_high_critical.value, 'mmol/L')}: severe "
+                        "hypernatremia; consider urgent review of water balance and the rate of correction."
+                    ),
+                )
+            )
+    if usable(glucose):
+        assert glucose is not None
+        shown = format_value(glucose, "mg/dL")
+        if glucose < s.glucose_low_critical.value:
+            alerts.append(
+                Alert(
+                    code="hypoglycemia",
+                    level="critical",
+                    message=(
+                        f"Glucose {shown} is below {format_value(s.glucose_low_critical.value, 'mg/dL')}: "
+                        "hypoglycemia; consider urgent treatment and review."
+                    ),
+                )
+            )
+        elif glucose > s.glucose_high_critical.value:
+            alerts.append(
+                Alert(
+                    code="severe_hyperglycemia",
+                    level="critical",
+                    message=(
+                        f"Glucose {shown} is above {format_value(s.glucose_high_critical.value, 'mg/dL')}: severe "
+                        "hyperglycemia; consider urgent review for ketoacidosis or a hyperosmolar state."
+                    ),
+                )
+            )
+    return alerts
