@@ -275,12 +275,17 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
                 "Inker et al., NEJM 2021 (CKD-EPI 2021, no race term)",
                 note="assumes creatinine is in a steady state; not valid while it is rising or falling",
             )
+    gap: float | None = None
     if usable(chem.osm) and usable(chem.na) and usable(chem.glucose) and usable(chem.bun):
+        assert chem.osm is not None and chem.na is not None and chem.glucose is not None
+        assert chem.bun is not None
+        gap = osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun)
+    if gap is not None and gap >= s.osmolal_gap_floor.value:  # below: named by `impossible_osmolal_gap`
         assert chem.osm is not None and chem.na is not None and chem.glucose is not None
         assert chem.bun is not None
         out["osmolal_gap"] = _calc(
             "osmolal_gap",
-            osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun),
+            gap,
             "mOsm/kg",
             "measured - (2 x Na + glucose/18 + BUN/2.8)",
             {
@@ -388,6 +393,9 @@ def missing_calculations(
         "corrected_calcium": "total calcium and albumin",
     }
     out = {name: f"needs {text}" for name, text in needs.items() if name not in done}
+    impossible = impossible_osmolal_gap(case, settings)
+    if impossible is not None:
+        out["osmolal_gap"] = impossible
     age = case.patient.age
     if "egfr" in out and age is not None and age < EGFR_MIN_AGE and usable(case.chem.creatinine):
         out["egfr"] = f"not calculated: age {age:g} years; CKD-EPI 2021 applies to adults only"
@@ -399,3 +407,20 @@ def missing_calculations(
                 f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} {verb} not"
             )
     return out
+
+
+def impossible_osmolal_gap(case: Case, settings: AcidBaseSettings | None = None) -> str | None:
+    """Why the osmolal gap was not given, when its inputs give a gap no patient has; else None."""
+    s = settings or default_acid_base_settings()
+    chem = case.chem
+    if not (usable(chem.osm) and usable(chem.na) and usable(chem.glucose) and usable(chem.bun)):
+        return None
+    assert chem.osm is not None and chem.na is not None and chem.glucose is not None and chem.bun is not None
+    gap = osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun)
+    if gap >= s.osmolal_gap_floor.value:
+        return None
+    return (
+        f"not given: the measured osmolality is more than {format_value(-s.osmolal_gap_floor.value, 'mOsm/kg')} "
+        "below the one calculated from sodium, glucose and BUN, beyond any published range (about -14 to +10); "
+        "a sodium, glucose or BUN in the wrong unit, or a mistyped value, is likely: check them"
+    )

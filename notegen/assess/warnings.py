@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from notegen.acidbase.calculations import Calculation, missing_calculations
+from notegen.acidbase.calculations import Calculation, impossible_osmolal_gap, missing_calculations
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
 
@@ -18,6 +18,9 @@ def collect_warnings(case: Case, reading: AcidBaseReading, calculations: Mapping
         egfr = missing_calculations(case, done=calculations).get("egfr")
         if egfr is not None:
             extra.append(f"eGFR {egfr}.")
+    impossible = impossible_osmolal_gap(case)
+    if impossible is not None:
+        extra.append(f"Osmolal gap {impossible}.")
     for text in (*reading.missing, *extra, *case.notices):
         if text not in seen:
             seen.append(text)

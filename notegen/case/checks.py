@@ -65,6 +65,7 @@ class _Collector:
     filename: str | None
     provenance: Mapping[str, str]
     default_source: str
+    declared: bool = False  # the case names its unit system (`units:`); bare values are then read in it
     problems: list[tuple[str, str]] = field(default_factory=list)
     measurements: list[Measurement] = field(default_factory=list)
     notices: list[str] = field(default_factory=list)

@@ -34,6 +34,7 @@ from notegen.case.model import (
     Measurement,
     Urine,
 )
+from notegen.case.unit_checks import ambiguous_bare_pco2, ambiguous_bare_value
 from notegen.errors import CaseFileError, CaseValueError
 from notegen.knowledge import vocabulary as vocab
 
@@ -202,6 +203,11 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         if parsed is None:
             continue
         number, unit, qualifier = parsed
+        if not col.declared and not _unit_given(values[key]):
+            refusal = ambiguous_bare_value(field_name, number, urea=key == "urea")
+            if refusal is not None:
+                col.problem(key_path, refusal)
+                continue
         reported_unit = unit
         if key == "urea":
             reported_unit = f"{unit} urea"
@@ -229,6 +235,10 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         )
     if section == "gas" and not _unit_given(values.get("pco2")):
         _check_pco2_unit(out, f"{path}.pco2", col)
+        if not col.declared and out.get("pco2") is not None:
+            refusal = ambiguous_bare_pco2(out["pco2"], out.get("ph"), out.get("hco3"))
+            if refusal is not None:
+                col.problem(f"{path}.pco2", refusal)
     return None if bad_time else out
 
 
@@ -394,6 +404,7 @@ def validate_case(
         filename=filename,
         provenance=provenance or {},
         default_source=default_source,
+        declared="units" in data,
     )
     for key in data:
         if key not in TOP_KEYS:

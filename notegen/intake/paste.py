@@ -22,6 +22,7 @@ from typing import Any
 
 from notegen.errors import InputError, PasteError
 from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
+from notegen.intake.unit_system import settle_units
 from notegen.knowledge.analytes import Heading, Vocabulary, load_vocabulary, normalise
 
 # How an analyte id reads in a message, where the id is not already the word ("ph" is pH).
@@ -85,7 +86,7 @@ def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
     vocabulary = load_vocabulary()
     reader = _PasteReader(vocabulary, source)
     lab_lines = reader.read_lines(text)
-    readings = reader.resolve(lab_lines)
+    readings = settle_units(reader.resolve(lab_lines))
 
     def conflict(message: str, involved: Any) -> InputError:
         lines = [r.line for r in involved if r.line is not None]
