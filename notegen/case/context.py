@@ -20,6 +20,7 @@ from notegen.case.checks import (
     _shown,
     _unsafe_character,
 )
+from notegen.case.drug_names import near_miss
 from notegen.case.model import BloodPressure, Context, Medication, Patient
 from notegen.knowledge import vocabulary as vocab
 
@@ -155,6 +156,13 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
         col.problem(path, unsafe)
         return None
     info = _lookup_drug(name)
+    if info is None and (meant := near_miss(name)) is not None:
+        col.problem(
+            path,
+            f"{_shown(name)} is not a medication notegen knows; did you mean {meant!r}? Correct the spelling "
+            "(a misspelt diuretic would leave the reasoning)",
+        )
+        return None
     if info is None:
         col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
         return Medication(name=name, last_dose_hours=hours)

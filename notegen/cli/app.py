@@ -128,6 +128,9 @@ def _draft(
         stdin=sys.stdin.buffer.read(MAX_BYTES + 1) if needs_stdin else None,  # one byte past the limit refuses
         window_hours=window_hours,
     )
+    for medication in case.context.meds:
+        if not medication.recognised:  # in the note too; said here so a pipeline's log shows it
+            _say(f"medication {medication.name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
     _write_output(drafter.draft(case, options), output)
     return 0
 

@@ -122,6 +122,7 @@ class _PasteReader:
         self.headings = vocabulary.heading_index()
         self.markers = vocabulary.marker_index()
         self.noise = set(vocabulary.noise)
+        self.derived = set(vocabulary.derived)
         self.time_labels = {normalise(label) for label in vocabulary.time_labels}
         self.flags = {flag.lower() for flag in vocabulary.flags}
         self.empty_cells = {cell.lower() for cell in vocabulary.empty_cells}
@@ -216,7 +217,16 @@ class _PasteReader:
         unit_in_name = _PAREN_UNIT.search(name_text)
         if unit_in_name:
             name_text = name_text[: unit_in_name.start()] + name_text[unit_in_name.end():]
+        name_words = normalise(name_text).split()
+        derived = [word for word in name_words if word in self.derived]
+        if derived:  # "Osmolality, calculated": another quantity, unless the analyte is calculated anyway
+            name_text = " ".join(word for word in name_words if word not in self.derived)
         analyte, marker = self._analyte(name_text)
+        if analyte is not None and derived and not self.vocabulary.analytes[analyte].calculated:
+            label = _ANALYTE_WORDS.get(analyte, analyte.replace("_", " "))
+            self._unused(number, line, f"is marked {derived[0]!r}: a calculated, estimated or corrected value "
+                                       f"is not the measured {label}; only measured values are read")
+            return None
         if analyte is None:
             if first is None:
                 known = self._leading_analyte(name_text)

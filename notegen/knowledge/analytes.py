@@ -35,6 +35,9 @@ class Analyte(BaseModel):
     fields: dict[SectionName, str]
     names: list[str]
     sample: SampleName | None = None
+    # True when the reported value is itself calculated (a gas report's HCO3), so "calc" beside
+    # it names the same analyte; otherwise a `derived` word makes the line another quantity.
+    calculated: bool = False
 
 
 class Heading(BaseModel):
@@ -51,6 +54,7 @@ class Vocabulary(BaseModel):
     analytes: dict[str, Analyte]
     markers: dict[MarkerName, list[str]]
     noise: list[str]
+    derived: list[str] = []
     headings: list[Heading]
     time_labels: list[str]
     flags: list[str]
