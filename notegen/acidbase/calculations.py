@@ -34,6 +34,7 @@ from notegen.acidbase.formulas import (
     osmolal_gap,
     urine_potassium_creatinine_ratio,
 )
+from notegen.case.bounds import exact_only
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings, Setting, default_acid_base_settings
 
@@ -361,6 +362,7 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
 def compute_calculations(case: Case, settings: AcidBaseSettings | None = None) -> dict[str, Calculation]:
     """Every calculation whose inputs the case holds, keyed by stable name, in a fixed order."""
     s = settings or default_acid_base_settings()
+    case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
     out: dict[str, Calculation] = {}
     _gas_calculations(case, s, out)
     _gap_calculations(case, s, out)

@@ -42,6 +42,7 @@ from notegen.acidbase.steps import (
     read_anion_gap,
     respiratory_compensation,
 )
+from notegen.case.bounds import exact_only
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings, default_acid_base_settings
 
@@ -231,6 +232,7 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
 def read_acid_base(case: Case, settings: AcidBaseSettings | None = None) -> AcidBaseReading:
     """Read the acid-base status of a validated case. Never raises on a validated case."""
     s = settings or default_acid_base_settings()
+    case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
     w = ReadingDraft(s=s, venous=case.gas.sample == "venous")
     g = _gas_values(case, w)
     if g.sample == "unstated":

@@ -5,6 +5,7 @@ from __future__ import annotations
 import difflib
 import math
 import re
+import unicodedata
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
@@ -19,7 +20,20 @@ YEARS = (1900, 2199)
 # Control characters (a terminal runs ESC sequences printed with the note) and the bidirectional
 # overrides that make text display in another order than it reads; tab and newlines are harmless.
 _UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
-_VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
+# `q` takes <=, >=, ≤ and ≥ too, so that they are refused rather than read as < and >; digits are
+# ASCII only (a Bengali ৪ looks like 8 but Python reads it as 4).
+_VALUE_TEXT = re.compile(
+    r"^\s*(?P<q>[<>]=?|[≤≥])?\s*(?P<num>[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+))\s*(?P<unit>.*?)\s*$"
+)
+
+
+def foreign_digit(text: str) -> str | None:
+    """What is wrong with `text` if it holds a digit other than 0-9, else None."""
+    for char in text:
+        if char.isdigit() and not "0" <= char <= "9":
+            name = unicodedata.name(char, f"U+{ord(char):04X}")
+            return f"holds the digit {char!r} ({name}); write numbers with the digits 0-9"
+    return None
 
 
 def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:

@@ -25,6 +25,7 @@ from notegen.case.checks import (
     _key,
     _shown,
     _unsafe_character,
+    foreign_digit,
 )
 from notegen.case.context import validate_context, validate_patient
 from notegen.case.model import (
@@ -74,6 +75,12 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
         number = float(raw)
     elif isinstance(raw, str):
         match = _VALUE_TEXT.match(raw)
+        if (digit := foreign_digit(raw)) is not None:
+            col.problem(path, f"{raw[:60]!r} {digit}")
+            return None
+        if match and match["q"] not in (None, "<", ">"):
+            col.problem(path, f"{raw[:60]!r}: {match['q']!r} cannot be held; a reported bound is < or > (e.g. \"<20\")")
+            return None
         if not match:
             col.problem(path, f'{raw[:60]!r} is not a number with an optional unit (e.g. "6.2 kPa")')
             return None

@@ -20,6 +20,7 @@ from dataclasses import dataclass, field
 from datetime import datetime
 from typing import Any
 
+from notegen.case.checks import foreign_digit
 from notegen.errors import InputError, PasteError
 from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
 from notegen.intake.unit_system import settle_units
@@ -83,6 +84,9 @@ def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
     Raises PasteError for what cannot be read safely: an ambiguous date, two different
     values for one field at one time, or a paste with no lab value at all.
     """
+    for number, raw in enumerate(text.splitlines(), start=1):
+        if (digit := foreign_digit(raw)) is not None:  # a Bengali ৪ looks like 8; Python would read 4
+            raise PasteError(f"{raw.strip()[:60]!r} {digit}", line=number, source=source)
     vocabulary = load_vocabulary()
     reader = _PasteReader(vocabulary, source)
     lab_lines = reader.read_lines(text)
