@@ -413,8 +413,8 @@ def test_json_lines_batch_reports_each_bad_line(tmp_path: Path) -> None:
         f"notegen: {path}:4: not valid JSON: `na` is given twice; keep one value",
         f"notegen: {path}:5: not valid JSON: a number with 5,000 digits cannot be a lab value",
         f"notegen: {path}:6, column 20: not valid JSON: Expecting property name enclosed in double quotes",
-        f"notegen: {path}:8: a case file is a mapping of sections (case, units, patient, gas, chem, urine, context), "
-        "but this one holds a list",
+        f"notegen: {path}:8: a case file is a mapping of sections (case, units, dates, patient, gas, chem, urine, "
+        "context), but this one holds a list",
         "notegen: 2 drafted, 6 rejected",
     ]
 

@@ -11,9 +11,10 @@ fits only the other system is refused with the suggestion, never converted.
 from __future__ import annotations
 
 import math
+from typing import Any
 
 from notegen.case import units as u
-from notegen.case.checks import _fmt
+from notegen.case.checks import _Collector, _fmt
 from notegen.knowledge import vocabulary as vocab
 from notegen.knowledge.settings import default_acid_base_settings
 
@@ -75,3 +76,46 @@ def _both_readings(field_name: str, number: float, urea: bool) -> str | None:
         '(e.g. "' + f'{_fmt(number)} {units.si}"), or declare the case\'s units '
         "(`units: si` or `units: conventional` in the case file, or --set units=si)"
     )
+
+
+def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tuple[str, float] | None:
+    """When a bare PCO2 (in `system`'s default unit) fits pH and bicarbonate only in the other unit.
+
+    Returns (the other unit, the PCO2 in mmHg that reading gives), or None. A kPa value typed
+    into a conventional case (6.4 for 48 mmHg) is still "plausible" in mmHg; Henderson-Hasselbalch
+    (pK 6.1, solubility 0.0307) tells the two apart.
+    """
+    if pco2 <= 0 or hco3 <= 0:
+        return None
+    default = u.default_unit("gas.pco2", system)
+    other = "kPa" if default == "mmHg" else "mmHg"
+    as_default = u.to_canonical("gas.pco2", pco2, default)
+    as_other = u.to_canonical("gas.pco2", pco2, other)
+    bounds = vocab.fields()["gas.pco2"]
+    if not bounds.low <= as_other <= bounds.high:
+        return None
+
+    def calculated_ph(pco2_mmhg: float) -> float:
+        return 6.1 + math.log10(hco3 / (0.0307 * pco2_mmhg))
+
+    if abs(calculated_ph(as_default) - ph) > 0.1 and abs(calculated_ph(as_other) - ph) <= 0.05:
+        return other, as_other
+    return None
+
+
+def _check_pco2_unit(gas: dict[str, Any], path: str, col: _Collector) -> None:
+    """Refuse, never convert, a bare PCO2 that only fits its own gas in the other unit."""
+    ph, pco2, hco3 = gas.get("ph"), gas.get("pco2"), gas.get("hco3")
+    if ph is None or pco2 is None or hco3 is None:
+        return
+    default = u.default_unit("gas.pco2", col.system)
+    reported = u.from_canonical("gas.pco2", pco2, default)
+    found = pco2_fits_other_unit(ph, reported, hco3, col.system)
+    if found is not None:
+        other, alternative = found
+        col.problem(
+            path,
+            f"{_fmt(reported)} {default} does not fit pH {_fmt(ph)} and bicarbonate {_fmt(hco3)}, but "
+            f"{_fmt(reported)} {other} ({_fmt(alternative)} mmHg) would; give the unit explicitly "
+            f'(e.g. "{_fmt(reported)} {other}")',
+        )

@@ -21,7 +21,7 @@ from notegen.errors import UsageError
 from notegen.intake.sections import parse_number, parse_value_text
 
 _LIST_FIELDS = {"context.meds", "context.findings"}
-_TOP_LEVEL = {"case", "units"}
+_TOP_LEVEL = {"case", "units", "dates"}
 _ASSIGNMENT = re.compile(r"^(?P<section>[a-z_]+)(?:\[(?P<index>-?\d+)\])?(?:\.(?P<field>[a-z_0-9]+))?$")
 
 

@@ -86,7 +86,7 @@ class _LabLine:
     cells: list[tuple[tuple[str, datetime] | None, dict[str, Any]]] = field(default_factory=list)
 
 
-def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
+def parse_paste(text: str, *, source: str = "paste", date_order: str | None = None) -> ParsedInput:
     """Read pasted lab text into case-file sections (`gas`, `chem`, `urine`).
 
     Raises PasteError for what cannot be read safely: an ambiguous date, two different
@@ -96,7 +96,7 @@ def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
         if (digit := foreign_digit(raw)) is not None:  # a Bengali ৪ looks like 8; Python would read 4
             raise PasteError(f"{raw.strip()[:60]!r} {digit}", line=number, source=source)
     vocabulary = load_vocabulary()
-    reader = _PasteReader(vocabulary, source)
+    reader = _PasteReader(vocabulary, source, date_order)
     text, commas = decimal_commas(text)
     lab_lines = reader.read_lines(text)
     readings = settle_units(reader.resolve(lab_lines))
@@ -130,7 +130,8 @@ def _line_number(entry: str) -> int:
 
 
 class _PasteReader:
-    def __init__(self, vocabulary: Vocabulary, source: str) -> None:
+    def __init__(self, vocabulary: Vocabulary, source: str, date_order: str | None = None) -> None:
+        self.date_order = date_order  # "day-first" / "month-first": how 03/04/2026 reads; None: refused
         self.vocabulary = vocabulary
         self.source = source
         self.names = vocabulary.name_index()
@@ -247,11 +248,15 @@ class _PasteReader:
             day = int(match["d"])
         else:
             first, second = int(match["a"]), int(match["b"])
-            if first <= 12 and second <= 12 and first != second:
+            if first <= 12 and second <= 12 and first != second and self.date_order is None:
                 raise PasteError(
                     f"{match.group(0).strip()!r} could be day/month or month/day; write the date as "
-                    f"{year:04d}-MM-DD", line=number, source=self.source)
-            month, day = (first, second) if second > 12 or first == second else (second, first)
+                    f"{year:04d}-MM-DD, or say how dates are written: `dates: day-first` (or month-first) in "
+                    "the case file, or --set dates=day-first", line=number, source=self.source)
+            if first <= 12 and second <= 12 and first != second:
+                month, day = (second, first) if self.date_order == "day-first" else (first, second)
+            else:
+                month, day = (first, second) if second > 12 or first == second else (second, first)
         hour = int(match["h"]) if match["h"] else None
         minute = int(match["mi"]) if match["mi"] else 0
         second_ = int(match["s"]) if match["s"] else 0
