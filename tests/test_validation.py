@@ -193,3 +193,20 @@ def test_categorical_results_read_against_the_laboratory_range() -> None:
         False,
     )
     assert "is not low, normal or high" in _problem({"context": {"renin": "12 ng/mL/h"}})
+
+
+@pytest.mark.parametrize(
+    ("data", "hint"),
+    [
+        ({"chem": {"sodium": 140}}, "field `chem.sodium`: not a known key; did you mean `na`?"),
+        ({"chem": {"potasium": 3.1}}, "field `chem.potasium`: not a known key; did you mean `k`?"),
+        ({"gas": {"bicarbonate": 20}}, "field `gas.bicarbonate`: not a known key; did you mean `hco3`?"),
+        (
+            {"context": {"medications": ["furosemide"]}},
+            "field `context.medications`: not a known key; did you mean `meds`?",
+        ),
+    ],
+)
+def test_a_misspelt_or_spelt_out_key_gets_the_closest_valid_key(data: Any, hint: str) -> None:
+    # Before: "sodium", "potasium" and "medications" were refused with no suggestion.
+    assert hint in _problem(data)

@@ -36,8 +36,14 @@ def foreign_digit(text: str) -> str | None:
     return None
 
 
-def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:
-    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+def _did_you_mean(
+    word: str, choices: tuple[str, ...] | list[str], aliases: Mapping[str, str] | None = None
+) -> str:
+    """"not a known key", with the closest valid key: an alias ("sodium" for `na`) or a near spelling."""
+    folded = re.sub(r"[\s_\-]+", " ", word.strip().lower())
+    names = {name: key for name, key in (aliases or {}).items() if key in choices}
+    names.update({choice: choice for choice in choices})
+    close = [names[name] for name in difflib.get_close_matches(folded, list(names), n=1, cutoff=0.6)]
     hint = f"; did you mean `{close[0]}`?" if close else ""
     return f"not a known key{hint} (known: {', '.join(choices)})"
 

@@ -180,6 +180,12 @@ def _lookup_drug(name: str) -> vocab.DrugInfo | None:
     return None
 
 
+_CONTEXT_ALIASES = {
+    "medications": "meds", "medication": "meds", "drugs": "meds", "med": "meds", "medicines": "meds",
+    "blood pressure": "bp", "symptoms": "findings", "finding": "findings", "volume status": "volume",
+}
+
+
 def validate_context(raw: Any, col: _Collector) -> Context:
     if raw is None:
         return Context()
@@ -190,7 +196,7 @@ def validate_context(raw: Any, col: _Collector) -> Context:
     for key, item in raw.items():
         path = f"context.{_key(key)}"
         if key not in CONTEXT_KEYS:
-            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS))
+            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS, _CONTEXT_ALIASES))
         elif item is None:
             continue
         elif key == "bp":

@@ -175,6 +175,18 @@ def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
     return when
 
 
+def _lab_aliases(section: str) -> dict[str, str]:
+    """Analyte names ("sodium", "bicarbonate") -> the section's key, to suggest for a misspelt key."""
+    from notegen.knowledge.analytes import load_vocabulary, normalise
+
+    return {
+        normalise(name): analyte.fields[section]
+        for analyte in load_vocabulary().analytes.values()
+        if section in analyte.fields
+        for name in analyte.names
+    }
+
+
 def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:
     if not isinstance(raw, Mapping):
         col.problem(path, f"expected a mapping of values, got a {type(raw).__name__}")
@@ -188,7 +200,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
     for key, item in raw.items():
         key_path = f"{path}.{_key(key)}"
         if key not in allowed:
-            col.problem(key_path, _did_you_mean(str(key), list(allowed)))
+            col.problem(key_path, _did_you_mean(str(key), list(allowed), _lab_aliases(section)))
             continue
         if item is None:
             continue

@@ -161,6 +161,8 @@ def _trend_row(series: TrendSeries) -> dict[str, str]:
     """One analyte as "7.48 (06:00) -> 7.53 (14:00)": value, then time of day, date when it changes."""
     parts: list[str] = []
     last_day = None
+    # times from different UTC offsets are shown with their offsets, so the order shown is the true order
+    mixed = len({p.taken_at.utcoffset() for p in series.points if p.taken_at is not None}) > 1
     for point in series.points:
         value = ph_text(point.value) if series.field.endswith(".ph") else trimmed_number(point.value, 1)
         if point.taken_at is None:
@@ -169,6 +171,9 @@ def _trend_row(series: TrendSeries) -> dict[str, str]:
         day = point.taken_at.date()
         when = point.taken_at.strftime("%H:%M") if day == last_day else point.taken_at.strftime("%Y-%m-%d %H:%M")
         last_day = day
+        if mixed:
+            offset = point.taken_at.isoformat()[-6:] if point.taken_at.utcoffset() is not None else "no zone"
+            when = f"{when} {'UTC' if offset == '+00:00' else offset}"
         parts.append(f"{value} ({when})")
     unit = f" {series.unit}" if series.unit else ""
     return {"label": series.label, "unit": unit.strip(), "text": " \u2192 ".join(parts) + unit}
