@@ -9,9 +9,10 @@ from __future__ import annotations
 from typing import Any
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, assume, event, given, settings
 from hypothesis import strategies as st
 
+from notegen._format import format_value
 from notegen.acidbase.calculations import compute_calculations, missing_calculations
 from notegen.case import units as u
 from notegen.case.unit_checks import AMBIGUOUS_FIELDS
@@ -20,6 +21,7 @@ from notegen.errors import CaseValueError
 from notegen.intake.paste import parse_paste
 from notegen.intake.read import read_case
 from notegen.knowledge import vocabulary as vocab
+from notegen.pipeline import Drafter
 
 
 def _problem(data: Any) -> str:
@@ -164,3 +166,61 @@ def test_a_bare_value_is_read_only_as_given_or_by_a_named_conversion(drawn: tupl
         assert not info.low <= other <= info.high
     if system is not None:
         assert measurement.reported_unit == u.default_unit(field, system)
+
+
+# --- Property: every value in the note's table is its input, or its input through a named conversion ------
+
+_NOTE_FIELDS = [f for f in _FIELDS if f not in ("gas.ph", "urine.ph")]
+
+
+@st.composite
+def _one_value_case(draw: st.DrawFn) -> tuple[dict[str, Any], str, float, str | None]:
+    field = draw(st.sampled_from(_NOTE_FIELDS))
+    info = vocab.fields()[field]
+    unit = draw(st.sampled_from([None, *u.accepted_units(field)]))
+    declared = draw(st.sampled_from([None, "si", "conventional"]))
+    as_unit = unit if unit is not None else u.default_unit(field, declared or "conventional")
+    # mostly plausible values (drawn in the canonical unit, then written in the reported one), some not
+    drawn = draw(st.floats(info.low * 0.5, info.high * 1.5, allow_nan=False))
+    number = float(f"{u.from_canonical(field, drawn, as_unit):.3g}")
+    assume(number > 0)
+    canonical = u.to_canonical(field, number, as_unit)
+    assume_ok = info.low <= canonical <= info.high
+    section, key = field.split(".")
+    value: Any = number if unit is None else {"value": number, "unit": unit}
+    data: dict[str, Any] = {section: {key: value}}
+    if declared is not None:
+        data["units"] = declared
+    return data, field, number, unit if assume_ok else "implausible"
+
+
+@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(_one_value_case())
+def test_every_value_in_the_note_is_its_input_or_a_named_conversion(
+    drawn: tuple[dict[str, Any], str, float, str | None],
+) -> None:
+    data, field, number, unit = drawn
+    try:
+        case = validate_case(data)
+    except CaseValueError:
+        event("refused")
+        return  # refused: nothing reaches a note
+    event("drafted")
+    assert unit != "implausible"  # an implausible value is never drafted
+    (measurement,) = case.measurements
+    note = Drafter().draft(case)
+    rows = [line for line in note.splitlines() if line.startswith("| ") and "|" in line[2:]]
+    (row,) = [r for r in rows if r.split("|")[2].strip().startswith(format_value(number))]
+    reported, converted = (cell.strip() for cell in row.split("|")[2:4])
+    # as reported: the number given, in the unit given (or the declared system's), nothing else
+    assert reported == format_value(number, measurement.reported_unit)
+    if unit is not None:
+        assert u.normalise_unit(unit) == measurement.reported_unit
+    # converted: unchanged, or the named factor of rules-independent unit arithmetic (units.py)
+    expected = u.to_canonical(field, number, measurement.reported_unit)
+    if converted != "unchanged":
+        shown, shown_unit = converted.rsplit(" ", 1)
+        assert shown_unit == u.FIELD_UNITS[field].canonical
+        assert float(shown) == pytest.approx(expected, rel=0.006)
+    else:
+        assert measurement.reported_unit == u.FIELD_UNITS[field].canonical or expected == pytest.approx(number)
