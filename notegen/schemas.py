@@ -155,7 +155,7 @@ def case_schema() -> dict[str, Any]:
             },
             "dates": {
                 "description": "How a pasted date such as 03/04/2026 is read: day first or month first.",
-                "enum": ["day-first", "month-first"],
+                "enum": ["day-first", "month-first", None],
             },
             "patient": _nullable(
                 {
