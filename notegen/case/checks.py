@@ -95,3 +95,15 @@ class _Collector:
 
     def source(self, path: str) -> str:
         return self.provenance.get(path, self.default_source)
+
+
+def _lab_aliases(section: str) -> dict[str, str]:
+    """Analyte names ("sodium", "bicarbonate") -> the section's key, to suggest for a misspelt key."""
+    from notegen.knowledge.analytes import load_vocabulary, normalise
+
+    return {
+        normalise(name): analyte.fields[section]
+        for analyte in load_vocabulary().analytes.values()
+        if section in analyte.fields
+        for name in analyte.names
+    }

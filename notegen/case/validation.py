@@ -22,6 +22,7 @@ from notegen.case.checks import (
     _finite,
     _fmt,
     _key,
+    _lab_aliases,
     _shown,
     _unsafe_character,
     foreign_digit,
@@ -173,18 +174,6 @@ def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
         col.problem(path, f"{when.isoformat()} is not a plausible result time (year {when.year})")
         when = None
     return when
-
-
-def _lab_aliases(section: str) -> dict[str, str]:
-    """Analyte names ("sodium", "bicarbonate") -> the section's key, to suggest for a misspelt key."""
-    from notegen.knowledge.analytes import load_vocabulary, normalise
-
-    return {
-        normalise(name): analyte.fields[section]
-        for analyte in load_vocabulary().analytes.values()
-        if section in analyte.fields
-        for name in analyte.names
-    }
 
 
 def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:

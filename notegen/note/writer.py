@@ -27,6 +27,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
 from notegen.errors import TemplateError, UsageError
+from notegen.note.labels import field_label
 from notegen.note.options import DraftOptions
 from notegen.note.paragraph import draft_paragraph
 from notegen.workup.model import CauseEntry, Evidence
@@ -65,11 +66,6 @@ _CLASS_WORDS: dict[str, str] = {
     "alkali": "alkali source",
 }
 _PH_FIELDS = frozenset({"gas.ph", "urine.ph"})
-_GAS_LABELS = {"gas.ph": "pH", "gas.pco2": "PaCO2", "gas.hco3": "HCO3 (gas)", "gas.po2": "PaO2"}
-_VENOUS_LABELS = {
-    "gas.ph": "pH (venous)", "gas.pco2": "PCO2 (venous)", "gas.hco3": "HCO3 (venous gas)", "gas.po2": "PO2 (venous)"
-}
-_NEUTRAL_LABELS = {"gas.pco2": "PCO2", "gas.po2": "PO2"}
 _BLANK_RUNS = re.compile(r"\n{3,}")
 
 
@@ -246,37 +242,6 @@ def _three_figures(value: float) -> str:
     return trimmed_number(value, digits)
 
 
-def _gas_sample(measurement: Measurement, case: Case) -> str | None:
-    """The sample of the gas `measurement` came from (each gas keeps its own), or None when not stated."""
-    key = measurement.field.split(".", 1)[1]
-    matches = {
-        gas.sample
-        for gas in (*case.earlier_gas, case.gas)
-        if gas.taken_at == measurement.taken_at and getattr(gas, key, None) == measurement.value
-    }
-    return matches.pop() if len(matches) == 1 else None
-
-
-def _field_label(field: str, case: Case, measurement: Measurement | None = None) -> str:
-    from notegen.knowledge import vocabulary
-
-    if measurement is not None and field.startswith("gas."):
-        sample = _gas_sample(measurement, case)
-        if sample == "venous" and field in _VENOUS_LABELS:
-            return _VENOUS_LABELS[field]
-        if sample is None and field in _NEUTRAL_LABELS and any(
-            gas.sample == "venous" for gas in (*case.earlier_gas, case.gas)
-        ):
-            return _NEUTRAL_LABELS[field]  # not known to be arterial, beside venous gases: not called arterial
-        return _GAS_LABELS[field]
-    if case.gas.sample == "venous" and field in _VENOUS_LABELS:
-        return _VENOUS_LABELS[field]
-    if field in _GAS_LABELS:
-        return _GAS_LABELS[field]
-    info = vocabulary.fields().get(field)
-    return sentence_case(info.label if info else field)
-
-
 def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     field = measurement.field
     qualifier = measurement.qualifier or ""
@@ -292,7 +257,7 @@ def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     taken = measurement.taken_at.isoformat(sep=" ", timespec="minutes") if measurement.taken_at else ""
     return {
         "field": field,
-        "label": _field_label(field, case, measurement),
+        "label": field_label(field, case, measurement),
         "reported": reported,
         "converted": converted,
         "source": measurement.source,
