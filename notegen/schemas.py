@@ -148,9 +148,14 @@ def case_schema() -> dict[str, Any]:
                 "maxLength": MAX_TEXT,
             },
             "units": {
-                "description": "Unit system of bare numbers.",
+                "description": "Unit system of bare numbers. Without it, a bare value readable in both systems "
+                "is refused.",
                 "enum": ["conventional", "si"],
                 "default": "conventional",
+            },
+            "dates": {
+                "description": "How a pasted date such as 03/04/2026 is read: day first or month first.",
+                "enum": ["day-first", "month-first", None],
             },
             "patient": _nullable(
                 {

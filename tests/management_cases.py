@@ -14,12 +14,14 @@ from notegen.workup.model import CauseEntry, SuggestedTest
 # An invented adult with a metabolic alkalosis and nothing else of note: potassium, sodium,
 # magnesium and kidney function normal, volume not recorded.
 BASE: dict[str, Any] = {
+    "units": "conventional",
     "patient": {"age": 60, "sex": "male", "weight_kg": 75},
     "gas": {"sample": "arterial", "ph": 7.50, "pco2": 48, "hco3": 36},
     "chem": {"na": 139, "k": 4.0, "cl": 94, "creatinine": 0.9, "albumin": 4.0, "mg": 2.0},
 }
 # An invented diarrheal normal-gap metabolic acidosis with hypokalemia.
 ACIDOSIS: dict[str, Any] = {
+    "units": "conventional",
     "patient": {"age": 60, "sex": "male", "weight_kg": 75},
     "gas": {"sample": "arterial", "ph": 7.30, "pco2": 30, "hco3": 15},
     "chem": {"na": 138, "k": 2.9, "cl": 115, "creatinine": 0.9, "albumin": 4.0, "mg": 2.0},
@@ -29,7 +31,7 @@ ACIDOSIS: dict[str, Any] = {
 
 def case(base: dict[str, Any] = BASE, **sections: dict[str, Any]) -> dict[str, Any]:
     """`base` with each named section updated key by key (`None` removes a key)."""
-    data = {name: dict(value) for name, value in base.items()}
+    data = {name: dict(value) if isinstance(value, dict) else value for name, value in base.items()}
     for name, changes in sections.items():
         merged = {**data.get(name, {}), **changes}
         data[name] = {key: value for key, value in merged.items() if value is not None}

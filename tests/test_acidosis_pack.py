@@ -53,7 +53,7 @@ def case_with(base: dict[str, Any], **changes: Any) -> dict[str, Any]:
 
 
 def workup(data: dict[str, Any], extra: dict[str, FactInput] | None = None) -> AcidosisWorkup:
-    case = read_case_data(data)
+    case = read_case_data({"units": "conventional", **data})
     reading = read_acid_base(case)
     calculations = {**compute_calculations(case), **urine_gap_calculations(case)}
     result = evaluate_acidosis(case, reading, PACK, calculations=calculations, extra_facts=extra)
@@ -320,8 +320,8 @@ def test_a_service_overlay_changes_a_threshold_in_the_drafted_note(tmp_path: Any
         "settings:\n  - {id: lactate_high_from, value: 9, unit: mmol/L, source: our laboratory}\n", encoding="utf-8"
     )
     data = case_with(HIGH_GAP, chem={"lactate": 8.0})
-    shipped = DRAFTER.assess(read_case_data(data)).acidosis
-    ours = Drafter(rules_dirs=(tmp_path,)).assess(read_case_data(data)).acidosis
+    shipped = DRAFTER.assess(read_case_data({"units": "conventional", **data})).acidosis
+    ours = Drafter(rules_dirs=(tmp_path,)).assess(read_case_data({"units": "conventional", **data})).acidosis
     assert shipped is not None and ours is not None
     assert {e.id for e in cause_of(shipped, "lactic_acidosis").supporting} == {"lactate_high"}
     assert {e.id for e in cause_of(ours, "lactic_acidosis").supporting} == {"lactate_raised"}
@@ -333,7 +333,7 @@ def test_the_sample_service_overlay_reads_a_lower_urine_osmolal_gap_as_adequate(
     service = Path(__file__).resolve().parent.parent / "samples" / "service"
     # Urine osmolal gap 500 - (2 x (50 + 30) + 616/2.8) = 120 mOsm/kg: below the shipped 150, above the service's 100.
     data = case_with(NORMAL_GAP, urine={**URINE_POSITIVE_GAP, "osm": 500, "urea_nitrogen": 616})
-    shipped = DRAFTER.assess(read_case_data(data)).acidosis
-    ours = Drafter(rules_dirs=(service,)).assess(read_case_data(data)).acidosis
+    shipped = DRAFTER.assess(read_case_data({"units": "conventional", **data})).acidosis
+    ours = Drafter(rules_dirs=(service,)).assess(read_case_data({"units": "conventional", **data})).acidosis
     assert shipped is not None and ours is not None
     assert (shipped.ammonium, ours.ammonium) == ("low", "adequate")

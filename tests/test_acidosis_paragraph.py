@@ -166,7 +166,7 @@ def test_any_acidosis_work_up_reads_as_sentences_and_invents_no_number(
     }
     if urine:
         data["urine"] = urine
-    case = validate_case(data)
+    case = validate_case({"units": "conventional", **data})
     assessment = DRAFTER.assess(case)
     assert assessment.acidosis is not None
     assert_well_formed(assessment.paragraph)
@@ -191,6 +191,6 @@ def test_two_likely_causes_are_named_together_in_words() -> None:
         "chem": {"na": 138, "cl": 100, "k": 4.4, "albumin": 4.0, "glucose": 480, "bhb": 5.5, "lactate": 9.0},
         "context": {"findings": ["diabetes", "septic shock"]},
     }
-    sentences = acidosis_sentences(DRAFTER.assess(validate_case(data)))
+    sentences = acidosis_sentences(DRAFTER.assess(validate_case({"units": "conventional", **data})))
     assert sentences[0].startswith("For the high anion gap acidosis two causes are likely together: ketoacidosis (")
     assert "; and lactic acidosis (lactate 9.0 mmol/L is at or above 4 mmol/L" in sentences[0]

@@ -69,7 +69,7 @@ def test_bad_value_exits_2_with_the_field_and_no_traceback(tmp_path: Path) -> No
     assert result.stdout == ""
     assert result.stderr == (
         f"notegen: {case}: field `chem.creatinine`: 130 mg/dL is not a plausible creatinine "
-        "(expected 0.1 to 25 mg/dL); did you mean 130 µmol/L (1.471 mg/dL)? Give the unit explicitly.\n"
+        "(expected 0.2 to 25 mg/dL); did you mean 130 µmol/L (1.471 mg/dL)? Give the unit explicitly.\n"
     )
     assert "Traceback" not in result.output
 

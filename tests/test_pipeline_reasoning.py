@@ -17,7 +17,7 @@ DRAFTER = Drafter()
 
 
 def assess(data: dict[str, Any]) -> Assessment:
-    return DRAFTER.assess(validate_case(data))
+    return DRAFTER.assess(validate_case({"units": "conventional", **data}))
 
 
 def tiers(assessment: Assessment) -> dict[str, str]:

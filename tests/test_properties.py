@@ -198,9 +198,9 @@ def patient(draw: st.DrawFn) -> dict[str, Any]:
 def case_file(draw: st.DrawFn) -> dict[str, Any]:
     """Any valid case file: every section optional, serial results sometimes."""
     system = draw(st.sampled_from(["conventional", "si"]))
-    data: dict[str, Any] = {}
-    if system == "si" or draw(st.booleans()):
-        data["units"] = system
+    # the unit system is declared: without it a bare value of an analyte whose SI and conventional
+    # numbers overlap is refused (test_unit_checks.py holds the undeclared properties)
+    data: dict[str, Any] = {"units": system}
     if draw(st.booleans()):
         data["case"] = draw(label_text)
     for name in LAB_SECTIONS:
@@ -232,6 +232,7 @@ def alkalosis_case_file(draw: st.DrawFn, allow_diuretics: bool = False) -> dict[
     chem = draw(section("chem", "conventional"))
     chem.pop("tco2", None)
     data: dict[str, Any] = {
+        "units": "conventional",
         "gas": {"sample": "arterial", "ph": ph, "pco2": pco2, "hco3": hco3},
         "chem": chem,
         "urine": {k: v for k, v in draw(section("urine", "conventional")).items() if k != "cl"},

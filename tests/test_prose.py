@@ -35,7 +35,7 @@ def sample(stem: str) -> Assessment:
 
 
 def assess(data: dict[str, Any]) -> Assessment:
-    return _drafter().assess(validate_case(data))
+    return _drafter().assess(validate_case({"units": "conventional", **data}))
 
 
 def ev(text: str, strength: str = "strong", source: str = "common practice") -> Evidence:

@@ -58,7 +58,7 @@ def test_the_rule_walk_prints_a_fact_on_its_side_of_the_setting() -> None:
 
 
 def test_a_drafted_note_never_says_a_value_is_below_itself() -> None:
-    case = {"case": "edge", "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
+    case = {"case": "edge", "units": "conventional", "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
             "chem": {"k": 2.4999, "mg": 1.1999, "na": 138, "cl": 90}}
     text = draft(case).markdown
     for match in re.finditer(r"([0-9.]+) (mmol/L|mg/dL) is below ([0-9.]+) \2", text):

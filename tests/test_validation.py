@@ -47,7 +47,7 @@ def test_censored_value_keeps_its_qualifier() -> None:
 
 def test_creatinine_in_the_wrong_unit_is_refused_with_the_likely_unit() -> None:
     assert _problem({"chem": {"creatinine": "130 mg/dL"}}) == (
-        "case.yaml: field `chem.creatinine`: 130 mg/dL is not a plausible creatinine (expected 0.1 to 25 mg/dL); "
+        "case.yaml: field `chem.creatinine`: 130 mg/dL is not a plausible creatinine (expected 0.2 to 25 mg/dL); "
         "did you mean 130 µmol/L (1.471 mg/dL)? Give the unit explicitly."
     )
 
@@ -149,11 +149,19 @@ def test_too_many_medications_is_refused_quickly() -> None:
 
 
 def test_kpa_typed_into_a_conventional_case_is_refused_not_converted() -> None:
-    # 6.4 "mmHg" is inside the plausibility bounds, but with pH 7.52 and HCO3 38 only 6.4 kPa
-    # (48 mmHg) fits Henderson-Hasselbalch: ask for the unit rather than guess it.
-    assert _problem({"gas": {"ph": 7.52, "pco2": 6.4, "hco3": 38}}) == (
-        "case.yaml: field `gas.pco2`: 6.4 mmHg does not fit pH 7.52 and bicarbonate 38, but 6.4 kPa "
-        '(48 mmHg) would; give the unit explicitly (e.g. "6.4 kPa")'
+    # 12 "mmHg" is inside the plausibility bounds, but with pH 7.2 and HCO3 35 only 12 kPa
+    # (90 mmHg) fits Henderson-Hasselbalch: ask for the unit rather than guess it.
+    assert _problem({"units": "conventional", "gas": {"ph": 7.2, "pco2": 12, "hco3": 35}}) == (
+        "case.yaml: field `gas.pco2`: 12 mmHg does not fit pH 7.2 and bicarbonate 35, but 12 kPa "
+        '(90.01 mmHg) would; give the unit explicitly (e.g. "12 kPa")'
+    )
+
+
+def test_a_pco2_no_living_adult_has_is_refused_as_a_likely_kpa_value() -> None:
+    # Before: a bare 5.3 beside pH 7.45 and no HCO3 was read as 5.3 mmHg. Below 10 mmHg it is kPa.
+    assert _problem({"units": "conventional", "gas": {"ph": 7.45, "pco2": 5.3}}) == (
+        "case.yaml: field `gas.pco2`: 5.3 mmHg is not a plausible PCO2 (expected 10 to 200 mmHg); "
+        "did you mean 5.3 kPa (39.75 mmHg)? Give the unit explicitly."
     )
 
 
@@ -185,3 +193,20 @@ def test_categorical_results_read_against_the_laboratory_range() -> None:
         False,
     )
     assert "is not low, normal or high" in _problem({"context": {"renin": "12 ng/mL/h"}})
+
+
+@pytest.mark.parametrize(
+    ("data", "hint"),
+    [
+        ({"chem": {"sodium": 140}}, "field `chem.sodium`: not a known key; did you mean `na`?"),
+        ({"chem": {"potasium": 3.1}}, "field `chem.potasium`: not a known key; did you mean `k`?"),
+        ({"gas": {"bicarbonate": 20}}, "field `gas.bicarbonate`: not a known key; did you mean `hco3`?"),
+        (
+            {"context": {"medications": ["furosemide"]}},
+            "field `context.medications`: not a known key; did you mean `meds`?",
+        ),
+    ],
+)
+def test_a_misspelt_or_spelt_out_key_gets_the_closest_valid_key(data: Any, hint: str) -> None:
+    # Before: "sodium", "potasium" and "medications" were refused with no suggestion.
+    assert hint in _problem(data)

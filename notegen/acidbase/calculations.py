@@ -37,6 +37,7 @@ from notegen.acidbase.formulas import (
     urine_osmolal_gap,
     urine_potassium_creatinine_ratio,
 )
+from notegen.case.bounds import exact_only
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings, Setting, default_acid_base_settings
 
@@ -310,12 +311,17 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
                 "Inker et al., NEJM 2021 (CKD-EPI 2021, no race term)",
                 note="assumes creatinine is in a steady state; not valid while it is rising or falling",
             )
+    gap: float | None = None
     if usable(chem.osm) and usable(chem.na) and usable(chem.glucose) and usable(chem.bun):
+        assert chem.osm is not None and chem.na is not None and chem.glucose is not None
+        assert chem.bun is not None
+        gap = osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun)
+    if gap is not None and gap >= s.osmolal_gap_floor.value:  # below: named by `impossible_osmolal_gap`
         assert chem.osm is not None and chem.na is not None and chem.glucose is not None
         assert chem.bun is not None
         out["osmolal_gap"] = _calc(
             "osmolal_gap",
-            osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun),
+            gap,
             "mOsm/kg",
             "measured - (2 x Na + glucose/18 + BUN/2.8)",
             {
@@ -395,6 +401,7 @@ def _kidney_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calcula
 def compute_calculations(case: Case, settings: AcidBaseSettings | None = None) -> dict[str, Calculation]:
     """Every calculation whose inputs the case holds, keyed by stable name, in a fixed order."""
     s = settings or default_acid_base_settings()
+    case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
     out: dict[str, Calculation] = {}
     _gas_calculations(case, s, out)
     _gap_calculations(case, s, out)
@@ -471,6 +478,9 @@ def missing_calculations(
         "corrected_calcium": "total calcium and albumin",
     }
     out = {name: f"needs {text}" for name, text in needs.items() if name not in done}
+    impossible = impossible_osmolal_gap(case, settings)
+    if impossible is not None:
+        out["osmolal_gap"] = impossible
     age = case.patient.age
     if "egfr" in out and age is not None and age < EGFR_MIN_AGE and usable(case.chem.creatinine):
         out["egfr"] = f"not calculated: age {age:g} years; CKD-EPI 2021 applies to adults only"
@@ -482,3 +492,20 @@ def missing_calculations(
                 f"not calculated: serum creatinine is given, but the patient's {' and '.join(lacking)} {verb} not"
             )
     return out
+
+
+def impossible_osmolal_gap(case: Case, settings: AcidBaseSettings | None = None) -> str | None:
+    """Why the osmolal gap was not given, when its inputs give a gap no patient has; else None."""
+    s = settings or default_acid_base_settings()
+    chem = case.chem
+    if not (usable(chem.osm) and usable(chem.na) and usable(chem.glucose) and usable(chem.bun)):
+        return None
+    assert chem.osm is not None and chem.na is not None and chem.glucose is not None and chem.bun is not None
+    gap = osmolal_gap(chem.osm, chem.na, chem.glucose, chem.bun)
+    if gap >= s.osmolal_gap_floor.value:
+        return None
+    return (
+        f"not given: the measured osmolality is more than {format_value(-s.osmolal_gap_floor.value, 'mOsm/kg')} "
+        "below the one calculated from sodium, glucose and BUN, beyond any published range (about -14 to +10); "
+        "a sodium, glucose or BUN in the wrong unit, or a mistyped value, is likely: check them"
+    )

@@ -43,6 +43,7 @@ from notegen.acidbase.steps import (
     read_anion_gap,
     respiratory_compensation,
 )
+from notegen.case.bounds import exact_only
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings, default_acid_base_settings
 
@@ -245,6 +246,7 @@ def read_acid_base(
     out again. Without it they are computed here.
     """
     s = settings or default_acid_base_settings()
+    case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
     calcs = compute_calculations(case, s) if calculations is None else calculations
     w = ReadingDraft(s=s, venous=case.gas.sample == "venous", calcs=calcs)
     g = _gas_values(case, w)

@@ -4,8 +4,9 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from notegen.acidbase.calculations import Calculation, missing_calculations
+from notegen.acidbase.calculations import Calculation, impossible_osmolal_gap, missing_calculations
 from notegen.acidbase.model import AcidBaseReading
+from notegen.case.bounds import bound_notices
 from notegen.case.model import Case
 
 
@@ -18,6 +19,10 @@ def collect_warnings(case: Case, reading: AcidBaseReading, calculations: Mapping
         egfr = missing_calculations(case, done=calculations).get("egfr")
         if egfr is not None:
             extra.append(f"eGFR {egfr}.")
+    impossible = impossible_osmolal_gap(case)
+    if impossible is not None:
+        extra.append(f"Osmolal gap {impossible}.")
+    extra.extend(f"{text}." for text in bound_notices(case))
     for text in (*reading.missing, *extra, *case.notices):
         if text not in seen:
             seen.append(text)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import difflib
 import math
 import re
+import unicodedata
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
@@ -21,11 +22,30 @@ YEARS = (1900, 2199)
 # An unpaired surrogate (JSON's "\ud800", or a command-line byte that is not UTF-8) is no character
 # at all: it cannot be written as UTF-8, so a note holding one could not be written or read.
 _UNSAFE_CHARACTER = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069\ud800-\udfff]")
-_VALUE_TEXT = re.compile(r"^\s*(?P<q>[<>])?=?\s*(?P<num>[-+]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>.*?)\s*$")
+# `q` takes <=, >=, ≤ and ≥ too, so that they are refused rather than read as < and >; digits are
+# ASCII only (a Bengali ৪ looks like 8 but Python reads it as 4).
+_VALUE_TEXT = re.compile(
+    r"^\s*(?P<q>[<>]=?|[≤≥])?\s*(?P<num>[-+]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+))\s*(?P<unit>.*?)\s*$"
+)
 
 
-def _did_you_mean(word: str, choices: tuple[str, ...] | list[str]) -> str:
-    close = difflib.get_close_matches(word, choices, n=1, cutoff=0.6)
+def foreign_digit(text: str) -> str | None:
+    """What is wrong with `text` if it holds a digit other than 0-9, else None."""
+    for char in text:
+        if char.isdigit() and not "0" <= char <= "9":
+            name = unicodedata.name(char, f"U+{ord(char):04X}")
+            return f"holds the digit {char!r} ({name}); write numbers with the digits 0-9"
+    return None
+
+
+def _did_you_mean(
+    word: str, choices: tuple[str, ...] | list[str], aliases: Mapping[str, str] | None = None
+) -> str:
+    """"not a known key", with the closest valid key: an alias ("sodium" for `na`) or a near spelling."""
+    folded = re.sub(r"[\s_\-]+", " ", word.strip().lower())
+    names = {name: key for name, key in (aliases or {}).items() if key in choices}
+    names.update({choice: choice for choice in choices})
+    close = [names[name] for name in difflib.get_close_matches(folded, list(names), n=1, cutoff=0.6)]
     hint = f"; did you mean `{close[0]}`?" if close else ""
     return f"not a known key{hint} (known: {', '.join(choices)})"
 
@@ -72,6 +92,7 @@ class _Collector:
     filename: str | None
     provenance: Mapping[str, str]
     default_source: str
+    declared: bool = False  # the case names its unit system (`units:`); bare values are then read in it
     problems: list[tuple[str, str]] = field(default_factory=list)
     measurements: list[Measurement] = field(default_factory=list)
     notices: list[str] = field(default_factory=list)
@@ -81,3 +102,15 @@ class _Collector:
 
     def source(self, path: str) -> str:
         return self.provenance.get(path, self.default_source)
+
+
+def _lab_aliases(section: str) -> dict[str, str]:
+    """Analyte names ("sodium", "bicarbonate") -> the section's key, to suggest for a misspelt key."""
+    from notegen.knowledge.analytes import load_vocabulary, normalise
+
+    return {
+        normalise(name): analyte.fields[section]
+        for analyte in load_vocabulary().analytes.values()
+        if section in analyte.fields
+        for name in analyte.names
+    }

@@ -20,6 +20,7 @@ from notegen.case.checks import (
     _shown,
     _unsafe_character,
 )
+from notegen.case.drug_names import near_miss
 from notegen.case.model import BloodPressure, Context, Medication, Patient
 from notegen.knowledge import vocabulary as vocab
 
@@ -172,6 +173,13 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
         col.problem(path, unsafe)
         return None
     info = _lookup_drug(name)
+    if info is None and (meant := near_miss(name)) is not None:
+        col.problem(
+            path,
+            f"{_shown(name)} is not a medication notegen knows; did you mean {meant!r}? Correct the spelling "
+            "(a misspelt diuretic would leave the reasoning)",
+        )
+        return None
     if info is None:
         col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
         return Medication(name=name, last_dose_hours=hours)
@@ -189,6 +197,12 @@ def _lookup_drug(name: str) -> vocab.DrugInfo | None:
     return None
 
 
+_CONTEXT_ALIASES = {
+    "medications": "meds", "medication": "meds", "drugs": "meds", "med": "meds", "medicines": "meds",
+    "blood pressure": "bp", "symptoms": "findings", "finding": "findings", "volume status": "volume",
+}
+
+
 def validate_context(raw: Any, col: _Collector) -> Context:
     if raw is None:
         return Context()
@@ -199,7 +213,7 @@ def validate_context(raw: Any, col: _Collector) -> Context:
     for key, item in raw.items():
         path = f"context.{_key(key)}"
         if key not in CONTEXT_KEYS:
-            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS))
+            col.problem(path, _did_you_mean(str(key), CONTEXT_KEYS, _CONTEXT_ALIASES))
         elif item is None:
             continue
         elif key == "bp":

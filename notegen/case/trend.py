@@ -63,8 +63,19 @@ def build_trend(case: Case) -> tuple[TrendSeries, ...]:
     series: list[TrendSeries] = []
     by_section = {name: _samples(case, name) for name in ("gas", "chem", "urine")}
     for section, name, label, unit in TREND_FIELDS:
-        found = [(s.taken_at, value) for s in by_section[section] if (value := getattr(s, name)) is not None]
-        if len(found) >= 2:  # most cases hold one result of each: no series, and no points built
-            points = tuple(TrendPoint(taken_at=taken_at, value=value) for taken_at, value in found)
-            series.append(TrendSeries(field=f"{section}.{name}", label=label, unit=unit, points=points))
+        found = [(s, value) for s in by_section[section] if (value := getattr(s, name)) is not None]
+        # a venous and an arterial value are never joined into one series
+        samples = sorted({s.sample or "" for s, _ in found if isinstance(s, Gas)})
+        groups = [(label, found)] if len(samples) <= 1 else [
+            (f"{label} ({_SAMPLE_WORDS[sample]})", [(s, v) for s, v in found if isinstance(s, Gas) and
+                                                    (s.sample or "") == sample])
+            for sample in samples
+        ]
+        for group_label, group in groups:
+            if len(group) >= 2:  # most cases hold one result of each: no series, and no points built
+                points = tuple(TrendPoint(taken_at=s.taken_at, value=value) for s, value in group)
+                series.append(TrendSeries(field=f"{section}.{name}", label=group_label, unit=unit, points=points))
     return tuple(series)
+
+
+_SAMPLE_WORDS = {"arterial": "arterial", "venous": "venous", "": "sample not stated"}

@@ -13,7 +13,6 @@ from typing import Any
 
 # The one Henderson-Hasselbalch (a pure function on numbers); pyproject's layer contract names this
 # single exception to "case imports only from below".
-from notegen._henderson import henderson_hasselbalch_ph
 from notegen.case import units as u
 from notegen.case.checks import (
     _VALUE_TEXT,
@@ -25,8 +24,10 @@ from notegen.case.checks import (
     _finite,
     _fmt,
     _key,
+    _lab_aliases,
     _shown,
     _unsafe_character,
+    foreign_digit,
 )
 from notegen.case.context import validate_context, validate_patient
 from notegen.case.model import (
@@ -36,11 +37,17 @@ from notegen.case.model import (
     Measurement,
     Urine,
 )
+from notegen.case.unit_checks import (
+    _check_pco2_unit,
+    ambiguous_bare_pco2,
+    ambiguous_bare_value,
+)
+from notegen.case.unit_checks import pco2_fits_other_unit as pco2_fits_other_unit  # its old home, kept
 from notegen.errors import CaseFileError, CaseValueError
 from notegen.knowledge import vocabulary as vocab
-from notegen.knowledge.settings import default_acid_base_settings
 
-TOP_KEYS = ("case", "units", "patient", "gas", "chem", "urine", "context")
+TOP_KEYS = ("case", "units", "dates", "patient", "gas", "chem", "urine", "context")
+DATE_ORDERS = ("day-first", "month-first")  # `dates:`, how a pasted 03/04/2026 is read
 LAB_SECTIONS: dict[str, tuple[str, ...]] = {
     "gas": ("ph", "pco2", "hco3", "po2"),
     "chem": (
@@ -78,6 +85,12 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
         number = float(raw)
     elif isinstance(raw, str):
         match = _VALUE_TEXT.match(raw)
+        if (digit := foreign_digit(raw)) is not None:
+            col.problem(path, f"{raw[:60]!r} {digit}")
+            return None
+        if match and match["q"] not in (None, "<", ">"):
+            col.problem(path, f"{raw[:60]!r}: {match['q']!r} cannot be held; a reported bound is < or > (e.g. \"<20\")")
+            return None
         if not match:
             col.problem(path, f'{raw[:60]!r} is not a number with an optional unit (e.g. "6.2 kPa")')
             return None
@@ -180,7 +193,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
     for key, item in raw.items():
         key_path = f"{path}.{_key(key)}"
         if key not in allowed:
-            col.problem(key_path, _did_you_mean(str(key), list(allowed)))
+            col.problem(key_path, _did_you_mean(str(key), list(allowed), _lab_aliases(section)))
             continue
         if item is None:
             continue
@@ -207,6 +220,11 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         if parsed is None:
             continue
         number, unit, qualifier = parsed
+        if not col.declared and not _unit_given(values[key]):
+            refusal = ambiguous_bare_value(field_name, number, urea=key == "urea")
+            if refusal is not None:
+                col.problem(key_path, refusal)
+                continue
         reported_unit = unit
         if key == "urea":
             reported_unit = f"{unit} urea"
@@ -234,6 +252,10 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
         )
     if section == "gas" and not _unit_given(values.get("pco2")):
         _check_pco2_unit(out, f"{path}.pco2", col)
+        if not col.declared and out.get("pco2") is not None:
+            refusal = ambiguous_bare_pco2(out["pco2"], out.get("ph"), out.get("hco3"))
+            if refusal is not None:
+                col.problem(f"{path}.pco2", refusal)
     return None if bad_time else out
 
 
@@ -242,52 +264,6 @@ def _unit_given(raw: Any) -> bool:
         match = _VALUE_TEXT.match(raw)
         return bool(match and match["unit"])
     return isinstance(raw, Mapping) and bool(raw.get("unit"))
-
-
-def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tuple[str, float] | None:
-    """When a bare PCO2 (in `system`'s default unit) fits pH and bicarbonate only in the other unit.
-
-    Returns (the other unit, the PCO2 in mmHg that reading gives), or None. A kPa value typed
-    into a conventional case (6.4 for 48 mmHg) is still "plausible" in mmHg; Henderson-Hasselbalch
-    (the settings' pK' and solubility, the one formula, `notegen._henderson`) tells the two apart.
-    """
-    if pco2 <= 0 or hco3 <= 0:
-        return None
-    default = u.default_unit("gas.pco2", system)
-    other = "kPa" if default == "mmHg" else "mmHg"
-    as_default = u.to_canonical("gas.pco2", pco2, default)
-    as_other = u.to_canonical("gas.pco2", pco2, other)
-    bounds = vocab.fields()["gas.pco2"]
-    if not bounds.low <= as_other <= bounds.high:
-        return None
-
-    settings = default_acid_base_settings()
-    pk, solubility = settings.pk_carbonic.value, settings.co2_solubility.value
-
-    def calculated_ph(pco2_mmhg: float) -> float:
-        return henderson_hasselbalch_ph(pco2_mmhg, hco3, pk, solubility)
-
-    if abs(calculated_ph(as_default) - ph) > 0.1 and abs(calculated_ph(as_other) - ph) <= 0.05:
-        return other, as_other
-    return None
-
-
-def _check_pco2_unit(gas: dict[str, Any], path: str, col: _Collector) -> None:
-    """Refuse, never convert, a bare PCO2 that only fits its own gas in the other unit."""
-    ph, pco2, hco3 = gas.get("ph"), gas.get("pco2"), gas.get("hco3")
-    if ph is None or pco2 is None or hco3 is None:
-        return
-    default = u.default_unit("gas.pco2", col.system)
-    reported = u.from_canonical("gas.pco2", pco2, default)
-    found = pco2_fits_other_unit(ph, reported, hco3, col.system)
-    if found is not None:
-        other, alternative = found
-        col.problem(
-            path,
-            f"{_fmt(reported)} {default} does not fit pH {_fmt(ph)} and bicarbonate {_fmt(hco3)}, but "
-            f"{_fmt(reported)} {other} ({_fmt(alternative)} mmHg) would; give the unit explicitly "
-            f'(e.g. "{_fmt(reported)} {other}")',
-        )
 
 
 _MODELS: dict[str, type[Gas] | type[Chem] | type[Urine]] = {"gas": Gas, "chem": Chem, "urine": Urine}
@@ -341,6 +317,24 @@ def _sort_key(when: datetime | None) -> datetime:
         return datetime.min
     offset = when.utcoffset()
     return when.replace(tzinfo=None) - offset if offset is not None else when
+
+
+MAX_SPAN_DAYS = 366  # results further apart are not one admission's serial results: a date is mistyped
+
+
+def _check_span(entries: dict[str, list[dict[str, Any]]], col: _Collector) -> None:
+    """Refuse results spread over more than a year: one mistyped year would make a result "the latest"."""
+    times = [e["taken_at"] for items in entries.values() for e in items if e.get("taken_at") is not None]
+    if len(times) < 2:
+        return
+    oldest, newest = min(times, key=_sort_key), max(times, key=_sort_key)
+    if _sort_key(newest) - _sort_key(oldest) > timedelta(days=MAX_SPAN_DAYS):
+        col.problem(
+            "taken_at",
+            f"results run from {oldest.isoformat(sep=' ', timespec='minutes')} to "
+            f"{newest.isoformat(sep=' ', timespec='minutes')}, more than a year apart: a date is probably "
+            "mistyped; correct it, or draft the older results as a case of their own",
+        )
 
 
 def _choose_current(
@@ -402,12 +396,15 @@ def validate_case(
         filename=filename,
         provenance=provenance or {},
         default_source=default_source,
+        declared="units" in data,
     )
     for key in data:
         if key not in TOP_KEYS:
             col.problem(_key(key), _did_you_mean(str(key), TOP_KEYS))
     if system not in ("conventional", "si"):
         col.problem("units", f"{_shown(system)} is not conventional or si")
+    if data.get("dates") is not None and data["dates"] not in DATE_ORDERS:
+        col.problem("dates", f"{_shown(data['dates'])} is not day-first or month-first")
     label = data.get("case")
     if label is not None:
         if not isinstance(label, str | int | float) or isinstance(label, bool) or len(str(label)) > MAX_TEXT:
@@ -425,7 +422,8 @@ def validate_case(
     context = validate_context(data.get("context"), col)
     if col.problems:
         raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
-    current, earlier = _choose_current(entries, window_hours, col)
+    _check_span(entries, col)
+    current, earlier = ({}, {}) if col.problems else _choose_current(entries, window_hours, col)
     if col.problems:
         raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
 

@@ -23,7 +23,7 @@ from enum import StrEnum
 from pathlib import Path
 from typing import TYPE_CHECKING, Annotated, Any
 
-from notegen.errors import NotegenError, UsageError
+from notegen.errors import InputError, NotegenError, UsageError
 
 if TYPE_CHECKING:
     import typer
@@ -163,6 +163,13 @@ def _draft(
         stdin=sys.stdin.buffer.read(MAX_BYTES + 1) if needs_stdin else None,  # one byte past the limit refuses
         window_hours=window_hours,
     )
+    if not case.measurements:
+        where = sources[0] if sources else "--set"
+        raise InputError(f"{where}: nothing to assess: the case holds no measured value; give gas, chem or urine "
+                         "values, or --paste a lab block")
+    for medication in case.context.meds:
+        if not medication.recognised:  # in the note too; said here so a pipeline's log shows it
+            _say(f"medication {medication.name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
     _write_output(drafter.draft(case, options), output)
     return 0
 

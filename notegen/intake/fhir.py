@@ -240,6 +240,9 @@ class _FhirReader:
         if entry.field == "context.bp":
             return self._blood_pressure(resource, label, moment)
         quantity = resource.get("valueQuantity")
+        if resource.get("dataAbsentReason") is not None and any(key.startswith("value") for key in resource):
+            raise self.fail(f"FHIR {label} has both a value and a dataAbsentReason, which FHIR R4 forbids (obs-6); "
+                            "the result cannot be read either way: correct the resource")
         if not isinstance(quantity, dict) or quantity.get("value") is None:
             present = [key for key in resource if key.startswith("value")] or ["no value"]
             absent = resource.get("dataAbsentReason")
@@ -254,6 +257,9 @@ class _FhirReader:
         unit = quantity.get("code") if quantity.get("system") == UCUM_SYSTEM and quantity.get("code") \
             else quantity.get("unit")
         section_name, field_name = entry.field.split(".")
+        if not unit and field_name != "ph":
+            raise self.fail(f"FHIR {label}: LOINC {code} valueQuantity {quantity['value']!r} has no unit (neither code "
+                            "nor unit); notegen does not assume one: give the unit in the resource")
         if section_name == "patient":
             if unit != entry.unit:
                 self.unused.append(f"FHIR {label}: {field_name} in {unit!r}; notegen takes it in {entry.unit} "

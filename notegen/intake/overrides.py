@@ -3,8 +3,9 @@
 Names are the case file's dotted names (`gas.ph`, `chem.k`, `context.meds`); a section
 holding serial results takes an index (`chem[1].k`). Values are read the way a case file
 reads them: `2.9` is a number, `"2.9 mmol/L"` or `"<10 mmol/L"` carries its unit and
-qualifier, lists (`context.meds`, `context.findings`) are comma-separated. Repeating a
-list name adds to the list given earlier on the same command line.
+qualifier, lists (`context.meds`, `context.findings`) are comma-separated (`furosemide,hctz`,
+or in brackets as a case file writes them, `[furosemide, hctz]`). Repeating a list name adds to
+the list given earlier on the same command line. An empty item or a stray bracket is refused.
 """
 
 from __future__ import annotations
@@ -20,7 +21,7 @@ from notegen.errors import UsageError
 from notegen.intake.sections import parse_number, parse_value_text
 
 _LIST_FIELDS = {"context.meds", "context.findings"}
-_TOP_LEVEL = {"case", "units"}
+_TOP_LEVEL = {"case", "units", "dates"}
 _ASSIGNMENT = re.compile(r"^(?P<section>[a-z_]+)(?:\[(?P<index>-?\d+)\])?(?:\.(?P<field>[a-z_0-9]+))?$")
 
 
@@ -118,7 +119,15 @@ def _value(kind: str, raw: str, dotted: str, assignment: str) -> Any:
     if not raw:
         raise UsageError(f"--set {assignment!r}: no value after '='")
     if kind == "list":
-        return [item.strip() for item in raw.split(",") if item.strip()]
+        if raw.startswith("[") and raw.endswith("]"):
+            raw = raw[1:-1]  # the YAML flow form a case file uses: [furosemide, hctz]
+        items = [item.strip() for item in raw.split(",")]
+        items = [item[1:-1].strip() if len(item) >= 2 and item[0] == item[-1] and item[0] in "\"'" else item
+                 for item in items]
+        if any(not item or item[0] in "[]" or item[-1] in "[]" for item in items):
+            raise UsageError(f"--set {assignment!r}: write a list as names separated by commas "
+                             f"(--set {dotted}=furosemide,hctz), or repeat --set {dotted}=NAME")
+        return items
     if kind == "measure":
         value = parse_value_text(raw)
         if value is None:

@@ -10,18 +10,26 @@ Every non-blank line is either taken or listed in `unused` with the reason. Rule
 - A time written on an analyte line applies to that line only.
 - A date like 03/04/2024 where both parts could be the month is refused (PasteError):
   write 2024-03-04. A time without a date, or a date without a year, is refused too.
-- Units are passed on as written; a line without a unit leaves "unit" out.
+- Units are passed on as written; a line without a unit leaves "unit" out, unless the paste's
+  other units settle its system (intake/unit_system.py).
+- A line whose name says calculated, estimated or corrected is not used (another quantity);
+  a line that is neither a heading nor a lab line ends the block above it; a table's column
+  header ("Test Result Units") is skipped; a header with a collection and a result time is
+  refused. Decimal commas and gas shorthand: intake/paste_formats.py.
 """
 
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import datetime
 from typing import Any
 
+from notegen.case.checks import foreign_digit
 from notegen.errors import InputError, PasteError
+from notegen.intake.paste_formats import SHORTHAND_ORDER, decimal_commas, gas_shorthand, names_any, only_words_from
 from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
+from notegen.intake.unit_system import settle_units
 from notegen.knowledge.analytes import Heading, Vocabulary, load_vocabulary, normalise
 
 # How an analyte id reads in a message, where the id is not already the word ("ph" is pH).
@@ -31,7 +39,7 @@ _TIME = r"(?:[T ]\s*(?P<{p}h>\d{{1,2}}):(?P<{p}mi>\d{{2}})(?::(?P<{p}s>\d{{2}}))
 _MONTHS = "jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec"
 _DATE_PATTERNS = [
     ("iso", re.compile(r"(?<!\d)(?P<y>\d{4})-(?P<m>\d{2})-(?P<d>\d{2})" + _TIME.format(p=""))),
-    ("slash", re.compile(r"(?<![\d/])(?P<a>\d{1,2})/(?P<b>\d{1,2})/(?P<y>\d{4}|\d{2})(?![\d/])"
+    ("slash", re.compile(r"(?<![\d/.])(?P<a>\d{1,2})/(?P<b>\d{1,2})/(?P<y>\d{4}|\d{2})(?![\d/])"
                          + _TIME.format(p="").replace("[T ]", "[ ,]"))),
     ("named", re.compile(r"(?<!\d)(?P<d>\d{1,2})[- ](?P<mon>(?:" + _MONTHS + r")[a-z]*)[- ,]+(?P<y>\d{4}|\d{2})"
                          + _TIME.format(p="").replace("[T ]", "[ ,]"), re.IGNORECASE)),
@@ -48,13 +56,15 @@ _REST_TOKENS = re.compile(
     rf"(?P<range>[\(\[]\s*(?:{_RANGE_WORD})?{_RANGE_BODY}\s*(?:{_UNIT})?\s*[\)\]]"
     rf"|(?:{_RANGE_WORD}){_RANGE_BODY}|{_NUM}\s*[-–]\s*{_NUM}(?![\d.]))"
     rf"|\(\s*(?P<pflag>[A-Za-z*!]{{1,8}})\s*\)"
-    rf"|(?P<value>(?P<qual>[<>≤≥]=?)?\s*(?P<num>{_NUM}))"
+    rf"|(?P<value>(?:(?P<qual>[<>≤≥]=?)\s*)?(?P<num>{_NUM}))"
     rf"|(?P<unit>{_UNIT})(?![\w/])"
     rf"|(?P<word>\S+)",
     re.IGNORECASE,
 )
 # The first value on a line: a number not glued to a word ("CO2", "HCO3" are names).
-_FIRST_VALUE = re.compile(rf"(?<![\w.+\-])(?:[<>≤≥]=?\s*)?{_NUM}(?![\w/])|(?<![\w.+\-])(?:[<>≤≥]=?\s*){_NUM}")
+_GLUED_FLAG = r"(?=(?:HH|LL|H|L)\*?(?![\w/]))"  # "90L": a flag printed against the value
+_FIRST_VALUE = re.compile(rf"(?<![\w.+\-])(?:[<>≤≥]=?\s*)?{_NUM}(?:(?![\w/])|{_GLUED_FLAG})"
+                          rf"|(?<![\w.+\-])(?:[<>≤≥]=?\s*){_NUM}")
 _PAREN_UNIT = re.compile(rf"\(\s*(?P<unit>{_UNIT})\s*\)", re.IGNORECASE)
 
 
@@ -76,16 +86,20 @@ class _LabLine:
     cells: list[tuple[tuple[str, datetime] | None, dict[str, Any]]] = field(default_factory=list)
 
 
-def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
+def parse_paste(text: str, *, source: str = "paste", date_order: str | None = None) -> ParsedInput:
     """Read pasted lab text into case-file sections (`gas`, `chem`, `urine`).
 
     Raises PasteError for what cannot be read safely: an ambiguous date, two different
     values for one field at one time, or a paste with no lab value at all.
     """
+    for number, raw in enumerate(text.splitlines(), start=1):
+        if (digit := foreign_digit(raw)) is not None:  # a Bengali ৪ looks like 8; Python would read 4
+            raise PasteError(f"{raw.strip()[:60]!r} {digit}", line=number, source=source)
     vocabulary = load_vocabulary()
-    reader = _PasteReader(vocabulary, source)
+    reader = _PasteReader(vocabulary, source, date_order)
+    text, commas = decimal_commas(text)
     lab_lines = reader.read_lines(text)
-    readings = reader.resolve(lab_lines)
+    readings = settle_units(reader.resolve(lab_lines))
 
     def conflict(message: str, involved: Any) -> InputError:
         lines = [r.line for r in involved if r.line is not None]
@@ -96,6 +110,8 @@ def parse_paste(text: str, *, source: str = "paste") -> ParsedInput:
             raise PasteError("the paste is empty", source=source)
         shown = "; ".join(reader.unused[:3])
         raise PasteError(f"no lab value notegen can use was found ({shown})", source=source)
+    if commas:
+        readings = [replace(r, origin=f"{r.origin} (decimal comma read as a point)") for r in readings]
     sections, provenance, duplicates = assemble_sections(readings, conflict)
     unused = sorted(reader.unused, key=_line_number) + duplicates
     return ParsedInput(data=sections, provenance=provenance, unused=unused)
@@ -119,7 +135,8 @@ def _line_number(entry: str) -> int:
 
 
 class _PasteReader:
-    def __init__(self, vocabulary: Vocabulary, source: str) -> None:
+    def __init__(self, vocabulary: Vocabulary, source: str, date_order: str | None = None) -> None:
+        self.date_order = date_order  # "day-first" / "month-first": how 03/04/2026 reads; None: refused
         self.vocabulary = vocabulary
         self.source = source
         self.names = vocabulary.name_index()
@@ -128,9 +145,13 @@ class _PasteReader:
         self.headings = vocabulary.heading_index()
         self.markers = vocabulary.marker_index()
         self.noise = set(vocabulary.noise)
+        self.derived = set(vocabulary.derived)
         self.time_labels = {normalise(label) for label in vocabulary.time_labels}
         self.flags = {flag.lower() for flag in vocabulary.flags}
         self.empty_cells = {cell.lower() for cell in vocabulary.empty_cells}
+        self.status_words = {word.lower() for word in vocabulary.status_words}
+        self.column_labels = {normalise(label) for label in vocabulary.column_labels}
+        self.result_time_labels = {normalise(label) for label in vocabulary.result_time_labels}
         self.unused: list[str] = []
         self.has_urine = False
 
@@ -144,8 +165,23 @@ class _PasteReader:
             if not any(ch.isalnum() for ch in line):
                 continue  # blank or a rule of dashes: holds nothing
             times, rest = self._times(line, number)
+            shorthand = self._shorthand(number, line, rest, times, block, in_header)
+            if shorthand is not None:
+                block, in_header = shorthand[0], False
+                lab_lines.extend(shorthand[1])
+                continue
             heading = self.headings.get(normalise(rest))
             label_only = self._only_time_labels(rest)
+            if len(times) > 1 and names_any(rest, self.result_time_labels):
+                raise PasteError(f"{line!r} gives a collection time and a result time; keep only the collection "
+                                 "time, which orders the results", line=number, source=self.source)
+            if not times and heading is None and only_words_from(rest, self.column_labels):
+                continue  # "Test  Result  Units  Range": a table's column header
+            if heading is None and not (times and label_only) and self._unknown_header(rest):
+                self._unused(number, line, "is not a heading notegen knows; the lines below it do not take "
+                                           "the heading or time above it")
+                block, in_header = _Block(block.number + 1), False
+                continue
             if heading is not None or (times and label_only):
                 if not in_header:
                     block = _Block(block.number + 1)
@@ -164,6 +200,27 @@ class _PasteReader:
             if lab_line is not None:
                 lab_lines.append(lab_line)
         return lab_lines
+
+    def _shorthand(
+        self, number: int, line: str, rest: str, times: list[tuple[str, datetime]], block: _Block, in_header: bool
+    ) -> tuple[_Block, list[_LabLine]] | None:
+        """A gas heading then pH/PaCO2/PaO2/HCO3 ("ABG 7.52/48/80/38"): a block of its own."""
+        found = gas_shorthand(rest, self.headings)
+        if found is None:
+            return None
+        time = times[0] if len(times) == 1 else (block.time if in_header and not times else None)
+        new = _Block(block.number + 1, heading=found[0], time=time)
+        if len(times) > 1 or len(found[1]) != len(SHORTHAND_ORDER):
+            self._unused(number, line, f"gives {len(found[1])} numbers joined by '/'; gas shorthand is read only "
+                                       "as the four of pH/PaCO2/PaO2/HCO3, with one time")
+            return new, []
+        lab_lines = [_LabLine(number, line, analyte, None, new, [(time, {"value": parse_number(text)})])
+                     for analyte, text in zip(SHORTHAND_ORDER, found[1], strict=True)]
+        return new, lab_lines
+
+    def _unknown_header(self, rest: str) -> bool:
+        """A line with no value and no analyte name: a heading notegen does not know ("NOTES FROM WARD")."""
+        return _FIRST_VALUE.search(rest) is None and not self._leading_analyte(rest)
 
     def _only_time_labels(self, rest: str) -> bool:
         words = normalise(rest)
@@ -198,11 +255,15 @@ class _PasteReader:
             day = int(match["d"])
         else:
             first, second = int(match["a"]), int(match["b"])
-            if first <= 12 and second <= 12 and first != second:
+            if first <= 12 and second <= 12 and first != second and self.date_order is None:
                 raise PasteError(
                     f"{match.group(0).strip()!r} could be day/month or month/day; write the date as "
-                    f"{year:04d}-MM-DD", line=number, source=self.source)
-            month, day = (first, second) if second > 12 or first == second else (second, first)
+                    f"{year:04d}-MM-DD, or say how dates are written: `dates: day-first` (or month-first) in "
+                    "the case file, or --set dates=day-first", line=number, source=self.source)
+            if first <= 12 and second <= 12 and first != second:
+                month, day = (second, first) if self.date_order == "day-first" else (first, second)
+            else:
+                month, day = (first, second) if second > 12 or first == second else (second, first)
         hour = int(match["h"]) if match["h"] else None
         minute = int(match["mi"]) if match["mi"] else 0
         second_ = int(match["s"]) if match["s"] else 0
@@ -222,7 +283,16 @@ class _PasteReader:
         unit_in_name = _PAREN_UNIT.search(name_text)
         if unit_in_name:
             name_text = name_text[: unit_in_name.start()] + name_text[unit_in_name.end():]
+        name_words = normalise(name_text).split()
+        derived = [word for word in name_words if word in self.derived]
+        if derived:  # "Osmolality, calculated": another quantity, unless the analyte is calculated anyway
+            name_text = " ".join(word for word in name_words if word not in self.derived)
         analyte, marker = self._analyte(name_text)
+        if analyte is not None and derived and not self.vocabulary.analytes[analyte].calculated:
+            label = _ANALYTE_WORDS.get(analyte, analyte.replace("_", " "))
+            self._unused(number, line, f"is marked {derived[0]!r}: a calculated, estimated or corrected value "
+                                       f"is not the measured {label}; only measured values are read")
+            return None
         if analyte is None:
             if first is None:
                 known = self._leading_analyte(name_text)
@@ -324,7 +394,7 @@ class _PasteReader:
                 units.append(re.sub(r"\s+", "", match["unit"]) if "hg" in match["unit"].lower() else match["unit"])
             else:
                 word = match["word"]
-                if word.lower() in self.flags or word in (",", ";", ":", "="):
+                if word.lower() in self.flags or word.lower() in self.status_words or word in (",", ";", ":", "="):
                     continue
                 if word.lower() in self.empty_cells:
                     cells.append(None)

@@ -7,6 +7,7 @@ when that way in is used, so the ordinary path stays fast.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping, Sequence
 from typing import Any
 
@@ -19,9 +20,18 @@ from notegen.intake.files import decode, parse_text, read_source
 FHIR_MAX_DEPTH = 40  # FHIR nests deeper than a case file does
 
 
-def _merge_labs(base: dict[str, Any], labs: Mapping[str, Any], where: str) -> dict[str, Any]:
-    """Fill the lab sections of `base` from `labs`; the same field given twice is refused."""
+def _merge_labs(
+    base: dict[str, Any], labs: Mapping[str, Any], where: str
+) -> tuple[dict[str, Any], dict[str, int]]:
+    """Fill the lab sections of `base` from `labs`; the same field given twice is refused.
+
+    Results of different times (or one with a time and one without) are never merged key by
+    key: each keeps its own time as a serial result (validation refuses an entry without one).
+    Returns the merged data and, per section that became serial, the index of the first entry
+    taken from `labs`, so that their origins can be renumbered.
+    """
     merged = dict(base)
+    offsets: dict[str, int] = {}
     for section, value in labs.items():
         if section not in LAB_SECTIONS:
             if section in merged and merged[section] != value:
@@ -32,15 +42,50 @@ def _merge_labs(base: dict[str, Any], labs: Mapping[str, Any], where: str) -> di
             merged[section] = value
             continue
         existing = merged[section]
-        if isinstance(existing, Mapping) and isinstance(value, Mapping):
-            clash = sorted(k for k in set(existing) & set(value) if k != "taken_at" and existing[k] != value[k])
-            if clash:
-                names = ", ".join(f"{section}.{k}" for k in clash)
-                raise InputError(f"{where}: {names} given both in the case file and in the paste; keep one")
-            merged[section] = {**existing, **value}
-        else:
-            raise InputError(f"{where}: `{section}` is given both in the case file and in the paste; keep one")
-    return merged
+        both_single = isinstance(existing, Mapping) and isinstance(value, Mapping)
+        if both_single and (existing.get("taken_at") is None) != (value.get("taken_at") is None):
+            timed, untimed = ("paste", "case file") if existing.get("taken_at") is None else ("case file", "paste")
+            raise InputError(
+                f"{where}: the {timed}'s {section} results have a time and the {untimed}'s have none, so they "
+                f"cannot be put in order or taken as one set; give the {untimed}'s {section} a taken_at, or keep one"
+            )
+        if not both_single or existing.get("taken_at") != value.get("taken_at"):
+            earlier = existing if isinstance(existing, list) else [existing]
+            merged[section] = [*earlier, *(value if isinstance(value, list) else [value])]
+            offsets[section] = len(earlier)
+            continue
+        clash = sorted(k for k in set(existing) & set(value) if k != "taken_at" and existing[k] != value[k])
+        if clash:
+            names = ", ".join(f"{section}.{k}" for k in clash)
+            raise InputError(f"{where}: {names} given both in the case file and in the paste; keep one")
+        merged[section] = {**existing, **value}
+    return merged, offsets
+
+
+_PATH = re.compile(r"^(?P<section>[a-z]+)(?:\[(?P<index>\d+)\])?(?P<rest>\..*)?$")
+
+
+def _renumbered(provenance: Mapping[str, str], offsets: Mapping[str, int]) -> dict[str, str]:
+    """Paste origins keyed by their place in the merged data (`chem.k` -> `chem[1].k`)."""
+    out: dict[str, str] = {}
+    for path, origin in provenance.items():
+        match = _PATH.match(path)
+        if match is None or match["section"] not in offsets:
+            out[path] = origin
+            continue
+        index = offsets[match["section"]] + int(match["index"] or 0)
+        out[f"{match['section']}[{index}]{match['rest'] or ''}"] = origin
+    return out
+
+
+def _date_order(data: Mapping[str, Any], overrides: Sequence[str]) -> str | None:
+    """How a pasted 03/04/2026 is read: `--set dates=...` (the last one) or the case file's `dates:`."""
+    order = data.get("dates")
+    for assignment in overrides:
+        name, _, value = assignment.partition("=")
+        if name.strip() == "dates":
+            order = value.strip().strip("\"'")
+    return order if order in ("day-first", "month-first") else None
 
 
 def read_case(
@@ -83,11 +128,11 @@ def read_case(
             paste_text, paste_name = decode(stdin or b"", "<stdin>"), "pasted labs"
         else:
             paste_text, paste_name = read_source(paste)
-        result = parse_paste(paste_text, source=paste_name)
+        result = parse_paste(paste_text, source=paste_name, date_order=_date_order(data, overrides))
         if source is None:
             filename = paste_name
-        data = _merge_labs(data, result.data, paste_name)
-        provenance.update(result.provenance)
+        data, offsets = _merge_labs(data, result.data, paste_name)
+        provenance.update(_renumbered(result.provenance, offsets))
         unused.extend(result.unused)
     if overrides:
         from notegen.intake.overrides import apply_overrides, override_provenance

@@ -54,7 +54,7 @@ class Reading:
 
 ConflictFactory = Callable[[str, Sequence[Reading]], InputError]
 
-_NUMBER = re.compile(r"^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$")
+_NUMBER = re.compile(r"^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$", re.ASCII)  # 0-9 only: a Bengali ৪ is not read
 
 
 def parse_number(text: str) -> int | float | None:
@@ -69,7 +69,7 @@ def parse_number(text: str) -> int | float | None:
 
 
 _VALUE_TEXT = re.compile(
-    r"^\s*(?P<qualifier>[<>≤≥]=?)?\s*(?P<number>[+-]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>\S.*?)?\s*$"
+    r"^\s*(?P<qualifier>[<>≤≥]=?)?\s*(?P<number>[+-]?(?:\d+(?:\.\d*)?|\.\d+))\s*(?P<unit>\S.*?)?\s*$", re.ASCII
 )
 
 

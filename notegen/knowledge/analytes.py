@@ -37,6 +37,9 @@ class Analyte(BaseModel):
     # Used only when a marker word or a heading says where the sample came from ("ketones" alone
     # may be serum or urine, in different units): never assigned by default.
     needs_origin: bool = False
+    # True when the reported value is itself calculated (a gas report's HCO3), so "calc" beside
+    # it names the same analyte; otherwise a `derived` word makes the line another quantity.
+    calculated: bool = False
 
 
 class Heading(BaseModel):
@@ -53,6 +56,10 @@ class Vocabulary(BaseModel):
     analytes: dict[str, Analyte]
     markers: dict[MarkerName, list[str]]
     noise: list[str]
+    derived: list[str] = []
+    status_words: list[str] = []
+    column_labels: list[str] = []
+    result_time_labels: list[str] = []
     headings: list[Heading]
     time_labels: list[str]
     flags: list[str]

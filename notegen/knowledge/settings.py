@@ -63,6 +63,7 @@ class AcidBaseSettings(BaseModel):
     delta_ratio_pure: Setting
     delta_ratio_high: Setting
     osmolal_gap_high: Setting
+    osmolal_gap_floor: Setting
     winters_tolerance: Setting
     alkalosis_pco2_slope: Setting
     alkalosis_pco2_tolerance: Setting

@@ -348,9 +348,11 @@ def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list
     sentences: list[str] = []
     if used is None or reading.anion_gap_status is None:
         if relevant and reading.hco3 is not None:
-            sentences.append("The anion gap cannot be calculated without sodium and chloride.")
+            sentences.append("The anion gap cannot be calculated without exact sodium and chloride values.")
         elif relevant:
-            sentences.append("The anion gap cannot be calculated without sodium, chloride and a bicarbonate.")
+            sentences.append(
+                "The anion gap cannot be calculated without exact sodium, chloride and bicarbonate values."
+            )
         return sentences
     reference = _span(*reading.anion_gap_reference, "mmol/L")
     if reading.anion_gap_status == "high" and not gap_said:

@@ -28,6 +28,7 @@ from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
 from notegen.errors import TemplateError, UsageError
 from notegen.note.acidosis_paragraph import acidosis_context
+from notegen.note.labels import field_label
 from notegen.note.options import DraftOptions
 from notegen.note.paragraph import draft_paragraph
 from notegen.workup.model import CauseEntry, Evidence
@@ -71,8 +72,6 @@ _CLASS_WORDS: dict[str, str] = {
     "alkali": "alkali source",
 }
 _PH_FIELDS = frozenset({"gas.ph", "urine.ph"})
-_GAS_LABELS = {"gas.ph": "pH", "gas.pco2": "PaCO2", "gas.hco3": "HCO3 (gas)", "gas.po2": "PaO2"}
-_VENOUS_LABELS = {"gas.ph": "Venous pH", "gas.pco2": "PvCO2", "gas.hco3": "HCO3 (venous gas)"}
 _BLANK_RUNS = re.compile(r"\n{3,}")
 
 
@@ -162,6 +161,8 @@ def _trend_row(series: TrendSeries) -> dict[str, str]:
     """One analyte as "7.48 (06:00) -> 7.53 (14:00)": value, then time of day, date when it changes."""
     parts: list[str] = []
     last_day = None
+    # times from different UTC offsets are shown with their offsets, so the order shown is the true order
+    mixed = len({p.taken_at.utcoffset() for p in series.points if p.taken_at is not None}) > 1
     for point in series.points:
         value = ph_text(point.value) if series.field.endswith(".ph") else trimmed_number(point.value, 1)
         if point.taken_at is None:
@@ -170,6 +171,9 @@ def _trend_row(series: TrendSeries) -> dict[str, str]:
         day = point.taken_at.date()
         when = point.taken_at.strftime("%H:%M") if day == last_day else point.taken_at.strftime("%Y-%m-%d %H:%M")
         last_day = day
+        if mixed:
+            offset = point.taken_at.isoformat()[-6:] if point.taken_at.utcoffset() is not None else "no zone"
+            when = f"{when} {'UTC' if offset == '+00:00' else offset}"
         parts.append(f"{value} ({when})")
     unit = f" {series.unit}" if series.unit else ""
     return {"label": series.label, "unit": unit.strip(), "text": " \u2192 ".join(parts) + unit}
@@ -247,17 +251,6 @@ def _three_figures(value: float) -> str:
     return trimmed_number(value, digits)
 
 
-def _field_label(field: str, case: Case) -> str:
-    from notegen.knowledge import vocabulary
-
-    if case.gas.sample == "venous" and field in _VENOUS_LABELS:
-        return _VENOUS_LABELS[field]
-    if field in _GAS_LABELS:
-        return _GAS_LABELS[field]
-    info = vocabulary.fields().get(field)
-    return sentence_case(info.label if info else field)
-
-
 def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     field = measurement.field
     qualifier = measurement.qualifier or ""
@@ -273,7 +266,7 @@ def _value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     taken = measurement.taken_at.isoformat(sep=" ", timespec="minutes") if measurement.taken_at else ""
     return {
         "field": field,
-        "label": _field_label(field, case),
+        "label": field_label(field, case, measurement),
         "reported": reported,
         "converted": converted,
         "source": measurement.source,
