@@ -11,7 +11,21 @@ import math
 from collections.abc import Iterable
 from decimal import ROUND_HALF_UP, Decimal
 
-__all__ = ["format_number", "format_value", "join_words", "ph_text", "round_half_up", "sentence_case", "trimmed_number"]
+__all__ = [
+    "RANGE_DASH",
+    "format_hours",
+    "format_number",
+    "format_range",
+    "format_reported",
+    "format_value",
+    "join_words",
+    "ph_text",
+    "round_half_up",
+    "sentence_case",
+    "trimmed_number",
+]
+
+RANGE_DASH = "\u2013"  # the one dash between the ends of a range: "7.35\u20137.45"
 
 def format_number(value: int | float | Decimal, digits: int) -> str:
     """Return `value` with exactly `digits` decimals, rounding half away from zero.
@@ -103,4 +117,29 @@ def format_value(value: float, unit: str = "") -> str:
     text = text.rstrip("0").rstrip(".")
     if text == "-0":
         text = "0"
+    return f"{text} {unit}".strip()
+
+
+def format_range(low: float, high: float, unit: str = "", *, digits: int = 1, fixed: bool = False) -> str:
+    """A range with the one range dash and the unit once: "47.8\u201351.8 mmHg", "7.35\u20137.45".
+
+    `digits` decimals, trailing zeros dropped unless `fixed` (a pH range keeps both decimals).
+    """
+    shown = format_number if fixed else trimmed_number
+    return f"{shown(low, digits)}{RANGE_DASH}{shown(high, digits)} {unit}".strip()
+
+
+def format_hours(hours: float) -> str:
+    """A duration in the one form notes use: "40 hours", "1 hour", "1.5 hours"."""
+    text = format_value(hours)
+    return f"{text} hour{'' if text == '1' else 's'}"
+
+
+def format_reported(value: float, unit: str = "") -> str:
+    """A measured value as it was reported: an entered 1.0 stays "1.0" (its decimal says how it was
+    measured), 38 stays "38"; more than 3 decimals are rounded as `format_value` does."""
+    text = repr(value)
+    point = text.find(".")
+    if type(value) is not float or point < 0 or "e" in text or len(text) - point - 1 > 3:
+        return format_value(value, unit)
     return f"{text} {unit}".strip()

@@ -115,6 +115,14 @@ def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:
     return "metabolic_alkalosis" in reading.disorders or "metabolic_alkalosis" in reading.possible_disorders
 
 
+# What makes a folder a rule pack: at least one of these (a service may override any subset).
+PACK_FILES = ("acid_base.yaml", "management.yaml", "alkalosis/*.yaml")
+
+
+def _holds_pack_files(folder: Path) -> bool:
+    return any(any(folder.glob(pattern)) for pattern in PACK_FILES)
+
+
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     """Every problem of the shipped pack with these service folders laid over it, as `file:line: message`."""
     from notegen.errors import RulePackError
@@ -125,6 +133,9 @@ def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     missing = [f for f in folders if not Path(f).is_dir()]
     if missing:
         return [f"{f}: no such folder" for f in missing]
+    empty = [f for f in folders if not _holds_pack_files(Path(f))]
+    if empty:
+        return [f"{f}: no rule-pack file here ({', '.join(PACK_FILES)})" for f in empty]
     try:
         load_acid_base_settings(list(folders))
     except RulePackError as error:

@@ -6,7 +6,7 @@ considerations, never doses.
 
 from __future__ import annotations
 
-from notegen._format import format_value, round_half_up
+from notegen._format import format_number, format_value, ph_text
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
 from notegen.case.model import Case
@@ -20,7 +20,7 @@ def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
 def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings) -> list[Alert]:
     if ph is None:
         return []
-    shown = f"{round_half_up(ph, 2):.2f}" + (" (calculated)" if calculated else "")
+    shown = (format_number(ph, 2) + " (calculated)") if calculated else ph_text(ph)
     if ph >= s.alkalemia_critical.value:
         return _alert(
             "severe_alkalemia", "critical",

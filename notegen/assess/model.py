@@ -43,3 +43,5 @@ class Assessment(FrozenModel):
     trend: tuple[TrendSeries, ...] = ()  # serial results, oldest first, for analytes measured twice or more
     trace: tuple[TraceEntry, ...] = ()
     paragraph: str = ""  # the assessment paragraph as drafted
+    disclaimer: str = ""  # the draft's one-line disclaimer, as every note format prints it
+    cautions: tuple[str, ...] = ()  # the cautions every note carries (reference ranges used, adults only...)

@@ -96,7 +96,7 @@ def validate_patient(raw: Any, col: _Collector) -> Patient:
     age = values.get("age")
     if age is not None and age < 18:
         col.notices.append(
-            f"age {_fmt(age)}: notegen's rules and formulas are for adults; read this draft with that in mind"
+            f"age {_fmt(age)}: the rules and formulas of this draft are for adults; read it with that in mind"
         )
     return Patient(**values)
 
@@ -156,7 +156,7 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
         return None
     info = _lookup_drug(name)
     if info is None:
-        col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
+        col.notices.append(f"medication {name!r} is not recognised; it is listed but not reasoned with")
         return Medication(name=name, last_dose_hours=hours)
     return Medication(name=name, generic=info.generic, classes=info.classes, last_dose_hours=hours)
 
@@ -221,7 +221,7 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                 info = table.get(vocab.fold(text))
                 if info is None:
                     col.notices.append(
-                        f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with"
+                        f"finding {text!r} is not recognised; it is listed but not reasoned with"
                     )
                 elif info.id not in found:
                     found.append(info.id)

@@ -335,11 +335,15 @@ def _sort_key(when: datetime | None) -> datetime:
     return when.replace(tzinfo=None) - offset if offset is not None else when
 
 
+_SECTION_WORDS = {"gas": "gas", "chem": "chemistry", "urine": "urine"}
+
+
 def _choose_current(
     entries: dict[str, list[dict[str, Any]]], window_hours: float, col: _Collector
 ) -> tuple[dict[str, dict[str, Any]], dict[str, list[dict[str, Any]]]]:
     current: dict[str, dict[str, Any]] = {}
     earlier: dict[str, list[dict[str, Any]]] = {}
+    serial: dict[str, list[str]] = {}  # time read -> sections given more than once, as the reader names them
     for section, items in entries.items():
         chosen = len(items) - 1
         if section == "gas":
@@ -349,11 +353,12 @@ def _choose_current(
         current[section] = items[chosen]
         earlier[section] = [e for i, e in enumerate(items) if i != chosen]
         if len(items) > 1 and items[chosen].get("taken_at"):
-            col.notices.append(
-                f"{section}: {len(items)} results given; the latest complete one "
-                f"({items[chosen]['taken_at'].isoformat(sep=' ', timespec='minutes')}) is read, "
-                "earlier ones feed the trend"
-            )
+            when = items[chosen]["taken_at"].isoformat(sep=" ", timespec="minutes")
+            serial.setdefault(when, []).append(_SECTION_WORDS.get(section, section))
+    if serial:
+        # One line for all sections: the chart note lists it under what was given but not used.
+        read = "; ".join(f"{' and '.join(names)} of {when}" for when, names in serial.items())
+        col.notices.append(f"Earlier results were given; only the latest complete set is read ({read})")
     times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
     if len(times) > 1:
         try:

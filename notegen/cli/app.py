@@ -27,6 +27,9 @@ from notegen.errors import NotegenError, UsageError
 if TYPE_CHECKING:
     import typer
 
+DEFAULT_WIDTH = 80
+MIN_WIDTH, MAX_WIDTH = 30, 400
+MIN_WINDOW_HOURS = 0.5
 APP_HELP = (
     "Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
     "Example: notegen draft samples/thiazide_and_vomiting.yaml"
@@ -85,7 +88,7 @@ def _draft(
     *,
     paste: str | None = None,
     assignments: Sequence[str] = (),
-    output_format: str = "markdown",
+    output_format: str | None = None,
     output: Path | None = None,
     out_dir: Path | None = None,
     jsonl: bool = False,
@@ -93,18 +96,32 @@ def _draft(
     template: Path | None = None,
     explain: bool = False,
     brief: bool = False,
-    width: int = 80,
+    worksheet: bool = False,
+    width: int | None = None,
     ascii_only: bool = False,
     window_hours: float = 24.0,
 ) -> int:
-    """The body of `notegen draft`, whichever parser read the arguments; returns the exit status."""
+    """The body of `notegen draft`, whichever parser read the arguments; returns the exit status.
+
+    `output_format` None: the one `output`'s suffix names, else Markdown; `width` None: 80.
+    """
+    from notegen.cli.choices import check_choices, format_for
     from notegen.pipeline import Drafter, DraftOptions
 
+    if width is not None and not MIN_WIDTH <= width <= MAX_WIDTH:
+        raise UsageError(f"--width {width}: give a line width from {MIN_WIDTH} to {MAX_WIDTH}")
+    if window_hours < MIN_WINDOW_HOURS:
+        raise UsageError(f"--window-hours {window_hours:g}: give at least {MIN_WINDOW_HOURS:g} hours")
+    chosen = format_for(output_format, output)
+    check_choices(
+        chosen, brief=brief, explain=explain, worksheet=worksheet, width=width, ascii_only=ascii_only, template=template
+    )
     options = DraftOptions(
-        output_format=output_format,
+        output_format=chosen,
         explain=explain,
         brief=brief,
-        width=width,
+        worksheet=worksheet,
+        width=DEFAULT_WIDTH if width is None else width,
         ascii_only=ascii_only,
     )
     drafter = Drafter(rules_dirs=tuple(rules), template=template)
@@ -115,7 +132,9 @@ def _draft(
         if paste is not None or assignments:
             raise UsageError("--paste and --set apply to a single case, not to a batch")
         if output is not None:
-            raise UsageError("--output writes one note; for several cases give --out FOLDER (one note per case)")
+            raise UsageError(
+                "--output writes one note; for several cases give --output-folder FOLDER (one note per case)"
+            )
         return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
     from notegen.intake.files import MAX_BYTES
     from notegen.intake.read import read_case
@@ -139,39 +158,89 @@ def _is_batch(sources: Sequence[str], *, jsonl: bool, out_dir: Path | None) -> b
 def draft(
     cases: Annotated[
         list[str] | None,
-        typer.Argument(help="Case files (YAML, JSON or FHIR JSON), folders of them, or - for standard input."),
+        typer.Argument(metavar="FILE...", hidden=True, show_default=False),
     ] = None,
     paste: Annotated[
-        str | None, typer.Option("--paste", help="A pasted lab block (a file, or - for standard input).")
+        str | None,
+        typer.Option("--paste", metavar="FILE|-", help="A pasted lab block (a file, or - for standard input)."),
     ] = None,
     assignments: Annotated[
         list[str] | None,
-        typer.Option("--set", help="Set a case value by its dotted name, e.g. --set chem.k=2.9 (repeatable)."),
+        typer.Option(
+            "--set",
+            metavar="NAME=VALUE",
+            help="Set a case value by its dotted name, e.g. --set chem.k=2.9 (repeatable).",
+            show_default=False,
+        ),
     ] = None,
     output_format: Annotated[
-        OutputFormat, typer.Option("--format", "-f", help="Output format.")
-    ] = OutputFormat.markdown,
-    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write the note to this file.")] = None,
+        OutputFormat | None,
+        typer.Option(
+            "--format",
+            "-f",
+            metavar="FORMAT",
+            help="markdown, text, html or json. Default: what --output's suffix names, else markdown.",
+            show_default=False,
+        ),
+    ] = None,
+    output: Annotated[
+        Path | None,
+        typer.Option(
+            "--output",
+            "-o",
+            metavar="FILE",
+            help="Write the one note to FILE (.md, .txt, .html or .json sets the format).",
+        ),
+    ] = None,
     out_dir: Annotated[
-        Path | None, typer.Option("--out", help="Batch: write one note per case into this folder.")
+        Path | None,
+        typer.Option("--output-folder", metavar="FOLDER", help="Write one note per case into FOLDER (several cases)."),
+    ] = None,
+    old_out_dir: Annotated[
+        Path | None, typer.Option("--out", metavar="FOLDER", hidden=True, help="Former name of --output-folder.")
     ] = None,
     jsonl: Annotated[bool, typer.Option("--jsonl", help="Read cases as JSON Lines (one case per line).")] = False,
     rules: Annotated[
-        list[Path] | None, typer.Option("--rules", help="A service's rule-pack folder, laid over the shipped one.")
+        list[Path] | None,
+        typer.Option(
+            "--rules",
+            metavar="FOLDER",
+            help="A service's rule-pack folder, laid over the shipped one (repeatable).",
+            show_default=False,
+        ),
     ] = None,
     template: Annotated[
-        Path | None, typer.Option("--template", help="A service's own note template (Jinja2, sandboxed).")
+        Path | None,
+        typer.Option("--template", metavar="FILE", help="A service's own note template (Jinja2, sandboxed)."),
     ] = None,
     explain: Annotated[bool, typer.Option("--explain", help="Add the trace of the rule walk.")] = False,
     brief: Annotated[bool, typer.Option("--brief", help="Only the assessment paragraph and the alerts.")] = False,
-    width: Annotated[int, typer.Option("--width", min=30, max=400, help="Line width of plain text.")] = 80,
+    worksheet: Annotated[
+        bool,
+        typer.Option(
+            "--worksheet", help="Add the worksheet: values, every calculation with its source, the causes weighed."
+        ),
+    ] = False,
+    width: Annotated[
+        int | None,
+        typer.Option(
+            "--width", metavar="N", help="Line width of plain text, 30 to 400 (default 80).", show_default=False
+        ),
+    ] = None,
     ascii_only: Annotated[bool, typer.Option("--ascii", help="Plain text in ASCII only.")] = False,
     window_hours: Annotated[
         float,
-        typer.Option("--window-hours", min=0.5, help="Results older than this are not mixed into the latest set."),
+        typer.Option(
+            "--window-hours",
+            metavar="HOURS",
+            help="Results older than this are not mixed into the latest set (at least 0.5; default 24).",
+            show_default=False,
+        ),
     ] = 24.0,
 ) -> None:
     """Draft the assessment section for a case and print it.
+
+    FILE: case files (YAML, JSON or FHIR JSON), folders of them, or - for standard input.
 
     Example: notegen draft samples/thiazide_and_vomiting.yaml --format text
     """
@@ -180,20 +249,28 @@ def draft(
             cases or (),
             paste=paste,
             assignments=assignments or (),
-            output_format=output_format.value,
+            output_format=None if output_format is None else output_format.value,
             output=output,
-            out_dir=out_dir,
+            out_dir=_folder_option(out_dir, old_out_dir),
             jsonl=jsonl,
             rules=rules or (),
             template=template,
             explain=explain,
             brief=brief,
+            worksheet=worksheet,
             width=width,
             ascii_only=ascii_only,
             window_hours=window_hours,
         )
     )
     _exit_on_failure(code)
+
+
+def _folder_option(new: Path | None, old: Path | None) -> Path | None:
+    """--output-folder, or its former name --out (kept working: it only ever names a folder)."""
+    if new is not None and old is not None:
+        raise UsageError("give --output-folder once (--out is its former name)")
+    return new if new is not None else old
 
 
 def schema(
@@ -214,7 +291,9 @@ def schema(
 
 
 def new_case(
-    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write to this file instead of stdout.")] = None,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to FILE instead of standard output.")
+    ] = None,
 ) -> None:
     """Print a commented blank case file to start from.
 
@@ -234,9 +313,14 @@ def new_case(
 
 
 def check_pack(
-    folders: Annotated[list[Path], typer.Argument(help="Rule-pack folders, laid over the shipped pack in order.")],
+    folders: Annotated[
+        list[Path],
+        typer.Argument(metavar="FOLDER...", hidden=True, show_default=False),
+    ],
 ) -> None:
     """Check a service's rule pack and report every problem with its file and line.
+
+    FOLDER: rule-pack folders, laid over the shipped pack in order.
 
     Example: notegen check-pack ./our-rules
     """
@@ -286,14 +370,21 @@ def __getattr__(name: str) -> Any:
 
 # A plain `draft` call, parsed without typer ---------------------------------------------------
 
-_FLAGS = {"--jsonl": "jsonl", "--explain": "explain", "--brief": "brief", "--ascii": "ascii_only"}
+_FLAGS = {
+    "--jsonl": "jsonl",
+    "--explain": "explain",
+    "--brief": "brief",
+    "--worksheet": "worksheet",
+    "--ascii": "ascii_only",
+}
 _VALUES = {
     "--paste": "paste",
     "--format": "output_format",
     "-f": "output_format",
     "--output": "output",
     "-o": "output",
-    "--out": "out_dir",
+    "--output-folder": "out_dir",
+    "--out": "out_dir",  # the former name of --output-folder
     "--template": "template",
     "--width": "width",
     "--window-hours": "window_hours",
@@ -342,14 +433,14 @@ def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
             return None
         else:
             found[_VALUES[name]] = value
-    if found.get("output_format", "markdown") not in {member.value for member in OutputFormat}:
+    if "output_format" in found and found["output_format"] not in {member.value for member in OutputFormat}:
         return None
     if "width" in found:
-        if not _WHOLE_NUMBER.fullmatch(found["width"]) or not 30 <= int(found["width"]) <= 400:
-            return None
+        if not _WHOLE_NUMBER.fullmatch(found["width"]):
+            return None  # the range is checked by `_draft`, whichever parser read it
         found["width"] = int(found["width"])
     if "window_hours" in found:
-        if not _DECIMAL.fullmatch(found["window_hours"]) or float(found["window_hours"]) < 0.5:
+        if not _DECIMAL.fullmatch(found["window_hours"]):
             return None
         found["window_hours"] = float(found["window_hours"])
     for key in _PATHS:

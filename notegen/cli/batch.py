@@ -199,9 +199,9 @@ def run_batch(
         try:
             out_dir.mkdir(parents=True, exist_ok=True)
         except OSError as exc:
-            raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
+            raise UsageError(f"--output-folder {out_dir}: cannot make the folder ({exc.strerror})") from None
     if out_dir is None and options.output_format == "html":
-        raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
+        raise UsageError("several HTML notes need --output-folder FOLDER: each note is a page of its own")
     drafted = rejected = failed = 0
     extension = _EXTENSIONS[options.output_format]
     written: dict[Path, str] = {}

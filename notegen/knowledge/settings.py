@@ -63,6 +63,7 @@ class AcidBaseSettings(BaseModel):
     delta_ratio_low: Setting
     delta_ratio_pure: Setting
     delta_ratio_high: Setting
+    delta_ratio_min_fall: Setting
     osmolal_gap_high: Setting
     winters_tolerance: Setting
     alkalosis_pco2_slope: Setting
