@@ -136,12 +136,20 @@ def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     empty = [f for f in folders if not _holds_pack_files(Path(f))]
     if empty:
         return [f"{f}: no rule-pack file here ({', '.join(PACK_FILES)})" for f in empty]
+    settings = None
     try:
-        load_acid_base_settings(list(folders))
+        settings = load_acid_base_settings(list(folders))
     except RulePackError as error:
         lines.extend(str(error).splitlines())
-    for filename, line, message in check_alkalosis_pack(folders):
+    pack_problems = check_alkalosis_pack(folders)
+    for filename, line, message in pack_problems:
         lines.append(f"{filename}:{line}: {message}" if line is not None else f"{filename}: {message}")
+    if settings is not None and not pack_problems:
+        # one severity vocabulary: a word shared by the alerts and the pack means one threshold
+        from notegen.knowledge.severity import severity_problems
+        from notegen.workup.alkalosis import load_alkalosis_pack
+
+        lines.extend(severity_problems(settings, load_alkalosis_pack(folders).settings))
     return lines
 
 

@@ -112,7 +112,7 @@ def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
         return _alert(
             "hypomagnesemia", "warning",
             f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}:",
-            "marked hypomagnesemia; potassium is hard to replete until magnesium is restored.",
+            "severe hypomagnesemia; potassium is hard to replete until magnesium is restored.",
         )  # fmt: skip
     if mg < s.magnesium_low.value:
         return _alert(
