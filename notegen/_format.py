@@ -16,7 +16,6 @@ __all__ = [
     "format_hours",
     "format_number",
     "format_range",
-    "format_reported",
     "format_value",
     "join_words",
     "ph_text",
@@ -134,12 +133,3 @@ def format_hours(hours: float) -> str:
     text = format_value(hours)
     return f"{text} hour{'' if text == '1' else 's'}"
 
-
-def format_reported(value: float, unit: str = "") -> str:
-    """A measured value as it was reported: an entered 1.0 stays "1.0" (its decimal says how it was
-    measured), 38 stays "38"; more than 3 decimals are rounded as `format_value` does."""
-    text = repr(value)
-    point = text.find(".")
-    if type(value) is not float or point < 0 or "e" in text or len(text) - point - 1 > 3:
-        return format_value(value, unit)
-    return f"{text} {unit}".strip()

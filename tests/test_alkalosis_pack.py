@@ -300,7 +300,7 @@ def test_blood_pressure_reads_as_a_reading() -> None:
 
 
 def test_no_sentence_holds_a_separator_the_paragraph_uses() -> None:
-    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.note.paragraph).
+    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.note.workup_prose).
     for cause in PACK.spec.causes:
         for item in (*cause.evidence.supporting, *cause.evidence.opposing):
             assert not set(item.says) & set(";:()"), (cause.id, item.id, item.says)

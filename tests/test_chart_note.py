@@ -217,3 +217,38 @@ def test_one_dash_for_ranges_and_one_form_for_durations() -> None:
     sheet = _note(SAMPLE_CASES["thiazide_and_vomiting.yaml"], worksheet=True)
     assert "last dose 40 hours ago" in sheet and "40 h " not in sheet
     assert "(range 47.8–51.8 mmHg)" in sheet
+
+
+def test_a_value_is_shown_as_it_was_reported() -> None:
+    base = {"gas": {"sample": "arterial", "ph": 7.48, "pco2": 46, "hco3": 34}}
+    for written, shown in ((1.0, "1.0 mg/dL"), (1, "1 mg/dL"), ("1.10 mg/dL", "1.10 mg/dL"), (1.25, "1.25 mg/dL")):
+        case = validate_case({**base, "chem": {"creatinine": written}})
+        assert f"| Creatinine | {shown} | unchanged | case file |" in _note(case, worksheet=True), written
+
+
+def test_a_value_near_a_threshold_is_called_near() -> None:
+    # CKD-EPI 2021 (Inker et al., NEJM 2021): eGFR 43 for the thiazide sample; the cut-off is 40 (common practice)
+    sheet = _note(SAMPLE_CASES["thiazide_and_vomiting.yaml"], worksheet=True)
+    assert "eGFR 43 mL/min/1.73 m2 is near 40 mL/min/1.73 m2, probably enough" in sheet
+    assert "eGFR 43 mL/min/1.73 m2 is enough" not in sheet
+    far = _drafter().assess(alkalosis_case(urine_cl=12, creatinine=0.9))
+    gfr = next(c for c in far.differential if c.cause == "reduced_gfr")
+    assert [e.id for e in gfr.opposing] == ["egfr_adequate"]
+
+
+def test_the_one_formatter_for_ranges_and_durations() -> None:
+    from notegen._format import format_hours, format_range
+
+    assert format_range(7.35, 7.45, digits=2, fixed=True) == "7.35\u20137.45"
+    assert format_range(47.8, 51.8, "mmHg") == "47.8\u201351.8 mmHg"
+    assert format_range(8, 16, "mmol/L") == "8\u201316 mmol/L"
+    assert (format_hours(40), format_hours(1.0), format_hours(1.5)) == ("40 hours", "1 hour", "1.5 hours")
+
+
+def test_the_paragraph_and_the_reading_steps_print_a_ph_alike() -> None:
+    case = validate_case({"gas": {"sample": "arterial", "ph": 7.485, "pco2": 47, "hco3": 35}})
+    assessment = _drafter().assess(case)
+    assert "pH 7.485" in _note(case, brief=True)
+    steps = " ".join(assessment.acid_base.findings)
+    assert "pH 7.485 is alkalemic" in steps and "(reported 7.485," in steps  # not 7.49 from a second rounding
+    assert "7.49" not in steps

@@ -34,6 +34,8 @@ GapBicarbonate = Literal["gas bicarbonate", "panel total CO2"]
 # Why the primary was chosen (or not), as a code the paragraph writer chooses its words from.
 PrimaryBasis = Literal[
     "no_gas",  # no pH and PaCO2
+    "no_gas_high_bicarbonate",  # ... and a high total CO2: alkalosis or compensation, only a gas can tell
+    "no_gas_low_bicarbonate",  # ... and a low total CO2: acidosis or compensation, only a gas can tell
     "all_normal",  # pH, PaCO2 and bicarbonate within range
     "both_push_same_way",  # both abnormal toward the pH; the larger push is primary
     "one_value_explains",  # one abnormal value explains the pH

@@ -155,17 +155,19 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     if g.ph is None or g.pco2 is None or g.hco3 is None:
         w.missing.append("Primary disorder: needs a blood gas with pH and PaCO2 (and a bicarbonate).")
         reason = "no blood gas with pH and PaCO2, so the primary disorder cannot be read"
+        w.primary_basis = "no_gas"
         if g.hco3 is not None and g.hco3 > s.hco3_high.value:
+            w.primary_basis = "no_gas_high_bicarbonate"
             reason += (
                 "; the high total CO2 fits a metabolic alkalosis or the compensation of a respiratory "
                 "acidosis, which only a gas can tell apart"
             )
         elif g.hco3 is not None and g.hco3 < s.hco3_low.value:
+            w.primary_basis = "no_gas_low_bicarbonate"
             reason += (
                 "; the low total CO2 fits a metabolic acidosis or the compensation of a respiratory "
                 "alkalosis, which only a gas can tell apart"
             )
-        w.primary_basis = "no_gas"
         return "undetermined", reason
     ph, pco2, hco3 = g.ph, g.pco2, g.hco3
     # Each process's share of the pH shift, from Henderson-Hasselbalch: positive pushes toward alkalemia.

@@ -29,6 +29,14 @@ from notegen.note.workup_prose import alkalosis_sentences, next_test_sentences
 
 __all__ = ["draft_paragraph"]
 
+# Without a gas, what a total CO2 outside its range leaves open.
+_NO_GAS_BICARBONATE = {
+    "no_gas_high_bicarbonate": "; the high total CO2 fits a metabolic alkalosis or the compensation of a "
+    "respiratory acidosis, which only a gas can tell apart",
+    "no_gas_low_bicarbonate": "; the low total CO2 fits a metabolic acidosis or the compensation of a "
+    "respiratory alkalosis, which only a gas can tell apart",
+}
+
 
 def draft_paragraph(assessment: Assessment, *, name_next_tests: bool = True) -> str:
     """The assessment paragraph, as plain text in one paragraph.
@@ -121,8 +129,7 @@ def _primary(
     primary = reading.primary
     if reading.ph is None or reading.pco2 is None:
         text = "There is no blood gas with a pH and PaCO2, so the primary disorder cannot be determined"
-        _, _, tail = reading.primary_reason.partition("; ")
-        return [sentence(f"{text}; {tail}" if tail else text)], False
+        return [sentence(text + _NO_GAS_BICARBONATE.get(reading.primary_basis or "", ""))], False
     gas = _gas(reading)
     if primary == "none":
         return [f"{gas} lies within the reference ranges, with no acid-base disorder on these values."], False

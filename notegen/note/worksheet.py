@@ -115,6 +115,14 @@ def _field_label(field: str, case: Case) -> str:
     return sentence_case(info.label if info else field)
 
 
+def _as_reported(measurement: Measurement) -> str:
+    """The value as the case wrote it, with its unit: an entered 1.0 stays "1.0 mg/dL"."""
+    written = measurement.reported_text
+    if written is not None and float(written) == measurement.reported_value:
+        return f"{written} {measurement.reported_unit}".strip()
+    return format_value(measurement.reported_value, measurement.reported_unit)
+
+
 def value_row(measurement: Measurement, case: Case) -> dict[str, str]:
     field = measurement.field
     qualifier = measurement.qualifier or ""
@@ -122,7 +130,7 @@ def value_row(measurement: Measurement, case: Case) -> dict[str, str]:
         reported = f"{qualifier}{ph_text(measurement.reported_value)}"
         converted = "unchanged"
     else:
-        reported = f"{qualifier}{format_value(measurement.reported_value, measurement.reported_unit)}"
+        reported = f"{qualifier}{_as_reported(measurement)}"
         same = measurement.reported_unit == measurement.unit and measurement.reported_value == measurement.value
         converted = (
             "unchanged" if same else f"{qualifier}{_three_figures(measurement.value)} {measurement.unit}".strip()
