@@ -97,9 +97,9 @@ class Drafter:
         options = options or DraftOptions()
         return render_note(self.assess(case, explain=options.explain), options, template=self.template)
 
-    def note(self, case: CaseLike, *, brief: bool = False) -> Note:
-        """Draft one case into a `Note`, whose formats render on request."""
-        return Note(self.assess(as_case(case)), brief=brief, template=self.template)
+    def note(self, case: CaseLike, *, brief: bool = False, worksheet: bool = False) -> Note:
+        """Draft one case into a `Note`, whose formats render on request; `worksheet` adds the working."""
+        return Note(self.assess(as_case(case)), brief=brief, template=self.template, worksheet=worksheet)
 
     def draft_json_line(self, case: Case, *, explain: bool = False) -> str:
         """The JSON output on one line, for JSON Lines: the content of `draft` in JSON, without indentation.
@@ -176,8 +176,10 @@ def draft(
     rules: str | PathLike[str] | None = None,
     template: str | PathLike[str] | None = None,
     brief: bool = False,
+    worksheet: bool = False,
 ) -> Note:
-    """Draft one case in one call; `rules` is a service's rule folder, `template` its note layout.
+    """Draft one case in one call; `rules` is a service's rule folder, `template` its note layout,
+    `worksheet` adds the values, calculations and causes weighed after the chart note.
 
     For many cases, hold one `Drafter` so that the rules and templates load once.
     """
@@ -185,4 +187,4 @@ def draft(
         rules_dirs=(Path(rules),) if rules is not None else (),
         template=Path(template) if template is not None else None,
     )
-    return drafter.note(case, brief=brief)
+    return drafter.note(case, brief=brief, worksheet=worksheet)

@@ -252,3 +252,23 @@ def test_the_paragraph_and_the_reading_steps_print_a_ph_alike() -> None:
     steps = " ".join(assessment.acid_base.findings)
     assert "pH 7.485 is alkalemic" in steps and "(reported 7.485," in steps  # not 7.49 from a second rounding
     assert "7.49" not in steps
+
+
+def test_every_shipped_test_has_its_clinical_sentence() -> None:
+    from notegen.knowledge.vocabulary import next_test_sentences
+    from notegen.workup.alkalosis import default_alkalosis_pack
+
+    sentences = next_test_sentences()
+    for test in default_alkalosis_pack().spec.tests:
+        text = sentences.get(test.id, "")
+        assert text.endswith(".") and text.count(". ") == 0, test.id  # one sentence
+        assert not INTERNAL.search(text), test.id
+
+
+def test_the_library_offers_the_worksheet_as_the_command_does() -> None:
+    import notegen
+
+    path = str(SAMPLES[0])
+    chart, with_sheet = notegen.draft(path), notegen.draft(path, worksheet=True)
+    assert "# Worksheet" not in chart.markdown and "# Worksheet" in with_sheet.markdown
+    assert with_sheet.to_dict() == chart.to_dict()
