@@ -508,7 +508,9 @@ def test_the_samples_read_as_an_attending_would_write_them() -> None:
         "The alkalosis is maintained by chloride and volume depletion, hypokalemia, and probable secondary" in thiazide
     )
     loop = draft_paragraph(sample("loop_diuretic_heart_failure"))
-    assert "The likely cause is loop or thiazide diuretic use (taking furosemide; last dose 4 hours ago" in loop
+    # the chloride sentence gives the dose timing; the cause does not repeat it, nor the urine chloride
+    assert "The likely cause is loop or thiazide diuretic use (taking furosemide)." in loop
+    assert loop.count("last dose 4 hours ago") == 1 and loop.count("78 mmol/L") == 1
     # no magnesium was measured: the depletion cause waits on it and is not called unlikely
     assert "magnesium depletion is unlikely" not in loop
     hypertensive = draft_paragraph(sample("hypertension_low_potassium"))

@@ -27,6 +27,8 @@ POSSIBLE_CAUSES_NAMED = 3
 NOT_ASSESSABLE_NAMED = 2
 # Facts the chloride sentence has already stated (names of the alkalosis pack's facts).
 CHLORIDE_FACTS = frozenset({"chloride_class", "urine_cl"})
+# ...and, when the class is left open because a diuretic is acting, the diuretic's timing.
+DIURETIC_TIMING_FACTS = frozenset({"loop_or_thiazide_acting", "loop_or_thiazide_hours"})
 
 
 def alkalosis_sentences(assessment: Assessment) -> list[str]:
@@ -57,7 +59,7 @@ def alkalosis_sentences(assessment: Assessment) -> list[str]:
         return []
     return [
         *_chloride(assessment),
-        *_causes(assessment.differential, assessment.maintenance),
+        *_causes(assessment.differential, assessment.maintenance, _stated_by_chloride(assessment)),
         *_against(assessment.differential),
         *_not_assessable(assessment.differential, assessment.maintenance),  # only when no cause is likely
         *_maintenance(assessment.maintenance),
@@ -104,26 +106,48 @@ def _strongest(evidence: Sequence[Evidence], limit: int) -> list[Evidence]:
     return (firm or ranked)[:limit]
 
 
-def _new_to_the_reader(evidence: Sequence[Evidence]) -> list[Evidence]:
+def _stated_by_chloride(assessment: Assessment) -> frozenset[str]:
+    """The facts the chloride sentence has already given the reader."""
+    if assessment.chloride_class == "indeterminate" and assessment.chloride_notes:
+        return CHLORIDE_FACTS | DIURETIC_TIMING_FACTS
+    return CHLORIDE_FACTS
+
+
+def _new_to_the_reader(evidence: Sequence[Evidence], stated: frozenset[str] = CHLORIDE_FACTS) -> list[Evidence]:
     """Findings the paragraph has not already given: the chloride sentence states the class and the
     urine chloride, so a finding resting on those alone is dropped when the cause has others."""
-    fresh = [item for item in evidence if not (item.facts and set(item.facts) <= CHLORIDE_FACTS)]
+    fresh = [item for item in evidence if not (item.facts and set(item.facts) <= stated)]
     return fresh or list(evidence)
 
 
-def _findings(evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE) -> str:
-    """The strongest findings as clauses joined by semicolons (they may hold commas)."""
-    chosen = _strongest(_new_to_the_reader(evidence), limit)
+def _findings(
+    evidence: Sequence[Evidence], limit: int = FINDINGS_PER_CAUSE, stated: frozenset[str] = CHLORIDE_FACTS
+) -> str:
+    """The strongest findings as clauses joined by semicolons (they may hold commas); a finding whose
+    facts the reader already has, from the chloride sentence or a finding before it, is left out."""
+    chosen: list[Evidence] = []
+    known = set(stated)
+    for item in _strongest(_new_to_the_reader(evidence, stated), len(evidence)):
+        if len(chosen) == limit:
+            break
+        if chosen and item.facts and set(item.facts) <= known:
+            continue
+        chosen.append(item)
+        known |= set(item.facts)
     return "; ".join(clause(item.text) for item in chosen if item.text.strip())
 
 
-def _with_findings(label: str, evidence: Sequence[Evidence]) -> str:
+def _with_findings(label: str, evidence: Sequence[Evidence], stated: frozenset[str] = CHLORIDE_FACTS) -> str:
     """A cause and, in parentheses, the one or two findings that carry it."""
-    findings = _findings(evidence)
+    findings = _findings(evidence, stated=stated)
     return f"{label} ({findings})" if findings else label
 
 
-def _causes(differential: Sequence[CauseEntry], maintenance: Sequence[FactorEntry] = ()) -> list[str]:
+def _causes(
+    differential: Sequence[CauseEntry],
+    maintenance: Sequence[FactorEntry] = (),
+    stated: frozenset[str] = CHLORIDE_FACTS,
+) -> list[str]:
     likely = [cause for cause in differential if cause.tier == "likely"]
     # A possible cause that is also a present maintenance factor (reduced GFR) is said once, there.
     maintaining = {factor.factor for factor in maintenance if factor.status == "present"}
@@ -132,10 +156,12 @@ def _causes(differential: Sequence[CauseEntry], maintenance: Sequence[FactorEntr
         possible = [cause for cause in possible if cause.cause not in maintaining]
     sentences: list[str] = []
     if len(likely) == 1:
-        sentences.append(f"The likely cause is {_with_findings(inline(likely[0].label), likely[0].supporting)}.")
+        sentences.append(
+            f"The likely cause is {_with_findings(inline(likely[0].label), likely[0].supporting, stated)}."
+        )
     elif likely:
         count = _COUNT_WORDS.get(len(likely), str(len(likely)))
-        items = [_with_findings(inline(cause.label), cause.supporting) for cause in likely]
+        items = [_with_findings(inline(cause.label), cause.supporting, stated) for cause in likely]
         sentences.append(f"{count} causes are likely, probably acting together: {word_list(items)}.")
     named = possible[:POSSIBLE_CAUSES_NAMED]
     rest = len(possible) - len(named)
@@ -146,7 +172,7 @@ def _causes(differential: Sequence[CauseEntry], maintenance: Sequence[FactorEntr
         sentences.append(f"{sentence_case(word_list(labels))} {verb} also possible.")
     elif len(possible) == 1:
         only = possible[0]
-        findings = _findings(only.supporting)
+        findings = _findings(only.supporting, stated=stated)
         sentences.append(
             f"No cause is clearly supported, though {inline(only.label)} remains possible"
             + (f" ({findings})." if findings else ".")
