@@ -89,3 +89,10 @@ def test_check_pack_on_a_folder_with_no_pack_says_so(tmp_path: Path) -> None:
     assert result.exit_code == 2
     assert f"{tmp_path}: no rule-pack file here (acid_base.yaml, management.yaml, alkalosis/*.yaml)" in result.stderr
     assert "consistent" not in result.stdout
+
+
+def test_both_parsers_know_the_same_formats() -> None:
+    from notegen.cli.app import OutputFormat
+    from notegen.cli.plain import FORMAT_NAMES
+
+    assert tuple(member.value for member in OutputFormat) == FORMAT_NAMES

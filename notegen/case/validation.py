@@ -25,6 +25,7 @@ from notegen.case.checks import (
     _key,
     _shown,
     _unsafe_character,
+    as_written,
 )
 from notegen.case.context import validate_context, validate_patient
 from notegen.case.model import (
@@ -118,25 +119,6 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
             return None
         unit = normal
     return number, unit, qualifier
-
-
-def _as_written(raw: Any) -> str | None:
-    """The number as the case wrote it ("1.0" stays "1.0", "38" stays "38"), for the values table; None
-    when it cannot be told (a value YAML or JSON read with more decimals than a lab reports)."""
-    if isinstance(raw, Mapping):
-        return _as_written(raw.get("value"))
-    if isinstance(raw, bool):
-        return None
-    if isinstance(raw, int):
-        return str(raw)
-    if isinstance(raw, float):
-        text = repr(raw)
-        point = text.find(".")
-        return text if "e" not in text and 0 <= point and len(text) - point - 1 <= 3 else None
-    if isinstance(raw, str):
-        match = _VALUE_TEXT.match(raw)
-        return match["num"] if match else None
-    return None
 
 
 def _check_plausible(number: float, unit: str, path: str, field_name: str, col: _Collector) -> float | None:
@@ -240,7 +222,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
                 value=canonical,
                 unit=u.FIELD_UNITS[field_name].canonical,
                 reported_value=number,
-                reported_text=_as_written(values[key]),
+                reported_text=as_written(values[key]),
                 reported_unit=reported_unit,
                 qualifier=qualifier,  # type: ignore[arg-type]
                 taken_at=taken_at,

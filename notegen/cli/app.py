@@ -15,13 +15,13 @@ from __future__ import annotations
 import functools
 import gc
 import os
-import re
 import sys
 from collections.abc import Callable, Sequence
 from enum import StrEnum
 from pathlib import Path
 from typing import TYPE_CHECKING, Annotated, Any
 
+from notegen.cli.plain import plain_draft_arguments
 from notegen.errors import NotegenError, UsageError
 
 if TYPE_CHECKING:
@@ -41,6 +41,9 @@ class OutputFormat(StrEnum):
     text = "text"
     html = "html"
     json = "json"
+
+
+_plain_draft_arguments = plain_draft_arguments  # the name the tests know
 
 
 class SchemaKind(StrEnum):
@@ -368,92 +371,10 @@ def __getattr__(name: str) -> Any:
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
-# A plain `draft` call, parsed without typer ---------------------------------------------------
-
-_FLAGS = {
-    "--jsonl": "jsonl",
-    "--explain": "explain",
-    "--brief": "brief",
-    "--worksheet": "worksheet",
-    "--ascii": "ascii_only",
-}
-_VALUES = {
-    "--paste": "paste",
-    "--format": "output_format",
-    "-f": "output_format",
-    "--output": "output",
-    "-o": "output",
-    "--output-folder": "out_dir",
-    "--out": "out_dir",  # the former name of --output-folder
-    "--template": "template",
-    "--width": "width",
-    "--window-hours": "window_hours",
-}
-_REPEATED = {"--set": "assignments", "--rules": "rules"}
-_PATHS = ("output", "out_dir", "template")
-_WHOLE_NUMBER = re.compile(r"[0-9]{1,4}")
-_DECIMAL = re.compile(r"[0-9]{1,6}(\.[0-9]{1,6})?")
-
-
-def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
-    """The arguments of a `draft` call that needs no typer to read; None for anything else.
-
-    Only unmistakable forms are taken: known options once each, values that are plainly valid.
-    Help, errors and every unusual form are left to typer, so its messages stay the only ones.
-    """
-    if not argv or argv[0] != "draft":
-        return None
-    cases: list[str] = []
-    found: dict[str, Any] = {"assignments": [], "rules": []}
-    position = 1
-    while position < len(argv):
-        word = argv[position]
-        position += 1
-        if word == "-" or not word.startswith("-"):
-            cases.append(word)
-            continue
-        if word in _FLAGS:
-            if _FLAGS[word] in found:
-                return None
-            found[_FLAGS[word]] = True
-            continue
-        name, equals, value = word.partition("=")
-        if name not in _VALUES and name not in _REPEATED:
-            return None  # --help, --, -fjson, an unknown option...
-        if not equals:
-            if position == len(argv):
-                return None
-            value = argv[position]
-            position += 1
-        if not value or (value.startswith("-") and value != "-"):
-            return None
-        if name in _REPEATED:
-            found[_REPEATED[name]].append(value)
-        elif _VALUES[name] in found:
-            return None
-        else:
-            found[_VALUES[name]] = value
-    if "output_format" in found and found["output_format"] not in {member.value for member in OutputFormat}:
-        return None
-    if "width" in found:
-        if not _WHOLE_NUMBER.fullmatch(found["width"]):
-            return None  # the range is checked by `_draft`, whichever parser read it
-        found["width"] = int(found["width"])
-    if "window_hours" in found:
-        if not _DECIMAL.fullmatch(found["window_hours"]):
-            return None
-        found["window_hours"] = float(found["window_hours"])
-    for key in _PATHS:
-        if key in found:
-            found[key] = Path(found[key])
-    found["rules"] = [Path(folder) for folder in found["rules"]]
-    return {"cases": cases, **found}
-
-
 def main(argv: Sequence[str] | None = None) -> int:
     """The `notegen` command; returns the exit status (typer's path exits by itself)."""
     arguments = list(sys.argv[1:] if argv is None else argv)
-    plain = _plain_draft_arguments(arguments)
+    plain = plain_draft_arguments(arguments)
     if plain is None:
         _typer_app()(args=arguments, prog_name="notegen")
         return 0
