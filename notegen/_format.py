@@ -12,8 +12,11 @@ from collections.abc import Iterable
 from decimal import ROUND_HALF_UP, Decimal
 
 __all__ = [
+    "RANGE_DASH",
     "decimals_beside",
+    "format_hours",
     "format_number",
+    "format_range",
     "format_value",
     "format_value_beside",
     "join_words",
@@ -22,6 +25,8 @@ __all__ = [
     "sentence_case",
     "trimmed_number",
 ]
+
+RANGE_DASH = "\u2013"  # the one dash between the ends of a range: "7.35\u20137.45"
 
 def format_number(value: int | float | Decimal, digits: int) -> str:
     """Return `value` with exactly `digits` decimals, rounding half away from zero.
@@ -141,3 +146,19 @@ def format_value_beside(value: float, thresholds: Iterable[float], unit: str = "
         return format_value(value, unit)
     text = format_number(value, digits).rstrip("0").rstrip(".")
     return f"{text} {unit}".strip()
+
+
+def format_range(low: float, high: float, unit: str = "", *, digits: int = 1, fixed: bool = False) -> str:
+    """A range with the one range dash and the unit once: "47.8\u201351.8 mmHg", "7.35\u20137.45".
+
+    `digits` decimals, trailing zeros dropped unless `fixed` (a pH range keeps both decimals).
+    """
+    shown = format_number if fixed else trimmed_number
+    return f"{shown(low, digits)}{RANGE_DASH}{shown(high, digits)} {unit}".strip()
+
+
+def format_hours(hours: float) -> str:
+    """A duration in the one form notes use: "40 hours", "1 hour", "1.5 hours"."""
+    text = format_value(hours)
+    return f"{text} hour{'' if text == '1' else 's'}"
+

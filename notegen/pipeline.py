@@ -115,9 +115,9 @@ class Drafter:
         options = options or DraftOptions()
         return render_note(self.assess(case, explain=options.explain), options, template=self.template)
 
-    def note(self, case: CaseLike, *, brief: bool = False) -> Note:
-        """Draft one case into a `Note`, whose formats render on request."""
-        return Note(self.assess(as_case(case)), brief=brief, template=self.template)
+    def note(self, case: CaseLike, *, brief: bool = False, worksheet: bool = False) -> Note:
+        """Draft one case into a `Note`, whose formats render on request; `worksheet` adds the working."""
+        return Note(self.assess(as_case(case)), brief=brief, template=self.template, worksheet=worksheet)
 
     def draft_json_line(self, case: Case, *, explain: bool = False) -> str:
         """The JSON output on one line, for JSON Lines: the content of `draft` in JSON, without indentation.
@@ -138,20 +138,38 @@ def _acidosis_to_work_up(reading: AcidBaseReading) -> bool:
     return "metabolic_acidosis" in reading.disorders and reading.metabolic_acidosis_kind is not None
 
 
+# What makes a folder a rule pack: at least one of these (a service may override any subset).
+PACK_FILES = ("acid_base.yaml", "management.yaml", "alkalosis/*.yaml", "acidosis/*.yaml")
+
+
+def _holds_pack_files(folder: Path) -> bool:
+    return any(any(folder.glob(pattern)) for pattern in PACK_FILES)
+
+
 def check_rule_folders(folders: tuple[Path, ...]) -> list[str]:
     """Every problem of the shipped rules with these service folders laid over them, as `file:line: message`.
 
     The same `Knowledge` that `Drafter(rules_dirs=folders)` loads (settings, vocabularies, tables,
-    the alkalosis pack), then the considerations, checked against the pack these same folders make
-    (a cause a service adds can be named in its management.yaml), as `draft --rules` loads them.
+    the alkalosis and acidosis packs), then the considerations, checked against the packs these same
+    folders make (a cause a service adds can be named in its management.yaml), as `draft --rules`
+    loads them; then the one severity vocabulary (a word shared by alerts and pack means one threshold).
     """
     from notegen.assess.considerations import check_considerations
+    from notegen.knowledge.severity import severity_problems
 
     knowledge = Knowledge(tuple(Path(f) for f in folders))
+    missing = [f for f in knowledge.rules_dirs if not f.is_dir()]
+    if missing:
+        return [f"{f}: no such folder" for f in missing]
+    empty = [f for f in knowledge.rules_dirs if not _holds_pack_files(f)]
+    if empty:
+        return [f"{f}: no rule-pack file here ({', '.join(PACK_FILES)})" for f in empty]
     problems = knowledge.problems()
-    if all(folder.is_dir() for folder in knowledge.rules_dirs):
-        problems += check_considerations(knowledge.rules_dirs)
-    return [f"{name}:{line}: {text}" if line is not None else f"{name}: {text}" for name, line, text in problems]
+    problems += check_considerations(knowledge.rules_dirs)
+    lines = [f"{name}:{line}: {text}" if line is not None else f"{name}: {text}" for name, line, text in problems]
+    if not problems:
+        lines.extend(severity_problems(knowledge.settings, knowledge.alkalosis_pack.settings))
+    return lines
 
 
 def as_case(case: CaseLike) -> Case:
@@ -177,8 +195,10 @@ def draft(
     rules: str | PathLike[str] | None = None,
     template: str | PathLike[str] | None = None,
     brief: bool = False,
+    worksheet: bool = False,
 ) -> Note:
-    """Draft one case in one call; `rules` is a service's rule folder, `template` its note layout.
+    """Draft one case in one call; `rules` is a service's rule folder, `template` its note layout,
+    `worksheet` adds the values, calculations and causes weighed after the chart note.
 
     For many cases, hold one `Drafter` so that the rules and templates load once.
     """
@@ -186,4 +206,4 @@ def draft(
         rules_dirs=(Path(rules),) if rules is not None else (),
         template=Path(template) if template is not None else None,
     )
-    return drafter.note(case, brief=brief)
+    return drafter.note(case, brief=brief, worksheet=worksheet)

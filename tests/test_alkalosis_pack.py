@@ -30,7 +30,7 @@ def factor_status(result: WalkResult, factor: str) -> str | None:
         ("urine_cl_resistant_above", 40, "mmol/L", "Luke & Galla, JASN 2012"),
         ("egfr_maintenance_below", 40, "mL/min/1.73 m2", "common practice"),
         ("k_low_below", 3.5, "mmol/L", "common practice"),
-        ("k_severe_below", 2.0, "mmol/L", "from memory"),
+        ("k_severe_below", 2.5, "mmol/L", "potassium_low_critical"),
         ("urine_k_creatinine_renal_from", 1.5, "mmol/mmol", "Assadi"),
         ("urine_calcium_creatinine_low_at_most", 0.2, "mmol/mmol", "from memory"),
         ("systolic_high_from", 140, "mmHg", "from memory"),
@@ -72,9 +72,9 @@ def test_potassium_cut_offs() -> None:
     # Hypokalemia below 3.5 mmol/L: common practice (lower reference limit).
     assert factor_status(run(k=NumberFact(3.49, "mmol/L")), "hypokalemia") == "present"
     assert factor_status(run(k=NumberFact(3.5, "mmol/L")), "hypokalemia") is None
-    # Severe depletion below 2.0 mmol/L: Galla, JASN 2000 (from memory).
-    assert "severe_hypokalemia" in evidence_ids(run(k=NumberFact(1.99, "mmol/L")), "potassium_magnesium_depletion")
-    assert "severe_hypokalemia" not in evidence_ids(run(k=NumberFact(2.0, "mmol/L")), "potassium_magnesium_depletion")
+    # Severe depletion below 2.5 mmol/L: common practice, the alerts' severe hypokalemia (rules/severity.yaml).
+    assert "severe_hypokalemia" in evidence_ids(run(k=NumberFact(2.49, "mmol/L")), "potassium_magnesium_depletion")
+    assert "severe_hypokalemia" not in evidence_ids(run(k=NumberFact(2.5, "mmol/L")), "potassium_magnesium_depletion")
 
 
 def test_magnesium_cut_offs() -> None:
@@ -308,7 +308,7 @@ def test_blood_pressure_reads_as_a_reading() -> None:
 
 
 def test_no_sentence_holds_a_separator_the_paragraph_uses() -> None:
-    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.note.paragraph).
+    # The paragraph joins findings with semicolons and puts them in parentheses (notegen.note.workup_prose).
     for cause in PACK.spec.causes:
         for item in (*cause.evidence.supporting, *cause.evidence.opposing):
             assert not set(item.says) & set(";:()"), (cause.id, item.id, item.says)

@@ -247,7 +247,7 @@ def test_several_html_notes_need_a_folder(tmp_path: Path) -> None:
     result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--format", "html"])
     assert result.exit_code == 2
     assert result.stdout == ""
-    assert "several HTML notes need --out FOLDER" in result.stderr
+    assert "several HTML notes need --output-folder FOLDER" in result.stderr
     out = tmp_path / "pages"
     result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--format", "html", "--out", str(out)])
     assert result.exit_code == 0, result.output
@@ -259,6 +259,6 @@ def test_output_file_is_refused_for_several_cases_not_ignored(tmp_path: Path) ->
     for arguments in ([str(GASTRIC), str(THIAZIDE)], ["--jsonl", "-"]):
         result = runner.invoke(app, ["draft", *arguments, "-o", str(target)], input=_case_line("bed 1") + "\n")
         assert result.exit_code == 2, result.output
-        assert "--output writes one note; for several cases give --out FOLDER" in result.stderr
+        assert "--output writes one note; for several cases give --output-folder FOLDER" in result.stderr
         assert result.stdout == ""
         assert not target.exists()

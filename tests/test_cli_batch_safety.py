@@ -194,7 +194,7 @@ def test_an_out_folder_holding_the_cases_takes_no_case_file_extension(tmp_path: 
     bed.write_text(text, encoding="utf-8")
     result = runner.invoke(app, ["draft", str(ward), "--out", str(ward), "--format", "json"])
     assert result.exit_code == 2
-    assert f"--out {ward} holds the input" in result.stderr
+    assert f"--output-folder {ward} holds the input" in result.stderr
     assert bed.read_text(encoding="utf-8") == text
     markdown = runner.invoke(app, ["draft", str(ward), "--out", str(ward)])  # .md notes cannot be case files
     assert markdown.exit_code == 0 and (ward / "bed01.md").is_file()

@@ -59,9 +59,7 @@ def test_the_plain_reading_matches_typer(argv: list[str], capsys: pytest.Capture
         ["draft", SAMPLE, "-fjson"],  # attached short value: typer's to read
         ["draft", SAMPLE, "--format", "xml"],
         ["draft", SAMPLE, "--format", "text", "--format", "json"],
-        ["draft", SAMPLE, "--width", "20"],
         ["draft", SAMPLE, "--width", "80.0"],
-        ["draft", SAMPLE, "--window-hours", "0.1"],
         ["draft", SAMPLE, "--window-hours", "1e3"],
         ["draft", SAMPLE, "--output"],
         ["draft", SAMPLE, "--output", "--brief"],
@@ -124,3 +122,14 @@ def test_the_command_in_its_own_process_prints_what_typer_would(argv: list[str])
     through_typer = runner.invoke(app, argv)
     assert result.stdout == through_typer.stdout
     assert result.stderr == through_typer.stderr + f"{through_typer.exit_code} True\n"
+
+
+def test_an_out_of_range_number_is_refused_alike_by_both_parsers() -> None:
+    # the range is checked once, in the command's body, so the plain parser takes these forms
+    for argv, message in (
+        (["draft", SAMPLE, "--width", "20"], "--width 20: give a line width from 30 to 400"),
+        (["draft", SAMPLE, "--window-hours", "0.1"], "--window-hours 0.1: give at least 0.5 hours"),
+    ):
+        assert _plain_draft_arguments(argv) is not None
+        result = CliRunner().invoke(app, argv)
+        assert result.exit_code == 2 and message in result.stderr

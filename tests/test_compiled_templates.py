@@ -76,7 +76,7 @@ def test_every_sample_renders_the_same_from_compiled_templates(
 
 def _failing_contexts(drafter: Drafter) -> dict[str, dict[str, Any]]:
     context = note_context(drafter.assess(read_case(str(SAMPLES[0]))), DraftOptions(), with_assessment=False)
-    missing = {k: v for k, v in context.items() if k != "paragraph"}  # an undefined name in note.md.j2
+    missing = {k: v for k, v in context.items() if k != "chart_paragraph"}  # an undefined name in note.md.j2
     printed_none = {**context, "management": [None]}  # a None printed inside parts/management.md.j2
     return {"undefined": missing, "none": printed_none}
 
@@ -119,7 +119,8 @@ def test_an_edited_template_falls_back_to_the_sources(compiled: Path, tmp_path: 
     assert compiled_loader(sources, tmp_path / "compiled") is None
     env = shipped_environment(sources, tmp_path / "compiled")
     assert isinstance(env.loader, jinja2.FileSystemLoader)
-    assert "Edited after the build." in render_template(env, "parts/disclaimer_line.md.j2", {})
+    context = {"disclaimer": "Draft.", "cautions": []}
+    assert "Edited after the build." in render_template(env, "parts/disclaimer_line.md.j2", context)
     part.unlink()  # a template of the manifest that is gone
     assert compiled_loader(sources, tmp_path / "compiled") is None
 

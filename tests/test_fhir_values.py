@@ -10,7 +10,7 @@ import pytest
 from notegen.case.trend import TrendPoint, TrendSeries
 from notegen.errors import InputError
 from notegen.intake.fhir import read_fhir
-from notegen.note.writer import _trend_row
+from notegen.note.worksheet import trend_row
 
 
 def _observation(quantity: dict[str, Any], **extra: Any) -> dict[str, Any]:
@@ -48,4 +48,4 @@ def test_trend_times_from_different_offsets_show_their_offsets() -> None:
         TrendPoint(taken_at=datetime(2026, 3, 14, 23, 30, tzinfo=east), value=3.1),
         TrendPoint(taken_at=datetime(2026, 3, 14, 22, 0, tzinfo=UTC), value=3.4),
     ))
-    assert _trend_row(series)["text"] == "3.1 (2026-03-14 23:30 +02:00) \u2192 3.4 (22:00 UTC) mmol/L"
+    assert trend_row(series)["text"] == "3.1 (2026-03-14 23:30 +02:00) \u2192 3.4 (22:00 UTC) mmol/L"

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from notegen.case.trend import build_trend
 from notegen.case.validation import validate_case
-from notegen.pipeline import Drafter
+from notegen.pipeline import Drafter, DraftOptions
 
 SERIAL = {
     "units": "conventional",
@@ -18,7 +18,7 @@ SERIAL = {
 
 def test_an_earlier_venous_gas_is_labelled_venous_beside_a_newer_arterial_one() -> None:
     # Before: every gas took the newest gas's sample: the venous PCO2 52 was shown as "PaCO2".
-    note = Drafter().draft(validate_case(SERIAL))
+    note = Drafter().draft(validate_case(SERIAL), DraftOptions(worksheet=True))  # the values table
     assert "| PvCO2 | 52 mmHg |" in note
     assert "| PvO2 | 38 mmHg |" in note
     assert "| PaCO2 | 45 mmHg |" in note

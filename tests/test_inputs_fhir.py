@@ -78,9 +78,10 @@ def test_full_bundle_gives_the_hand_written_case() -> None:
     assert parsed.provenance["gas[1].ph"] == "FHIR Observation/obs-aph"
     assert "latest observation" in parsed.provenance["patient.age"]
     assert parsed.unused == [
-        "FHIR Observation/obs-hgb: LOINC 718-7 (Hemoglobin [Mass/volume] in Blood) is not a code notegen uses",
+        "FHIR Observation/obs-hgb: LOINC 718-7 (Hemoglobin [Mass/volume] in Blood) is not read for an acid-base "
+        "assessment",
         "FHIR Observation/obs-k-old: status 'cancelled' is not a usable result",
-        "FHIR Condition/cond-1 (entry[23]): a Condition is not a resource notegen reads",
+        "FHIR Condition/cond-1: a Condition is not read for an acid-base assessment",
         "FHIR MedicationRequest/mr-2: Furosemide is already listed from MedicationStatement/ms-1",
     ]
 
@@ -150,7 +151,7 @@ def test_mixed_up_unit_is_passed_on_for_validation_to_name() -> None:
         (observation("2078-4", 10, "mmol/L", valueQuantity={"value": 10, "comparator": "<=", "unit": "mmol/L"}),
          "comparator '<=' cannot be held"),
         (observation("2823-3", 3.0, "mmol/L", effectiveDateTime="2024-03"), "is only partial"),
-        (observation("29463-7", 160, "[lb_av]"), "notegen takes it in kg only"),
+        (observation("29463-7", 160, "[lb_av]"), "this draft takes it in kg only"),
         ({"resourceType": "Observation", "id": "x", "status": "final",
           "code": {"coding": [{"system": "http://snomed.info/sct", "code": "123"}]}}, "has no LOINC code"),
     ],

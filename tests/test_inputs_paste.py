@@ -46,7 +46,7 @@ def test_headed_blocks_give_the_hand_written_case() -> None:
     assert parsed.provenance["chem.k"] == "paste line 3"
     assert parsed.provenance["urine.cl"] == "paste line 17"
     assert parsed.unused == [
-        "line 8: 'Hemoglobin 10.2 g/dL' is not an analyte notegen knows (rules/vocabulary/analytes.yaml)"
+        "line 8: 'Hemoglobin 10.2 g/dL' is not an analyte this draft reads"
     ]
 
 
@@ -153,7 +153,7 @@ def test_garbage_paste_is_a_clear_error_naming_the_lines() -> None:
         parse_paste(read("paste_garbage.txt"), source="labs.txt")
     message = str(caught.value)
     assert message.startswith("labs.txt: no lab value notegen can use was found")
-    assert "line 2: 'Hemoglobin 10.2' is not an analyte notegen knows" in message
+    assert "line 2: 'Hemoglobin 10.2' is not an analyte this draft reads" in message
 
 
 def test_empty_paste() -> None:

@@ -1,6 +1,6 @@
 """No number in a drafted note is invented, and no value given is lost (checked on the Markdown).
 
-Nothing lost: every value of the case, as reported, appears in the note (the values table), to
+Nothing lost: every value of the case, as reported, appears in the note with its worksheet (the values table), to
 the decimals reported (three at most: the note prints no more).
 
 Every number in the note must be one of these, at the precision the note shows it (a figure
@@ -156,19 +156,19 @@ def _check(case: Case, options: DraftOptions) -> list[str]:
 @pytest.mark.parametrize("explain", [False, True], ids=["note", "explain"])
 @pytest.mark.parametrize("sample", [*SAMPLES, ROOT / "tests/fixtures/inputs/bundle_full.json"], ids=lambda p: p.stem)
 def test_sample_notes_hold_no_invented_number_and_lose_no_value(sample: Path, explain: bool) -> None:
-    assert _check(read_case(str(sample)), DraftOptions(explain=explain)) == []
+    assert _check(read_case(str(sample)), DraftOptions(explain=explain, worksheet=True)) == []
 
 
 @_profile(150)
 @given(data=case_file())
 def test_generated_notes_hold_no_invented_number_and_lose_no_value(data: dict[str, Any]) -> None:
     case = validate_case(data, filename="generated.yaml")
-    assert _check(case, DraftOptions(explain=True)) == []
+    assert _check(case, DraftOptions(explain=True, worksheet=True)) == []
 
 
 def test_the_check_finds_a_number_that_was_not_given_or_computed() -> None:
     case = read_case(str(ROOT / "samples/gastric_suction.yaml"))
-    note = DRAFTER.draft(case, DraftOptions())
+    note = DRAFTER.draft(case, DraftOptions(worksheet=True))
     allowed = allowed_numbers(DRAFTER.assess(case))
     assert invented_numbers(note, allowed) == []
     forged = note.replace("Anion gap", "Anion gap 97.3 mmol/L, earlier", 1)
@@ -188,5 +188,5 @@ def test_a_value_is_rounded_the_same_way_in_the_reading_and_in_the_tables() -> N
     assessment = DRAFTER.assess(case)
     assert assessment.calculations["anion_gap_corrected"].value == 7.25
     assert any("7.3 mmol/L corrected for albumin" in step for step in assessment.acid_base.findings)
-    note = DRAFTER.draft(case, DraftOptions(explain=True))
+    note = DRAFTER.draft(case, DraftOptions(explain=True, worksheet=True))
     assert "7.2 mmol/L" not in note and "7.3 mmol/L" in note

@@ -103,22 +103,33 @@ def draft(assessment: Assessment, **options: Any) -> str:
 
 # Layout ----------------------------------------------------------------------------------------
 
-SECTIONS = [
+CHART_SECTIONS = [
     "# Acid-base assessment\n\nCase: demo A: thiazide and vomiting\n\n",
     "The arterial gas (pH 7.50",
     "**Also flagged:**",
-    "## Values used",
-    "## Calculations",
-    "## Causes weighed",
-    "## How it arose and what sustains it",
     "## Tests that would help",
     "## Management to consider",
     "## Cautions",
 ]
+WORKSHEET_SECTIONS = [
+    "# Worksheet",
+    "## Values used",
+    "## Calculations",
+    "## Causes weighed",
+    "## How it arose and what sustains it",
+]
+SECTIONS = CHART_SECTIONS + WORKSHEET_SECTIONS
+
+
+def test_the_chart_note_leaves_the_working_to_the_worksheet() -> None:
+    note = draft(worked_up(sample("thiazide_and_vomiting")))
+    assert all(section in note for section in CHART_SECTIONS)
+    assert not any(section in note for section in WORKSHEET_SECTIONS)
+    assert "Source:" not in note and "Formula:" not in note
 
 
 def test_sections_come_in_order() -> None:
-    note = draft(worked_up(sample("thiazide_and_vomiting")))
+    note = draft(worked_up(sample("thiazide_and_vomiting")), worksheet=True)
     positions = [note.find(section) for section in SECTIONS]
     assert -1 not in positions, [s for s, p in zip(SECTIONS, positions, strict=True) if p < 0]
     assert positions == sorted(positions)
@@ -128,7 +139,7 @@ def test_sections_come_in_order() -> None:
 
 
 def test_the_work_up_sections_carry_the_findings() -> None:
-    note = draft(worked_up(sample("thiazide_and_vomiting")))
+    note = draft(worked_up(sample("thiazide_and_vomiting")), worksheet=True)
     assert "**Chloride class:** chloride-responsive" in note
     assert "**Chloride class:** chloride-responsive.\n" in note
     assert "### Gastric acid loss: likely" in note
@@ -138,11 +149,9 @@ def test_the_work_up_sections_carry_the_findings() -> None:
         "Source: common practice." in note
     )
     assert "Not settled" not in note
-    assert "- Not settled: whether vomiting continues" in draft(
-        worked_up(sample("thiazide_and_vomiting")), explain=True
-    )
     assert "- **Hypokalemia:** Potassium 2.8 mmol/L. Source: common practice." in note
-    assert "- **Repeat serum magnesium:** low magnesium blocks repletion" in note
+    # the test's reason is the one clinical sentence of rules/vocabulary/next_tests.yaml, not the walk's words
+    assert "- **Repeat serum magnesium:** A low magnesium keeps potassium repletion from succeeding" in note
 
 
 def test_an_undetermined_factor_says_only_what_is_missing() -> None:
@@ -159,7 +168,7 @@ def test_an_undetermined_factor_says_only_what_is_missing() -> None:
             )
         }
     )
-    note = draft(assessment)
+    note = draft(assessment, worksheet=True)
     assert (
         "- **Mineralocorticoid activity:** not determined from these values (aldosterone not given). "
         "Source: common practice."
@@ -168,29 +177,29 @@ def test_an_undetermined_factor_says_only_what_is_missing() -> None:
     assert "cannot tell" not in note
 
 
-def test_a_test_reason_is_shortened_for_the_note_and_whole_in_json() -> None:
+def test_a_test_reason_is_one_clinical_sentence_and_whole_in_json() -> None:
     why = (
         "Best sent before saline. Urine chloride not given; the result would decide: chloride class (now unknown; "
-        "could be responsive or resistant); gastric acid loss (now unlikely; could become possible); diuretic use "
-        "(now possible; could become likely or unlikely)."
+        "could be responsive or resistant); chloride-resistant subtype (now waiting on the chloride class; could "
+        "be not resistant or normotensive, subtype still open); diuretic use (now possible; could become likely)."
     )
     test = SuggestedTest(test="urine_chloride", label="spot urine chloride", why=why)
     assessment = worked_up(sample("thiazide_and_vomiting")).model_copy(update={"next_tests": (test,)})
+    note = draft(assessment)
     assert (
-        "- **Spot urine chloride:** Best sent before saline. It would settle the chloride class (now unknown; could "
-        "be responsive or resistant) and bear on gastric acid loss and diuretic use.\n"
-    ) in draft(assessment)
+        "- **Spot urine chloride:** Best sent before saline and after any diuretic has worn off; a low value makes "
+        "the alkalosis chloride-responsive, a high one points to an active diuretic, mineralocorticoid excess or a "
+        "tubulopathy.\n"
+    ) in note
+    for internal in ("now waiting", "could be", "could become", "subtype still open", "(now "):
+        assert internal not in note
     assert json.loads(draft(assessment, output_format="json"))["next_tests"][0]["why"] == why
-    only_causes = why.replace("chloride class (now unknown; could be responsive or resistant); ", "")
-    single = assessment.model_copy(update={"next_tests": (test.model_copy(update={"why": only_causes}),)})
-    assert (
-        "- **Spot urine chloride:** Best sent before saline. It would bear on gastric acid loss and diuretic use.\n"
-        in (draft(single))
-    )
+    unknown = assessment.model_copy(update={"next_tests": (test.model_copy(update={"test": "a_service_test"}),)})
+    assert "- **Spot urine chloride**\n" in draft(unknown)  # a service's own test: its label alone
 
 
 def test_unlikely_causes_give_their_sources_plainly() -> None:
-    note = draft(sample("gastric_suction"))
+    note = draft(sample("gastric_suction"), worksheet=True)
     unlikely = note[note.index("### Unlikely") : note.index("## How it arose")]
     assert "((" not in unlikely and "))" not in unlikely
     assert (
@@ -200,11 +209,11 @@ def test_unlikely_causes_give_their_sources_plainly() -> None:
 
 
 def test_data_table_shows_units_as_reported_and_converted() -> None:
-    note = draft(sample("venous_si_units"))
+    note = draft(sample("venous_si_units"), worksheet=True)
     assert "| PvCO2 | 6.1 kPa | 45.8 mmHg | case file |" in note
     assert "| Creatinine | 70 µmol/L | 0.792 mg/dL | case file |" in note
     assert "| BUN | 6.8 mmol/L urea | 19 mg/dL | case file |" in note
-    gastric = draft(sample("gastric_suction"))
+    gastric = draft(sample("gastric_suction"), worksheet=True)
     assert "| Urine chloride | <10 mmol/L | unchanged | case file |" in gastric
 
 
@@ -212,14 +221,14 @@ def test_unrecognised_input_is_listed() -> None:
     assessment = assess(
         {"gas": {"ph": 7.5, "pco2": 48, "hco3": 36}, "context": {"meds": ["zzfake"], "findings": ["odd"]}}
     )
-    note = draft(assessment)
+    note = draft(assessment, worksheet=True)
     assert "zzfake (not in the vocabulary, not reasoned with)" in note
-    assert "**Not used or missing:**" in note
-    assert "Finding 'odd' is not in notegen's vocabulary" in note
+    assert "**Given but not used:**" in note
+    assert "Finding 'odd' is not recognised" in note
 
 
 def test_calculations_show_formula_inputs_result_and_source() -> None:
-    note = draft(sample("thiazide_and_vomiting"))
+    note = draft(sample("thiazide_and_vomiting"), worksheet=True)
     assert (
         "- **Anion gap: 8 mmol/L**\\\n  Formula: Na - (Cl + HCO3)\\\n"
         "  Inputs: Na 131 mmol/L, Cl 84 mmol/L, HCO3 (panel total CO2) 39 mmol/L\\\n"
@@ -263,13 +272,13 @@ def test_brief_keeps_what_was_given_but_not_used() -> None:
     )
     brief = draft(assessment, brief=True)
     blocks = brief.strip("\n").split("\n\n")
-    at = blocks.index("**About the input:**")
+    at = blocks.index("**Given but not used:**")
     assert blocks[at + 1] == (
-        "- Medication 'an unlisted tablet' is not in notegen's vocabulary; it was kept but not reasoned with"
+        "- Medication 'an unlisted tablet' is not recognised; it is listed but not reasoned with"
     )
     assert blocks[at + 2].startswith("*Draft from the values given")
     plain = assess({"gas": {"sample": "arterial", "ph": 7.4, "pco2": 40, "hco3": 24}})
-    assert "About the input" not in draft(plain, brief=True)
+    assert "Given but not used" not in draft(plain, brief=True)
 
 
 def test_explain_adds_the_reasoning() -> None:
@@ -287,11 +296,11 @@ def test_explain_adds_the_reasoning() -> None:
 
 def test_differential_says_why_it_is_absent() -> None:
     assert "No metabolic alkalosis on these values, so no alkalosis differential applies." in draft(
-        sample("chronic_co2_retention")
+        sample("chronic_co2_retention"), worksheet=True
     )
     no_walk = sample("gastric_suction").model_copy(update={"chloride_class": None, "differential": ()})
-    assert "have not been weighed in this draft" in draft(no_walk)
-    assert "### Gastric acid loss: likely" in draft(sample("gastric_suction"))
+    assert "have not been weighed in this draft" in draft(no_walk, worksheet=True)
+    assert "### Gastric acid loss: likely" in draft(sample("gastric_suction"), worksheet=True)
 
 
 # Formats ---------------------------------------------------------------------------------------
@@ -302,13 +311,13 @@ def test_text_is_plain_and_wrapped() -> None:
     assert "**" not in text and "##" not in text and "\\" not in text
     assert text.startswith("ACID-BASE ASSESSMENT\n\nCase: demo A: thiazide and vomiting\n")
     assert all(len(line) <= 60 or " " not in line.strip() for line in text.splitlines())
-    ascii_text = draft(sample("venous_si_units"), output_format="text", ascii_only=True)
+    ascii_text = draft(sample("venous_si_units"), output_format="text", ascii_only=True, worksheet=True)
     assert ascii_text.isascii() and "70 umol/L" in ascii_text
 
 
 def test_html_is_a_page_with_the_banner_framed() -> None:
     assessment = assess({"case": "bed 4", "gas": {"sample": "arterial", "ph": 7.62, "pco2": 50, "hco3": 50}})
-    page = draft(assessment, output_format="html")
+    page = draft(assessment, output_format="html", worksheet=True)
     assert page.startswith("<!DOCTYPE html>") and page.endswith("</html>\n")
     assert "<title>Acid-base assessment — bed 4</title>" in page
     assert '<blockquote class="critical-banner">' in page
@@ -402,8 +411,9 @@ def test_service_template_without_the_disclaimer_gets_it_appended(tmp_path: Path
     note = render_note(sample("gastric_suction"), DraftOptions(), template=template)
     assert note.startswith("The arterial gas (pH 7.49")
     assert note.endswith(
-        "\n\n*Draft from the values given, for the responsible clinician to check against the chart and sign. "
-        "Reference ranges vary by laboratory; adults only; local protocols take precedence.*\n"
+        "\n\n*Draft from the values given, for the responsible clinician to check against the chart, edit and sign. "
+        "Reference ranges vary by laboratory (this draft used pH 7.35–7.45 and an anion gap of 8–16 mmol/L); "
+        "adults only; local protocols take precedence.*\n"
     )
 
 

@@ -41,7 +41,7 @@ def test_a_single_result_makes_no_trend() -> None:
 
 
 def test_note_shows_the_trend_with_times() -> None:
-    note = Drafter().draft(validate_case(SERIAL), DraftOptions())
+    note = Drafter().draft(validate_case(SERIAL), DraftOptions(worksheet=True))
     assert "## Trend\n\n- **pH:** 7.45 (2026-03-10 07:00) \u2192 7.49 (2026-03-11 07:30)\n" in note
     assert "- **Urine chloride:** 12 (2026-03-10 18:00) \u2192 74 (2026-03-11 08:00) mmol/L\n" in note
 

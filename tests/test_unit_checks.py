@@ -21,7 +21,7 @@ from notegen.errors import CaseValueError
 from notegen.intake.paste import parse_paste
 from notegen.intake.read import read_case
 from notegen.knowledge import vocabulary as vocab
-from notegen.pipeline import Drafter
+from notegen.pipeline import Drafter, DraftOptions
 
 
 def _problem(data: Any) -> str:
@@ -208,12 +208,15 @@ def test_every_value_in_the_note_is_its_input_or_a_named_conversion(
     event("drafted")
     assert unit != "implausible"  # an implausible value is never drafted
     (measurement,) = case.measurements
-    note = Drafter().draft(case)
+    note = Drafter().draft(case, DraftOptions(worksheet=True))  # the values table is in the worksheet
     rows = [line for line in note.splitlines() if line.startswith("| ") and "|" in line[2:]]
-    (row,) = [r for r in rows if r.split("|")[2].strip().startswith(format_value(number))]
+    # the value as written (up to 6 decimals), or rounded by the one writer of numbers when written longer
+    as_shown = {format_value(number), repr(number)}
+    (row,) = [r for r in rows if r.split("|")[2].strip().split(" ")[0] in as_shown]
     reported, converted = (cell.strip() for cell in row.split("|")[2:4])
     # as reported: the number given, in the unit given (or the declared system's), nothing else
-    assert reported == format_value(number, measurement.reported_unit)
+    shown_number, _, shown_unit = reported.partition(" ")
+    assert shown_number in as_shown and shown_unit == (measurement.reported_unit or "")
     if unit is not None:
         assert u.normalise_unit(unit) == measurement.reported_unit
     # converted: unchanged, or the named factor of rules-independent unit arithmetic (units.py)

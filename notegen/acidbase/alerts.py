@@ -6,7 +6,7 @@ considerations, never doses.
 
 from __future__ import annotations
 
-from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words
+from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words, ph_text
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
 from notegen.acidbase.critical_values import calcium_alerts, sodium_glucose_alerts
@@ -23,8 +23,10 @@ def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings, venous: 
         return []
     limits = (s.alkalemia_critical.value, s.alkalemia_warning.value, s.acidemia_critical.value,
               s.acidemia_warning.value)
-    # enough decimals for the comparison to hold as printed: 7.5999 is not shown as 7.60 beside "marked"
-    shown = format_number(ph, decimals_beside(ph, limits, 2))
+    # as reported (7.485 stays 7.485), and with enough decimals for the comparison to hold as printed:
+    # 7.5999 is not shown as 7.60 beside "marked"
+    reported = len(ph_text(ph).partition(".")[2])
+    shown = format_number(ph, max(reported, decimals_beside(ph, limits, 2)))
     shown += (" (calculated)" if calculated else "") + (" (venous)" if venous else "")
     if ph >= s.alkalemia_critical.value:
         return _alert(
@@ -74,7 +76,8 @@ def _potassium_alerts(k: float | None, s: AcidBaseSettings, *, magnesium_measure
         return _alert(
             "hypokalemia", "warning",
             f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:",
-            f"hypokalemia; consider {join_words(('repletion', *magnesium))}.",
+            # magnesium is named once, by the considerations or the suggested tests, not here as well
+            "hypokalemia; consider repletion.",
         )  # fmt: skip
     if k >= s.potassium_high_critical.value:
         return _alert(
@@ -121,7 +124,7 @@ def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
         return _alert(
             "hypomagnesemia", "warning",
             f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}:",
-            "marked hypomagnesemia; potassium is hard to replete until magnesium is restored.",
+            "severe hypomagnesemia; potassium is hard to replete until magnesium is restored.",
         )  # fmt: skip
     if mg < s.magnesium_low.value:
         return _alert(

@@ -13,7 +13,7 @@ from collections.abc import Mapping
 
 from pydantic import BaseModel, ConfigDict
 
-from notegen._format import format_value
+from notegen._format import format_range, format_value
 from notegen.acidbase.formulas import (
     CREATININE_MOLAR_MASS,
     EGFR_MIN_AGE,
@@ -214,8 +214,8 @@ def _gap_calculations(case: Case, s: AcidBaseSettings, out: dict[str, Calculatio
             "Na - (Cl + HCO3)",
             inputs,
             s.anion_gap_high.source,
-            note=f"{hco3_note}; reference {format_value(s.anion_gap_low.value)}-"
-            f"{format_value(s.anion_gap_high.value, 'mmol/L')} (analyser-dependent)",
+            note=f"{hco3_note}; reference {format_range(s.anion_gap_low.value, s.anion_gap_high.value, 'mmol/L')} "
+            "(analyser-dependent)",
         )
         gap_used = gap
         if usable(chem.albumin):

@@ -36,13 +36,26 @@ Certainty = Literal["established", "possible"]
 GapBicarbonate = Literal["gas bicarbonate", "panel total CO2"]
 # Whether the panel total CO2 is the one the gas predicts (HCO3 + dissolved CO2, within tolerance).
 GasPanelAgreement = Literal["agree", "disagree", "not_checked"]
-# What the delta ratio says (Rastegar, JASN 2007), as a code; `delta_ratio_interpretation` words it.
-DeltaRatioVerdict = Literal[
-    "normal_gap_acidosis_too",  # below 0.4
-    "mixed_possible",  # 0.4-1
-    "high_gap_alone",  # 1-2
-    "metabolic_alkalosis_too",  # above 2, or a high gap without a fall in bicarbonate
-    "metabolic_alkalosis_or_respiratory_compensation",  # the same, beside a respiratory acidosis
+# Why the primary was chosen (or not), as a code the paragraph writer chooses its words from.
+PrimaryBasis = Literal[
+    "no_gas",  # no pH and PaCO2
+    "no_gas_high_bicarbonate",  # ... and a high total CO2: alkalosis or compensation, only a gas can tell
+    "no_gas_low_bicarbonate",  # ... and a low total CO2: acidosis or compensation, only a gas can tell
+    "all_normal",  # pH, PaCO2 and bicarbonate within range
+    "both_push_same_way",  # both abnormal toward the pH; the larger push is primary
+    "one_value_explains",  # one abnormal value explains the pH
+    "larger_push",  # the pH is out of range, PaCO2 and bicarbonate just inside theirs
+    "only_abnormal_value",  # the pH is normal and one value is abnormal
+    "offsetting_mixed",  # pH normal, PaCO2 and bicarbonate abnormal in opposite directions
+    "values_disagree",  # the pH does not fit the PaCO2 and bicarbonate
+    "gap_offset",  # all within range but the anion gap shows an offset acidosis
+]
+# What the delta ratio says.
+DeltaRatioMeaning = Literal[
+    "normal_gap_acidosis_too",
+    "mixed_gap_possible",
+    "high_gap_alone",
+    "metabolic_alkalosis_too",  # bicarbonate has not fallen, or the ratio is high
 ]
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
@@ -92,6 +105,7 @@ class AcidBaseReading(BaseModel):
 
     primary: Primary
     primary_reason: str
+    primary_basis: PrimaryBasis | None = None
     disorders: tuple[Disorder, ...]
     possible_disorders: tuple[Disorder, ...]
     disorder_basis: tuple[DisorderBasis, ...]
@@ -111,7 +125,12 @@ class AcidBaseReading(BaseModel):
     delta_gap: float | None
     delta_ratio: float | None
     delta_ratio_interpretation: str | None
-    delta_ratio_verdict: DeltaRatioVerdict | None = None
+    delta_ratio_meaning: DeltaRatioMeaning | None = None
+    # False when the bicarbonate fell less than `delta_ratio_min_fall`: the ratio's number is not read
+    delta_ratio_interpretable: bool = True
+    bicarbonate_fall: float | None = None  # normal bicarbonate minus the one the gap used, when the gap is high
+    # True when a respiratory acidosis is present, so a high ratio may be its compensation instead
+    delta_ratio_allows_compensation: bool = False
     metabolic_acidosis_kind: AcidosisKind | None
 
     missing: tuple[str, ...]

@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 
-from notegen._format import format_value, round_half_up
+from notegen._format import format_number, format_range, format_value, ph_text, round_half_up
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.alerts import severity_alerts
 from notegen.acidbase.calculations import Calculation, compute_calculations, usable, usable_ph
@@ -39,7 +39,6 @@ from notegen.acidbase.steps import (
     metabolic_compensation,
     mm,
     mmol,
-    ph_text,
     read_anion_gap,
     respiratory_compensation,
 )
@@ -65,7 +64,7 @@ def _gas_values(case: Case, w: ReadingDraft) -> GasValues:
         w.findings.append(f"The gas gave no bicarbonate; {mmol(hco3)} was calculated from pH and PaCO2.")
     if ph is None and pco2 is not None and hco3 is not None:
         ph, ph_source = henderson_hasselbalch_ph(pco2, hco3, pk, sol), "calculated"
-        w.findings.append(f"The gas gave no pH; {ph_text(ph)} was calculated from PaCO2 and bicarbonate.")
+        w.findings.append(f"The gas gave no pH; {format_number(ph, 2)} was calculated from PaCO2 and bicarbonate.")
     if hco3 is None and usable(case.chem.tco2):
         hco3, hco3_source = case.chem.tco2, "panel"
         w.findings.append(
@@ -96,7 +95,7 @@ def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency
                 level="warning",
                 message=(
                     f"The gas values do not agree: PaCO2 {mm(gas.pco2)} and bicarbonate "
-                    f"{mmol(gas.hco3)} give a pH of {ph_text(calc)} by Henderson-Hasselbalch, against "
+                    f"{mmol(gas.hco3)} give a pH of {format_number(calc, 2)} by Henderson-Hasselbalch, against "
                     f"{ph_text(gas.ph)} reported (tolerance {format_value(tol)}). Recheck the values, "
                     "or repeat the gas, before trusting this reading."
                 ),
@@ -108,6 +107,7 @@ def _consistency(case: Case, g: GasValues, w: ReadingDraft) -> tuple[Consistency
         )
     else:
         w.findings.append(
+            # the calculated pH as the calculations hold it (3 decimals), never rounded a second time
             f"The gas is internally consistent: PaCO2 and bicarbonate give pH {ph_text(calc)} "
             f"(reported {ph_text(gas.ph)}, tolerance {format_value(tol)})."
         )
@@ -140,7 +140,7 @@ def _ph_status(ph: float | None, w: ReadingDraft) -> PhStatus | None:
         return None
     status: PhStatus = "acidemia" if ph < low else "alkalemia" if ph > high else "normal"
     word = {"acidemia": "acidemic", "alkalemia": "alkalemic", "normal": "within range"}[status]
-    w.findings.append(f"pH {ph_text(ph)} is {word} (reference {ph_text(low)}-{ph_text(high)}).")
+    w.findings.append(f"pH {ph_text(ph)} is {word} (reference {format_range(low, high, digits=2, fixed=True)}).")
     if w.venous and min(abs(ph - low), abs(ph - high)) <= VENOUS_PH_OFFSET:
         w.findings.append(
             "This venous pH lies within 0.03 of a bound; the arterial pH runs about 0.03 "
@@ -162,12 +162,15 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     if g.ph is None or g.pco2 is None or g.hco3 is None:
         w.missing.append("Primary disorder: needs a blood gas with pH and PaCO2 (and a bicarbonate).")
         reason = "no blood gas with pH and PaCO2, so the primary disorder cannot be read"
+        w.primary_basis = "no_gas"
         if g.hco3 is not None and g.hco3 > s.hco3_high.value:
+            w.primary_basis = "no_gas_high_bicarbonate"
             reason += (
                 "; the high total CO2 fits a metabolic alkalosis or the compensation of a respiratory "
                 "acidosis, which only a gas can tell apart"
             )
         elif g.hco3 is not None and g.hco3 < s.hco3_low.value:
+            w.primary_basis = "no_gas_low_bicarbonate"
             reason += (
                 "; the low total CO2 fits a metabolic acidosis or the compensation of a respiratory "
                 "alkalosis, which only a gas can tell apart"
@@ -191,6 +194,7 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     toward = [(n, abs(v), a) for n, v, a in shares if v * direction > 0]
     abnormal_toward = [t for t in toward if t[2]]
     if status == "normal" and not met_abnormal and not resp_abnormal:
+        w.primary_basis = "all_normal"
         return "none", "pH, PaCO2 and bicarbonate are all within their reference ranges"
     if abnormal_toward:
         name, _, _ = max(abnormal_toward, key=lambda t: t[1])
@@ -206,9 +210,11 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
             )
         else:
             reason = f"{_driver(name, pco2, hco3)} accounts for the {status}"
+        w.primary_basis = "both_push_same_way" if len(abnormal_toward) == 2 else "one_value_explains"
         return name, reason
     if status != "normal" and toward:
         name, _, _ = max(toward, key=lambda t: t[1])
+        w.primary_basis = "larger_push"
         return name, (
             f"the pH is out of range while PaCO2 and bicarbonate sit just inside theirs; the "
             f"{WORDS[name]} is the larger push"
@@ -216,6 +222,7 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     abnormal = [(n, a) for n, _, a in shares if a]
     if status == "normal" and len(abnormal) == 1:
         name = abnormal[0][0]
+        w.primary_basis = "only_abnormal_value"
         return name, "the pH is within range and only this value is abnormal"
     if status == "normal" and len(abnormal) == 2 and metabolic * respiratory < 0:
         w.add(
@@ -225,10 +232,12 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
         w.add(
             resp_name, f"PaCO2 out of range while the pH is normal, offset by an opposing {WORDS[met_name]}"
         )
+        w.primary_basis = "offsetting_mixed"
         return "undetermined", (
             "the pH sits at the mid-point with both PaCO2 and bicarbonate abnormal in "
             "opposite directions: a mixed disorder whose first process cannot be told"
         )
+    w.primary_basis = "values_disagree"
     return "undetermined", (
         "the pH does not fit the direction of the PaCO2 and bicarbonate; check the gas values"
     )
@@ -293,6 +302,7 @@ def read_acid_base(
             "pH, PaCO2 and bicarbonate are within range, but the anion gap shows a metabolic acidosis "
             "that another process offsets"
         )
+        w.primary_basis = "gap_offset"
         w.bases[w.bases.index(established[0])] = DisorderBasis(
             disorder=primary, certainty="established", basis=reason
         )
@@ -326,6 +336,7 @@ def read_acid_base(
         ph_bounds=(s.ph_low.value, s.ph_high.value),
         primary=primary,
         primary_reason=reason,
+        primary_basis=w.primary_basis,
         disorders=tuple(b.disorder for b in ordered if b.certainty == "established"),
         possible_disorders=tuple(b.disorder for b in ordered if b.certainty == "possible"),
         disorder_basis=tuple(ordered),
@@ -342,8 +353,11 @@ def read_acid_base(
         delta_gap=_r(gap.delta_gap, 2),
         delta_ratio=_r(gap.delta_ratio, 2),
         delta_ratio_interpretation=gap.interpretation,
-        delta_ratio_verdict=gap.verdict,
         gas_panel_agreement=("disagree" if w.gas_panel_disagree else "agree" if w.gas_panel_checked else "not_checked"),
+        delta_ratio_meaning=gap.meaning,
+        delta_ratio_interpretable=gap.interpretable,
+        bicarbonate_fall=_r(gap.bicarbonate_fall, 2),
+        delta_ratio_allows_compensation=gap.allows_compensation,
         metabolic_acidosis_kind=kind,
         missing=tuple(w.missing),
         alerts=tuple(w.alerts),

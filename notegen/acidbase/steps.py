@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
-from notegen._format import format_value, round_half_up
+from notegen._format import format_number, format_range, format_value, trimmed_number
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.calculations import Calculation, gap_bicarbonate, usable
 from notegen.acidbase.formulas import (
@@ -30,12 +30,13 @@ from notegen.acidbase.model import (
     Chronicity,
     CompensationEdge,
     CompensationStatus,
-    DeltaRatioVerdict,
+    DeltaRatioMeaning,
     Disorder,
     DisorderBasis,
     ExpectedRange,
     GapStatus,
     PhStatus,
+    PrimaryBasis,
     SampleKind,
     ValueSource,
 )
@@ -53,21 +54,17 @@ WORDS: dict[str, str] = {
 VENOUS_PH_OFFSET = 0.033
 
 
-# Figures in sentences round half away from zero, as the note's tables do (`round_half_up`).
+# Figures in sentences come from the one formatter (`notegen._format`), as the note's tables do.
 def mm(value: float) -> str:
-    return format_value(round_half_up(value, 1), "mmHg")
+    return f"{trimmed_number(value, 1)} mmHg"
 
 
 def mmol(value: float) -> str:
-    return format_value(round_half_up(value, 1), "mmol/L")
+    return f"{trimmed_number(value, 1)} mmol/L"
 
 
 def span(low: float, high: float, unit: str) -> str:
-    return f"{format_value(round_half_up(low, 1))}-{format_value(round_half_up(high, 1), unit)}"
-
-
-def ph_text(value: float) -> str:
-    return f"{round_half_up(value, 2):.2f}"
+    return format_range(low, high, unit)
 
 
 @dataclass
@@ -84,6 +81,7 @@ class ReadingDraft:
     missing: list[str] = field(default_factory=list)
     alerts: list[Alert] = field(default_factory=list)
     bases: list[DisorderBasis] = field(default_factory=list)
+    primary_basis: PrimaryBasis | None = None
 
     def add(self, disorder: Disorder, basis: str, certainty: Certainty = "established") -> None:
         for i, known in enumerate(self.bases):
@@ -310,7 +308,10 @@ class GapResult:
     delta_gap: float | None = None
     delta_ratio: float | None = None
     interpretation: str | None = None
-    verdict: DeltaRatioVerdict | None = None
+    meaning: DeltaRatioMeaning | None = None
+    interpretable: bool = True
+    bicarbonate_fall: float | None = None
+    allows_compensation: bool = False
     normal_gap_acidosis: bool = False
 
 
@@ -373,8 +374,9 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     out.delta_gap = done_delta.value if done_delta is not None else delta_gap(used, n_gap)
     lo, pure, hi = s.delta_ratio_low.value, s.delta_ratio_pure.value, s.delta_ratio_high.value
     resp_acidosis = w.has("respiratory_acidosis")
+    out.allows_compensation = resp_acidosis
     if hco3 >= n_hco3:
-        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
+        out.meaning = "metabolic_alkalosis_too"
         out.interpretation = (
             "bicarbonate has not fallen despite the high gap: a concurrent metabolic "
             "alkalosis" + (" or the compensation of the respiratory acidosis" if resp_acidosis else "")
@@ -388,28 +390,36 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     done_ratio = w.calcs.get("delta_ratio")
     out.delta_ratio = done_ratio.value if done_ratio is not None else delta_ratio(used, hco3, n_gap, n_hco3)
     r = out.delta_ratio
+    fall = n_hco3 - hco3
+    out.bicarbonate_fall = fall
+    # Over a fall of a mmol/L or two the ratio swings widely with rounding: the number is not read,
+    # though a gap rise far beyond the fall still counts (as when the bicarbonate has not fallen).
+    out.interpretable = fall >= s.delta_ratio_min_fall.value - EPS
     if r < lo:
-        out.verdict = "normal_gap_acidosis_too"
+        out.meaning = "normal_gap_acidosis_too"
         out.interpretation = "a normal-gap acidosis accompanies the high-gap acidosis"
         out.normal_gap_acidosis = True
     elif r < pure:
-        out.verdict = "mixed_possible"
+        out.meaning = "mixed_gap_possible"
         out.interpretation = "a mixed high-gap and normal-gap acidosis is possible"
     elif r <= hi:
-        out.verdict = "high_gap_alone"
+        out.meaning = "high_gap_alone"
         out.interpretation = "a high-gap acidosis alone"
     else:
-        out.verdict = "metabolic_alkalosis_or_respiratory_compensation" if resp_acidosis else "metabolic_alkalosis_too"
+        out.meaning = "metabolic_alkalosis_too"
         out.interpretation = "a concurrent metabolic alkalosis" + (
             " or the compensation of a respiratory acidosis" if resp_acidosis else ""
         )
-        _add_gap_alkalosis(w, f"delta ratio {round_half_up(r, 1):.1f}, above {format_value(hi)}")
+        _add_gap_alkalosis(w, f"delta ratio {format_number(r, 1)}, above {format_value(hi)}")
     w.findings.append(
-        f"Delta ratio {r:.1f} ((gap - {format_value(n_gap)}) / ({format_value(n_hco3)} - "
+        f"Delta ratio {format_number(r, 1)} ((gap - {format_value(n_gap)}) / ({format_value(n_hco3)} - "
         f"bicarbonate)): {out.interpretation} (Rastegar 2007)."
     )
-    if n_hco3 - hco3 < 2:
-        w.findings.append("The bicarbonate has fallen by under 2 mmol/L, so the delta ratio is unstable.")
+    if not out.interpretable:
+        w.findings.append(
+            f"The bicarbonate has fallen by only {mmol(fall)} (less than {mmol(s.delta_ratio_min_fall.value)}), "
+            "so the delta ratio itself is not interpretable."
+        )
     return out
 
 

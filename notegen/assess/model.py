@@ -55,3 +55,5 @@ class Assessment(FrozenModel):
     # The metabolic-acidosis work-up (rules/acidosis); None when there is no metabolic acidosis
     # with a known anion gap. The alkalosis work-up keeps the keys above.
     acidosis: AcidosisWorkup | None = None
+    disclaimer: str = ""  # the draft's one-line disclaimer, as every note format prints it
+    cautions: tuple[str, ...] = ()  # the cautions every note carries (reference ranges used, adults only...)

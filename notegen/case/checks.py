@@ -114,3 +114,22 @@ def _lab_aliases(section: str) -> dict[str, str]:
         if section in analyte.fields
         for name in analyte.names
     }
+
+
+def as_written(raw: Any) -> str | None:
+    """The number as the case wrote it ("1.0" stays "1.0", "38" stays "38"), for the values table; None
+    when it cannot be told (a value YAML or JSON read with more decimals than a lab reports)."""
+    if isinstance(raw, Mapping):
+        return as_written(raw.get("value"))
+    if isinstance(raw, bool):
+        return None
+    if isinstance(raw, int):
+        return str(raw)
+    if isinstance(raw, float):
+        text = repr(raw)
+        point = text.find(".")
+        return text if "e" not in text and 0 <= point and len(text) - point - 1 <= 6 else None
+    if isinstance(raw, str):
+        match = _VALUE_TEXT.match(raw)
+        return match["num"] if match else None
+    return None

@@ -181,7 +181,7 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
         )
         return None
     if info is None:
-        col.notices.append(f"medication {name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
+        col.notices.append(f"medication {name!r} is not recognised; it is listed but not reasoned with")
         return Medication(name=name, last_dose_hours=hours)
     return Medication(name=name, generic=info.generic, classes=info.classes, last_dose_hours=hours)
 
@@ -260,7 +260,7 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                 info = table.get(vocab.fold(text))
                 if info is None:
                     col.notices.append(
-                        f"finding {text!r} is not in notegen's vocabulary; it was kept but not reasoned with"
+                        f"finding {text!r} is not recognised; it is listed but not reasoned with"
                     )
                 elif info.id not in found:
                     found.append(info.id)

@@ -64,6 +64,7 @@ class Measurement(BaseModel):
     unit: str
     reported_value: float
     reported_unit: str
+    reported_text: str | None = None  # the number as written ("1.0"), when the input shows it
     qualifier: Literal["<", ">"] | None = None  # "<10" is held as value 10, qualifier "<"
     taken_at: datetime | None = None
     source: str = "case file"  # e.g. "case file", "paste line 4", "FHIR Observation/obs-3", "--set"

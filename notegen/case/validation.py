@@ -27,6 +27,7 @@ from notegen.case.checks import (
     _lab_aliases,
     _shown,
     _unsafe_character,
+    as_written,
     foreign_digit,
 )
 from notegen.case.context import validate_context, validate_patient
@@ -244,6 +245,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
                 value=canonical,
                 unit=u.FIELD_UNITS[field_name].canonical,
                 reported_value=number,
+                reported_text=as_written(values[key]),
                 reported_unit=reported_unit,
                 qualifier=qualifier,  # type: ignore[arg-type]
                 taken_at=taken_at,
@@ -337,11 +339,15 @@ def _check_span(entries: dict[str, list[dict[str, Any]]], col: _Collector) -> No
         )
 
 
+_SECTION_WORDS = {"gas": "gas", "chem": "chemistry", "urine": "urine"}
+
+
 def _choose_current(
     entries: dict[str, list[dict[str, Any]]], window_hours: float, col: _Collector
 ) -> tuple[dict[str, dict[str, Any]], dict[str, list[dict[str, Any]]]]:
     current: dict[str, dict[str, Any]] = {}
     earlier: dict[str, list[dict[str, Any]]] = {}
+    serial: dict[str, list[str]] = {}  # time read -> sections given more than once, as the reader names them
     for section, items in entries.items():
         chosen = len(items) - 1
         if section == "gas":
@@ -351,11 +357,12 @@ def _choose_current(
         current[section] = items[chosen]
         earlier[section] = [e for i, e in enumerate(items) if i != chosen]
         if len(items) > 1 and items[chosen].get("taken_at"):
-            col.notices.append(
-                f"{section}: {len(items)} results given; the latest complete one "
-                f"({items[chosen]['taken_at'].isoformat(sep=' ', timespec='minutes')}) is read, "
-                "earlier ones feed the trend"
-            )
+            when = items[chosen]["taken_at"].isoformat(sep=" ", timespec="minutes")
+            serial.setdefault(when, []).append(_SECTION_WORDS.get(section, section))
+    if serial:
+        # One line for all sections: the chart note lists it under what was given but not used.
+        read = "; ".join(f"{' and '.join(names)} of {when}" for when, names in serial.items())
+        col.notices.append(f"Earlier results were given; only the latest complete set is read ({read})")
     times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
     if len(times) > 1:
         try:

@@ -16,19 +16,22 @@ import functools
 import gc
 import math
 import os
-import re
 import sys
 from collections.abc import Callable, Sequence
 from enum import StrEnum
 from pathlib import Path
 from typing import TYPE_CHECKING, Annotated, Any
 
+from notegen.cli.plain import plain_draft_arguments
 from notegen.errors import InputError, NotegenError, UsageError
 
 if TYPE_CHECKING:
     import typer
 
 MAX_WINDOW_HOURS = 100_000  # about eleven years: any longer window is a typing slip
+DEFAULT_WIDTH = 80
+MIN_WIDTH, MAX_WIDTH = 30, 400
+MIN_WINDOW_HOURS = 0.5
 APP_HELP = (
     "Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
     "Example: notegen draft samples/thiazide_and_vomiting.yaml"
@@ -40,6 +43,9 @@ class OutputFormat(StrEnum):
     text = "text"
     html = "html"
     json = "json"
+
+
+_plain_draft_arguments = plain_draft_arguments  # the name the tests know
 
 
 class SchemaKind(StrEnum):
@@ -89,9 +95,11 @@ def _utf8_streams() -> None:
 
 
 def _check_window(window_hours: float) -> None:
-    if not math.isfinite(window_hours) or not 0.5 <= window_hours <= MAX_WINDOW_HOURS:
-        raise UsageError(f"--window-hours must be a number of hours from 0.5 to {MAX_WINDOW_HOURS:,}, "
-                         f"not {window_hours}")
+    if math.isfinite(window_hours) and window_hours < MIN_WINDOW_HOURS:
+        raise UsageError(f"--window-hours {window_hours:g}: give at least {MIN_WINDOW_HOURS:g} hours")
+    if not math.isfinite(window_hours) or not MIN_WINDOW_HOURS <= window_hours <= MAX_WINDOW_HOURS:
+        raise UsageError(f"--window-hours must be a number of hours from {MIN_WINDOW_HOURS:g} to "
+                         f"{MAX_WINDOW_HOURS:,}, not {window_hours}")
 
 
 def _exit_on_failure(code: int) -> None:
@@ -114,7 +122,7 @@ def _draft(
     *,
     paste: str | None = None,
     assignments: Sequence[str] = (),
-    output_format: str = "markdown",
+    output_format: str | None = None,
     output: Path | None = None,
     out_dir: Path | None = None,
     jsonl: bool = False,
@@ -122,20 +130,31 @@ def _draft(
     template: Path | None = None,
     explain: bool = False,
     brief: bool = False,
-    width: int = 80,
+    worksheet: bool = False,
+    width: int | None = None,
     ascii_only: bool = False,
     window_hours: float = 24.0,
 ) -> int:
-    """The body of `notegen draft`, whichever parser read the arguments; returns the exit status."""
+    """The body of `notegen draft`, whichever parser read the arguments; returns the exit status.
+
+    `output_format` None: the one `output`'s suffix names, else Markdown; `width` None: 80.
+    """
+    from notegen.cli.choices import check_choices, format_for
     from notegen.pipeline import Drafter, DraftOptions
 
+    if width is not None and not MIN_WIDTH <= width <= MAX_WIDTH:
+        raise UsageError(f"--width {width}: give a line width from {MIN_WIDTH} to {MAX_WIDTH}")
     _check_window(window_hours)
-
+    chosen = format_for(output_format, output)
+    check_choices(
+        chosen, brief=brief, explain=explain, worksheet=worksheet, width=width, ascii_only=ascii_only, template=template
+    )
     options = DraftOptions(
-        output_format=output_format,
+        output_format=chosen,
         explain=explain,
         brief=brief,
-        width=width,
+        worksheet=worksheet,
+        width=DEFAULT_WIDTH if width is None else width,
         ascii_only=ascii_only,
     )
     drafter = Drafter(rules_dirs=tuple(rules), template=template)
@@ -146,7 +165,9 @@ def _draft(
         if paste is not None or assignments:
             raise UsageError("--paste and --set apply to a single case, not to a batch")
         if output is not None:
-            raise UsageError("--output writes one note; for several cases give --out FOLDER (one note per case)")
+            raise UsageError(
+                "--output writes one note; for several cases give --output-folder FOLDER (one note per case)"
+            )
         return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
     from notegen.intake.files import MAX_BYTES
     from notegen.intake.read import read_case
@@ -181,39 +202,89 @@ def _is_batch(sources: Sequence[str], *, jsonl: bool, out_dir: Path | None) -> b
 def draft(
     cases: Annotated[
         list[str] | None,
-        typer.Argument(help="Case files (YAML, JSON or FHIR JSON), folders of them, or - for standard input."),
+        typer.Argument(metavar="FILE...", hidden=True, show_default=False),
     ] = None,
     paste: Annotated[
-        str | None, typer.Option("--paste", help="A pasted lab block (a file, or - for standard input).")
+        str | None,
+        typer.Option("--paste", metavar="FILE|-", help="A pasted lab block (a file, or - for standard input)."),
     ] = None,
     assignments: Annotated[
         list[str] | None,
-        typer.Option("--set", help="Set a case value by its dotted name, e.g. --set chem.k=2.9 (repeatable)."),
+        typer.Option(
+            "--set",
+            metavar="NAME=VALUE",
+            help="Set a case value by its dotted name, e.g. --set chem.k=2.9 (repeatable).",
+            show_default=False,
+        ),
     ] = None,
     output_format: Annotated[
-        OutputFormat, typer.Option("--format", "-f", help="Output format.")
-    ] = OutputFormat.markdown,
-    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write the note to this file.")] = None,
+        OutputFormat | None,
+        typer.Option(
+            "--format",
+            "-f",
+            metavar="FORMAT",
+            help="markdown, text, html or json. Default: what --output's suffix names, else markdown.",
+            show_default=False,
+        ),
+    ] = None,
+    output: Annotated[
+        Path | None,
+        typer.Option(
+            "--output",
+            "-o",
+            metavar="FILE",
+            help="Write the one note to FILE (.md, .txt, .html or .json sets the format).",
+        ),
+    ] = None,
     out_dir: Annotated[
-        Path | None, typer.Option("--out", help="Batch: write one note per case into this folder.")
+        Path | None,
+        typer.Option("--output-folder", metavar="FOLDER", help="Write one note per case into FOLDER (several cases)."),
+    ] = None,
+    old_out_dir: Annotated[
+        Path | None, typer.Option("--out", metavar="FOLDER", hidden=True, help="Former name of --output-folder.")
     ] = None,
     jsonl: Annotated[bool, typer.Option("--jsonl", help="Read cases as JSON Lines (one case per line).")] = False,
     rules: Annotated[
-        list[Path] | None, typer.Option("--rules", help="A service's rule-pack folder, laid over the shipped one.")
+        list[Path] | None,
+        typer.Option(
+            "--rules",
+            metavar="FOLDER",
+            help="A service's rule-pack folder, laid over the shipped one (repeatable).",
+            show_default=False,
+        ),
     ] = None,
     template: Annotated[
-        Path | None, typer.Option("--template", help="A service's own note template (Jinja2, sandboxed).")
+        Path | None,
+        typer.Option("--template", metavar="FILE", help="A service's own note template (Jinja2, sandboxed)."),
     ] = None,
     explain: Annotated[bool, typer.Option("--explain", help="Add the trace of the rule walk.")] = False,
     brief: Annotated[bool, typer.Option("--brief", help="Only the assessment paragraph and the alerts.")] = False,
-    width: Annotated[int, typer.Option("--width", min=30, max=400, help="Line width of plain text.")] = 80,
+    worksheet: Annotated[
+        bool,
+        typer.Option(
+            "--worksheet", help="Add the worksheet: values, every calculation with its source, the causes weighed."
+        ),
+    ] = False,
+    width: Annotated[
+        int | None,
+        typer.Option(
+            "--width", metavar="N", help="Line width of plain text, 30 to 400 (default 80).", show_default=False
+        ),
+    ] = None,
     ascii_only: Annotated[bool, typer.Option("--ascii", help="Plain text in ASCII only.")] = False,
     window_hours: Annotated[
         float,
-        typer.Option("--window-hours", min=0.5, help="Results older than this are not mixed into the latest set."),
+        typer.Option(
+            "--window-hours",
+            metavar="HOURS",
+            help="Results older than this are not mixed into the latest set (at least 0.5; default 24).",
+            show_default=False,
+        ),
     ] = 24.0,
 ) -> None:
     """Draft the assessment section for a case and print it.
+
+    FILE: case files (YAML, JSON or FHIR JSON), folders of them, or - for standard input.
 
     Example: notegen draft samples/thiazide_and_vomiting.yaml --format text
     """
@@ -222,20 +293,28 @@ def draft(
             cases or (),
             paste=paste,
             assignments=assignments or (),
-            output_format=output_format.value,
+            output_format=None if output_format is None else output_format.value,
             output=output,
-            out_dir=out_dir,
+            out_dir=_folder_option(out_dir, old_out_dir),
             jsonl=jsonl,
             rules=rules or (),
             template=template,
             explain=explain,
             brief=brief,
+            worksheet=worksheet,
             width=width,
             ascii_only=ascii_only,
             window_hours=window_hours,
         )
     )
     _exit_on_failure(code)
+
+
+def _folder_option(new: Path | None, old: Path | None) -> Path | None:
+    """--output-folder, or its former name --out (kept working: it only ever names a folder)."""
+    if new is not None and old is not None:
+        raise UsageError("give --output-folder once (--out is its former name)")
+    return new if new is not None else old
 
 
 def schema(
@@ -256,7 +335,9 @@ def schema(
 
 
 def new_case(
-    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write to this file instead of stdout.")] = None,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to FILE instead of standard output.")
+    ] = None,
 ) -> None:
     """Print a commented blank case file to start from.
 
@@ -276,11 +357,15 @@ def new_case(
 
 
 def check_pack(
-    folders: Annotated[list[Path], typer.Argument(help="Rule-pack folders, laid over the shipped pack in order.")],
+    folders: Annotated[
+        list[Path],
+        typer.Argument(metavar="FOLDER...", hidden=True, show_default=False),
+    ],
 ) -> None:
     """Check a service's rule pack and report every problem with its file and line.
 
-    Checks acid_base.yaml, the alkalosis/ pack and management.yaml, as `draft --rules` loads them.
+    Checks acid_base.yaml, the alkalosis/ and acidosis/ packs and management.yaml, as `draft --rules`
+    loads them. FOLDER: rule-pack folders, laid over the shipped pack in order.
 
     Example: notegen check-pack ./our-rules
     """
@@ -328,87 +413,12 @@ def __getattr__(name: str) -> Any:
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
-# A plain `draft` call, parsed without typer ---------------------------------------------------
-
-_FLAGS = {"--jsonl": "jsonl", "--explain": "explain", "--brief": "brief", "--ascii": "ascii_only"}
-_VALUES = {
-    "--paste": "paste",
-    "--format": "output_format",
-    "-f": "output_format",
-    "--output": "output",
-    "-o": "output",
-    "--out": "out_dir",
-    "--template": "template",
-    "--width": "width",
-    "--window-hours": "window_hours",
-}
-_REPEATED = {"--set": "assignments", "--rules": "rules"}
-_PATHS = ("output", "out_dir", "template")
-_WHOLE_NUMBER = re.compile(r"[0-9]{1,4}")
-_DECIMAL = re.compile(r"[0-9]{1,6}(\.[0-9]{1,6})?")
-
-
-def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
-    """The arguments of a `draft` call that needs no typer to read; None for anything else.
-
-    Only unmistakable forms are taken: known options once each, values that are plainly valid.
-    Help, errors and every unusual form are left to typer, so its messages stay the only ones.
-    """
-    if not argv or argv[0] != "draft":
-        return None
-    cases: list[str] = []
-    found: dict[str, Any] = {"assignments": [], "rules": []}
-    position = 1
-    while position < len(argv):
-        word = argv[position]
-        position += 1
-        if word == "-" or not word.startswith("-"):
-            cases.append(word)
-            continue
-        if word in _FLAGS:
-            if _FLAGS[word] in found:
-                return None
-            found[_FLAGS[word]] = True
-            continue
-        name, equals, value = word.partition("=")
-        if name not in _VALUES and name not in _REPEATED:
-            return None  # --help, --, -fjson, an unknown option...
-        if not equals:
-            if position == len(argv):
-                return None
-            value = argv[position]
-            position += 1
-        if not value or (value.startswith("-") and value != "-"):
-            return None
-        if name in _REPEATED:
-            found[_REPEATED[name]].append(value)
-        elif _VALUES[name] in found:
-            return None
-        else:
-            found[_VALUES[name]] = value
-    if found.get("output_format", "markdown") not in {member.value for member in OutputFormat}:
-        return None
-    if "width" in found:
-        if not _WHOLE_NUMBER.fullmatch(found["width"]) or not 30 <= int(found["width"]) <= 400:
-            return None
-        found["width"] = int(found["width"])
-    if "window_hours" in found:
-        if not _DECIMAL.fullmatch(found["window_hours"]) or float(found["window_hours"]) < 0.5:
-            return None
-        found["window_hours"] = float(found["window_hours"])
-    for key in _PATHS:
-        if key in found:
-            found[key] = Path(found[key])
-    found["rules"] = [Path(folder) for folder in found["rules"]]
-    return {"cases": cases, **found}
-
-
 def main(argv: Sequence[str] | None = None) -> int:
     """The `notegen` command; returns the exit status (typer's path exits by itself)."""
     arguments = list(sys.argv[1:] if argv is None else argv)
     if argv is None:  # the console script: the process's own streams
         _utf8_streams()
-    plain = _plain_draft_arguments(arguments)
+    plain = plain_draft_arguments(arguments)
     if plain is None:
         _typer_app()(args=arguments, prog_name="notegen")
         return 0

@@ -281,7 +281,7 @@ class _Batch:
                              f"({target.name}); rename one of the two cases")
         if any(same_file(target, source) for source in self.inputs):
             raise InputError(f"{where.label}: its note {target} would overwrite an input file; "
-                             "choose another --out folder")
+                             "choose another --output-folder")
 
     def one(self, where: BatchInput, payload: object) -> None:
         """Draft one case and write its note, or report why not; only a stop (Ctrl-C, SIGTERM) escapes."""
@@ -375,13 +375,13 @@ def run_batch(
     errors = stderr if stderr is not None else sys.stderr
     extension = _EXTENSIONS[options.output_format]
     if out_dir is None and options.output_format == "html":
-        raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
+        raise UsageError("several HTML notes need --output-folder FOLDER: each note is a page of its own")
     if out_dir is not None:
         refuse_out_folder_over_inputs(out_dir, sources, extension, CASE_SUFFIXES)  # input folders, input files
         try:
             out_dir.mkdir(parents=True, exist_ok=True)
         except OSError as exc:
-            raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
+            raise UsageError(f"--output-folder {out_dir}: cannot make the folder ({exc.strerror})") from None
     batch = _Batch(drafter, options, out_dir, jsonl, window_hours, errors,
                    inputs=frozenset(Path(s) for s in sources if s != "-"))
     items: Iterator[tuple[BatchInput, object]]

@@ -93,8 +93,8 @@ def refuse_out_folder_over_inputs(out_dir: Path, inputs: Iterable[str], extensio
     for source in inputs:
         if source != "-" and (same_file(Path(source), out_dir) or same_file(Path(source).parent, out_dir)):
             raise UsageError(
-                f"--out {out_dir} holds the input {source}, and {extension} notes written there could overwrite "
-                "case files; choose another folder for the notes")
+                f"--output-folder {out_dir} holds the input {source}, and {extension} notes written there could "
+                "overwrite case files; choose another folder for the notes")
 
 
 def remove_stale_note(target: Path, inputs: Iterable[Path] = ()) -> str | None:

@@ -12,6 +12,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Literal
 
+from notegen import _format
 from notegen.errors import NotegenError
 
 Qualifier = Literal["<", ">"]
@@ -93,11 +94,10 @@ def fact_value(fact: Fact) -> Value:
 
 
 def format_number(value: float, decimals: int | None = None) -> str:
-    """Short display form: 12.0 -> "12", 2.456 -> "2.46" (or fixed `decimals`)."""
+    """Short display form: 12.0 -> "12", 2.456 -> "2.46" (or fixed `decimals`), by the one formatter."""
     if decimals is not None:
-        return f"{value:.{decimals}f}"
-    text = f"{round(value, 2):.2f}".rstrip("0").rstrip(".")
-    return "0" if text == "-0" else text
+        return _format.format_number(value, decimals)
+    return _format.trimmed_number(value, 2)
 
 
 def _number_beside(value: float, decimals: int | None, beside: Sequence[float]) -> str:
@@ -126,6 +126,8 @@ def display_fact(fact: Fact, decimals: int | None = None, beside: Sequence[float
     "below 2.5" is not printed as 2.5).
     """
     if isinstance(fact, NumberFact):
+        if fact.unit == "h" and fact.qualifier is None and decimals is None and not beside:
+            return _format.format_hours(fact.value)  # the one duration form: "40 hours"
         shown = _number_beside(float(fact.value), decimals, beside)
         text = (fact.qualifier or "") + shown
         return f"{text} {fact.unit}" if fact.unit else text

@@ -191,7 +191,7 @@ class _FhirReader:
                     if url_where == where:
                         medications[url] = resource
             else:
-                self.unused.append(f"FHIR {label} ({where}): a {kind} is not a resource notegen reads")
+                self.unused.append(f"FHIR {label}: a {kind} is not read for an acid-base assessment")
         if latest_bp is not None:
             extra["context"]["bp"] = latest_bp[1]
             self.provenance["context.bp"] = f"FHIR {latest_bp[2]}"
@@ -227,7 +227,7 @@ class _FhirReader:
             text = (resource.get("code") or {}).get("text") or next(
                 (c.get("display") for c in codings if c.get("display")), "")
             named = f" ({text})" if text else ""
-            self.unused.append(f"FHIR {label}: LOINC {', '.join(loinc)}{named} is not a code notegen uses")
+            self.unused.append(f"FHIR {label}: LOINC {', '.join(loinc)}{named} is not read for an acid-base assessment")
             return None
         if len({(entry.field, entry.sample) for entry in known.values()}) > 1:
             self.unused.append(f"FHIR {label}: its LOINC codes {', '.join(known)} mean different things; "
@@ -262,7 +262,7 @@ class _FhirReader:
                             "nor unit); notegen does not assume one: give the unit in the resource")
         if section_name == "patient":
             if unit != entry.unit:
-                self.unused.append(f"FHIR {label}: {field_name} in {unit!r}; notegen takes it in {entry.unit} "
+                self.unused.append(f"FHIR {label}: {field_name} in {unit!r}; this draft takes it in {entry.unit} "
                                    "only and does not convert it here")
                 return None
             return entry.field, quantity["value"], moment
@@ -357,7 +357,7 @@ class _FhirReader:
             if name is None and isinstance(reference, str) and reference in medications:
                 name = _concept_name(medications[reference].get("code"))
             if name is None:
-                self.unused.append(f"FHIR {label}: the medication has no name notegen can read")
+                self.unused.append(f"FHIR {label}: the medication has no readable name")
                 continue
             key = name.casefold()
             if key in seen:

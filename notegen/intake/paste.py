@@ -296,10 +296,10 @@ class _PasteReader:
         if analyte is None:
             if first is None:
                 known = self._leading_analyte(name_text)
-                reason = "has no numeric value" if known else "is not a lab line notegen understands"
+                reason = "has no numeric value" if known else "is not a lab line this draft reads"
                 self._unused(number, line, reason)
             else:
-                self._unused(number, line, "is not an analyte notegen knows (rules/vocabulary/analytes.yaml)")
+                self._unused(number, line, "is not an analyte this draft reads")
             return None
         if marker == "urine" or set(self.vocabulary.analytes[analyte].fields) == {"urine"}:
             self.has_urine = True
@@ -308,7 +308,7 @@ class _PasteReader:
         if unit_in_name:
             units.append(unit_in_name["unit"])
         if words:
-            self._unused(number, line, f"has text notegen cannot read beside the value: {' '.join(words)!r}")
+            self._unused(number, line, f"has text beside the value that cannot be read: {' '.join(words)!r}")
             return None
         if len(set(units)) > 1:
             self._unused(number, line, f"gives two different units ({', '.join(sorted(set(units)))})")
@@ -447,16 +447,16 @@ class _PasteReader:
         if marker == "urine":
             candidates &= {"urine"}
             if not candidates:
-                return f"is a urine {label}, which is not a field notegen uses"
+                return f"is a urine {label}, which is not read for an acid-base assessment"
         elif marker is not None:
             candidates.discard("urine")
             if not candidates:
-                return f"is a blood {label}, which is not a field notegen uses"
+                return f"is a blood {label}, which is not read for an acid-base assessment"
         elif heading is not None:
             if heading.section in candidates:
                 candidates = {heading.section}
             elif heading.section == "urine":
-                return f"sits under a urine heading, but urine {label} is not a field notegen uses"
+                return f"sits under a urine heading, but urine {label} is not read for an acid-base assessment"
             else:
                 candidates.discard("urine")
                 if not candidates:

@@ -143,8 +143,7 @@ def read_case(
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
     case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)
     if unused or notices:
-        case = case.model_copy(
-            update={"notices": (*notices, *case.notices, *(f"not used: {item}" for item in unused))})
+        case = case.model_copy(update={"notices": (*notices, *case.notices, *unused)})
     return case
 
 
@@ -158,8 +157,7 @@ def read_case_data(data: Mapping[str, Any], *, name: str = "<case data>") -> Cas
         fhir = read_fhir(dict(data), source=name)
         case = validate_case(dict(fhir.data), filename=name, provenance=dict(fhir.provenance))
         if fhir.unused or fhir.notices:
-            case = case.model_copy(update={"notices": (*fhir.notices, *case.notices,
-                                                       *(f"not used: {u}" for u in fhir.unused))})
+            case = case.model_copy(update={"notices": (*fhir.notices, *case.notices, *fhir.unused)})
         return case
     return validate_case(dict(data), filename=name)
 

@@ -77,6 +77,12 @@ class Knowledge:
         return read_findings()
 
     @cached_property
+    def next_test_sentences(self) -> dict[str, str]:
+        from notegen.knowledge.vocabulary import read_next_test_sentences
+
+        return read_next_test_sentences()
+
+    @cached_property
     def finding_labels(self) -> dict[str, str]:
         return {info.id: info.label for info in self.findings.values()}
 
@@ -101,7 +107,7 @@ class Knowledge:
         missing = [folder for folder in self.rules_dirs if not folder.is_dir()]
         if missing:
             return [(str(folder), None, "no such folder") for folder in missing]
-        for part in ("settings", "fields", "medications", "findings", "analytes", "loinc"):
+        for part in ("settings", "fields", "medications", "findings", "next_test_sentences", "analytes", "loinc"):
             try:
                 getattr(self, part)
             except RulePackError as error:

@@ -62,6 +62,7 @@ class AcidBaseSettings(BaseModel):
     delta_ratio_low: Setting
     delta_ratio_pure: Setting
     delta_ratio_high: Setting
+    delta_ratio_min_fall: Setting
     osmolal_gap_high: Setting
     osmolal_gap_floor: Setting
     winters_tolerance: Setting

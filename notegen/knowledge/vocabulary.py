@@ -114,3 +114,14 @@ def finding_label(finding_id: str) -> str:
     """The words for a finding id; a look-up, not a scan, since a case may list many findings."""
     label = _shipped().finding_labels.get(finding_id)
     return label if label is not None else finding_id.replace("_", " ")
+
+
+def read_next_test_sentences(folder: Path | None = None) -> dict[str, str]:
+    """For each suggested test id, one plain sentence on what its result would change (next_tests.yaml)."""
+    data = _load((folder or rules_dir()) / "vocabulary" / "next_tests.yaml")
+    return {str(test): " ".join(str(text).split()) for test, text in data.items()}
+
+
+def next_test_sentences() -> dict[str, str]:
+    """The shipped sentences, read once through the process's `Knowledge`."""
+    return _shipped().next_test_sentences

@@ -12,6 +12,7 @@ from typing import Any
 
 from notegen._format import join_words, sentence_case
 from notegen.assess.model import Assessment
+from notegen.note.worksheet import plain_source
 from notegen.workup.acidosis_model import AcidosisTest
 from notegen.workup.model import CauseEntry, Evidence, SuggestedTest
 
@@ -120,7 +121,17 @@ KIND_LABELS = {
 
 def _evidence_rows(evidence: Sequence[Evidence]) -> list[dict[str, str]]:
     ranked = sorted(evidence, key=lambda item: _STRENGTH_ORDER.get(item.strength, 3))
-    return [{"text": e.text, "strength": e.strength, "source": e.source} for e in ranked]
+    return [{"text": e.text, "strength": e.strength, "source": plain_source(e.source)} for e in ranked]
+
+
+def _decides(test: AcidosisTest) -> str:
+    """What the result would settle or bear on, in one sentence; the purpose stays in the worksheet and JSON."""
+    parts = []
+    if test.settles:
+        parts.append(f"settle the {join_words(test.settles)}")
+    if test.bears_on:
+        parts.append(f"bear on {join_words([_inline(label) for label in test.bears_on])}")
+    return f"Would {' and '.join(parts)}." if parts else test.why
 
 
 def _short_reason(test: AcidosisTest) -> str:
@@ -156,7 +167,13 @@ def acidosis_context(assessment: Assessment) -> dict[str, Any] | None:
             for cause in workup.differential
         ],
         "next_tests": [
-            {"test": t.test, "label": sentence_case(t.label), "why": t.why, "reason": _short_reason(t)}
+            {
+                "test": t.test,
+                "label": sentence_case(t.label),
+                "why": t.why,
+                "reason": _short_reason(t),
+                "decides": _decides(t),  # the chart note's one sentence: what the result would bear on
+            }
             for t in workup.next_tests
         ],
         # The walk, step by step, when the draft was asked to explain itself (empty otherwise).

@@ -26,9 +26,11 @@ class Note:
     assessment: Assessment
     brief: bool = False
     template: Path | None = None
+    worksheet: bool = False  # the chart note, then the values, calculations and causes weighed
 
     def _render(self, output_format: str, **settings: Any) -> str:
-        options = DraftOptions(output_format=output_format, brief=self.brief, **settings)
+        worksheet = self.worksheet and output_format != "json"  # the JSON always carries all of it
+        options = DraftOptions(output_format=output_format, brief=self.brief, worksheet=worksheet, **settings)
         return render_note(self.assessment, options, template=self.template)
 
     @cached_property

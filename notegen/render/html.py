@@ -20,6 +20,7 @@ if TYPE_CHECKING:
     from markdown_it.token import Token
 
 CRITICAL_BANNER_CLASS = "critical-banner"
+DRAFT_NOTICE_CLASS = "draft-notice"
 _BANNER_LEAD_WORD = "critical"
 
 # Greys only, so the page prints the same on a black-and-white printer; the
@@ -48,6 +49,7 @@ blockquote.critical-banner { border: 3px solid #111; border-left-width: 10px; ba
   color: #000; font-weight: bold; padding: 0.6em 1em;
   -webkit-print-color-adjust: exact; print-color-adjust: exact; }
 blockquote.critical-banner p { margin: 0.25em 0; }
+p.draft-notice { border: 1px dashed #555; padding: 0.4em 0.75em; font-family: "Helvetica Neue", Arial, sans-serif; }
 hr { border: 0; border-top: 1px solid #999; margin: 1.5em 0; }
 @media print {
   body { font-size: 10.5pt; }
@@ -57,8 +59,12 @@ hr { border: 0; border-top: 1px solid #999; margin: 1.5em 0; }
 """
 
 
-def markdown_to_html_page(markdown: str, *, title: str) -> str:
-    """Return a complete HTML5 document showing `markdown`, with `title` escaped."""
+def markdown_to_html_page(markdown: str, *, title: str, draft_notice: str | None = None) -> str:
+    """Return a complete HTML5 document showing `markdown`, with `title` escaped.
+
+    `draft_notice`, when given, stands first on the page, so a reader sees it is a draft before
+    anything else (the note's own cautions close it).
+    """
     parser = markdown_parser()
     env: dict[str, object] = {}
     tokens = parser.parse(markdown, env)
@@ -75,11 +81,18 @@ def markdown_to_html_page(markdown: str, *, title: str) -> str:
         "</head>\n"
         "<body>\n"
         "<main>\n"
+        f"{_notice(draft_notice)}"
         f"{body}"
         "</main>\n"
         "</body>\n"
         "</html>\n"
     )
+
+
+def _notice(text: str | None) -> str:
+    if not text:
+        return ""
+    return f'<p class="{DRAFT_NOTICE_CLASS}"><strong>{html.escape(text, quote=False)}</strong></p>\n'
 
 
 def _mark_critical_banners(tokens: list[Token]) -> None:

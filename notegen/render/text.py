@@ -239,11 +239,23 @@ class _TextRenderer:
         lines: list[str] = []
         for segment in text.split("\n"):
             # break_long_words=False: an address or long drug name overflows
-            # rather than being cut in two for a dictation pipeline.
+            # rather than being cut in two for a dictation pipeline. A number and its unit are
+            # held together by a joiner that is no space to textwrap, then printed as a space.
+            bound = _NUMBER_UNIT.sub(_JOINER, segment.strip())
             lines.extend(
-                textwrap.wrap(segment.strip(), width, break_long_words=False, break_on_hyphens=False)
+                line.replace(_JOINER, " ")
+                for line in textwrap.wrap(bound, width, break_long_words=False, break_on_hyphens=False)
             )
         return lines
+
+
+# A space between a number and its unit: a line break there would leave "10" at a line's end and
+# "mmol/L" at the next one's start.
+_UNITS = (
+    r"mmol/L|mmol/mmol|mmol|mmHg|kPa|mg/dL|g/dL|g/L|µmol/L|umol/L|mEq/L|mL/min|m2|kg|cm|%|years?|hours?|minutes?"
+)
+_NUMBER_UNIT = re.compile(rf"(?<=\d) (?=(?:{_UNITS})(?![A-Za-z]))")
+_JOINER = "\x1f"  # a control character no note text holds (input refuses them)
 
 
 def _one_line(text: str) -> str:

@@ -96,6 +96,17 @@ def _evidence(item: EvidenceResult) -> Evidence:
     return Evidence(id=item.id, strength=item.strength, text=item.text, facts=dict(item.facts), source=item.source)  # type: ignore[arg-type]
 
 
+def _not_assessable_without(pack: RulePack, open_items: Sequence[OpenEvidence]) -> tuple[str, ...]:
+    """The tests (by label) whose missing result could have argued FOR a cause, firmly, each once.
+
+    Only facts a test provides count: a fact the walk derives (a tree's outcome) is no value to send for.
+    """
+    by_fact = {fact: test.label for test in pack.tests for fact in test.provides}
+    firm = [item for item in open_items if item.supporting and item.strength != "weak"]
+    labels = [by_fact[name] for item in firm for name in item.missing if name in by_fact]
+    return tuple(dict.fromkeys(labels))
+
+
 def _undecided(pack: RulePack, item: OpenEvidence) -> str:
     names = [pack.facts[n].display_label if n in pack.facts else f"the {n.replace('_', ' ')}" for n in item.missing]
     side = "for" if item.supporting else "against"
@@ -148,6 +159,7 @@ def evaluate_alkalosis(
                 "for": tuple(_evidence(e) for e in c.supporting),
                 "against": tuple(_evidence(e) for e in c.opposing),
                 "undecided": tuple(_undecided(pack, o) for o in c.open),
+                "not_assessable_without": _not_assessable_without(pack, c.open),
             }
         )
         for c in result.causes

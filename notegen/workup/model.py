@@ -30,6 +30,9 @@ class CauseEntry(FrozenModel):
     supporting: tuple[Evidence, ...] = Field(alias="for")
     opposing: tuple[Evidence, ...] = Field(alias="against")
     undecided: tuple[str, ...] = ()  # what the data could not decide, in words
+    # Tests (by label) whose missing result left a finding FOR this cause open: such a cause is
+    # never called unlikely on its own; the note says what it cannot be assessed or excluded without.
+    not_assessable_without: tuple[str, ...] = ()
 
 
 class MechanismEntry(FrozenModel):
