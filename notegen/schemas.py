@@ -12,6 +12,8 @@ from __future__ import annotations
 import json
 from typing import Any
 
+from notegen.knowledge import shipped_knowledge
+
 __all__ = ["SCHEMA_KINDS", "case_schema", "output_schema", "schema_text"]
 
 SCHEMA_KINDS = ("case", "output")
@@ -79,9 +81,8 @@ def _lab_value(description: str) -> dict[str, Any]:
 def _lab_section(section: str, description: str) -> dict[str, Any]:
     from notegen.case import units
     from notegen.case.validation import LAB_SECTIONS
-    from notegen.knowledge import vocabulary
 
-    fields = vocabulary.fields()
+    fields = shipped_knowledge().fields
     properties: dict[str, Any] = {
         "taken_at": {
             "description": "When the sample was taken (ISO date-time, e.g. 2026-03-14T06:30).",
@@ -108,6 +109,7 @@ def _lab_section(section: str, description: str) -> dict[str, Any]:
     }
 
 
+# long: a JSON Schema literal, declarative: splitting it would scatter one document
 def case_schema() -> dict[str, Any]:
     """The schema of a case file (YAML or JSON), as `notegen draft` reads it."""
     from notegen.case.checks import MAX_TEXT

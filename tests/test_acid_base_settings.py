@@ -10,10 +10,10 @@ import yaml
 from notegen.acidbase.reading import read_acid_base
 from notegen.case.model import Case, Chem, Gas
 from notegen.errors import RulePackError
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.settings import (
     SETTING_NAMES,
     SHIPPED_ORIGIN,
-    default_acid_base_settings,
     load_acid_base_settings,
 )
 from notegen.resources import rules_dir
@@ -38,7 +38,7 @@ def test_shipped_file_has_every_setting_with_value_unit_and_source() -> None:
 
 
 def test_shipped_values_are_the_published_ones() -> None:
-    s = default_acid_base_settings()
+    s = shipped_knowledge().settings
     # Albert 1967 (Winter's +/- 2); Berend 2014 (0.7 +/- 2); Rastegar 2007 (0.4, 1, 2); Figge 1998 (2.5).
     assert s.winters_tolerance.value == 2
     assert (s.alkalosis_pco2_slope.value, s.alkalosis_pco2_tolerance.value) == (0.7, 2)

@@ -18,6 +18,7 @@ from test_properties import _profile, alkalosis_case_file, case_file
 from notegen.assess.model import Assessment
 from notegen.case.validation import validate_case
 from notegen.intake.read import read_case
+from notegen.knowledge import shipped_knowledge
 from notegen.pipeline import Drafter, DraftOptions
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -255,10 +256,9 @@ def test_the_paragraph_and_the_reading_steps_print_a_ph_alike() -> None:
 
 
 def test_every_shipped_test_has_its_clinical_sentence() -> None:
-    from notegen.knowledge.vocabulary import next_test_sentences
     from notegen.workup.alkalosis import default_alkalosis_pack
 
-    sentences = next_test_sentences()
+    sentences = shipped_knowledge().next_test_sentences
     for test in default_alkalosis_pack().spec.tests:
         text = sentences.get(test.id, "")
         assert text.endswith(".") and text.count(". ") == 0, test.id  # one sentence

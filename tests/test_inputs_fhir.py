@@ -18,7 +18,7 @@ import pytest
 
 from notegen.errors import InputError
 from notegen.intake.fhir import looks_like_fhir, read_fhir
-from notegen.knowledge.loinc import load_loinc_table
+from notegen.knowledge import shipped_knowledge
 
 FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
 
@@ -186,7 +186,7 @@ def test_looks_like_fhir() -> None:
 
 
 def test_every_code_says_where_it_was_checked() -> None:
-    table = load_loinc_table()
+    table = shipped_knowledge().loinc
     sections = {entry.field.split(".")[0] for entry in table.codes.values()}
     assert {"gas", "chem", "urine", "patient", "context"} <= sections
     for code, entry in table.codes.items():
@@ -207,7 +207,7 @@ def test_importing_the_reader_does_not_import_fhir_resources() -> None:
 def test_every_lab_field_has_a_code() -> None:
     from notegen.case.model import Chem, Gas, Urine
 
-    fields = {entry.field for entry in load_loinc_table().codes.values()}
+    fields = {entry.field for entry in shipped_knowledge().loinc.codes.values()}
     for section, model in (("gas", Gas), ("chem", Chem), ("urine", Urine)):
         for name in model.model_fields:
             if name not in ("sample", "taken_at"):

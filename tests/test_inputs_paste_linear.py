@@ -12,6 +12,7 @@ import pytest
 
 from notegen.errors import PasteError
 from notegen.intake.paste import parse_paste
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.analytes import Vocabulary
 
 LONGEST_NAME_WORDS = 10  # an analyte name ("urine potassium creatinine ratio") is a few words
@@ -39,6 +40,5 @@ def test_a_long_line_without_a_value_costs_a_few_name_lookups(monkeypatch: pytes
 
 
 def test_the_longest_analyte_name_is_short() -> None:
-    from notegen.knowledge.analytes import load_vocabulary
 
-    assert max(len(name.split()) for name in load_vocabulary().name_index()) <= LONGEST_NAME_WORDS
+    assert max(len(name.split()) for name in shipped_knowledge().analytes.name_index()) <= LONGEST_NAME_WORDS

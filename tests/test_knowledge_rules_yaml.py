@@ -93,6 +93,6 @@ def test_a_malformed_vocabulary_file_exits_2_with_its_file_and_line(tmp_path: Pa
     shutil.copytree(rules_dir(), rules)
     (rules / "vocabulary" / "medications.yaml").write_text("furosemide:\n  classes: [loop\n", encoding="utf-8")
     with pytest.raises(RulePackError) as info:
-        vocabulary.medications(rules)
+        vocabulary.read_medications(rules)
     assert info.value.exit_code == 2
     assert "medications.yaml:" in str(info.value)

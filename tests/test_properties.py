@@ -28,6 +28,7 @@ from notegen.assess.model import Assessment
 from notegen.case import units as u
 from notegen.case.validation import LAB_SECTIONS, pco2_fits_other_unit, validate_case
 from notegen.cli.app import app
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge import vocabulary as vocab
 from notegen.pipeline import Drafter, DraftOptions
 
@@ -69,7 +70,7 @@ def _medication_names() -> tuple[tuple[str, tuple[str, ...]], ...]:
 
 @cache
 def _finding_names() -> tuple[str, ...]:
-    return tuple(sorted(vocab.findings()))
+    return tuple(sorted(shipped_knowledge().findings))
 
 
 # --- Values ------------------------------------------------------------------------------------------------
@@ -80,7 +81,7 @@ _DECIMALS = {"gas.ph": 2, "urine.ph": 1, "chem.k": 1, "chem.creatinine": 2, "che
 @st.composite
 def lab_value(draw: st.DrawFn, field: str, system: str, low: float | None = None, high: float | None = None) -> Any:
     """A value for `field` inside its plausibility bounds, written the way a case file may write it."""
-    info = vocab.fields()[field]
+    info = shipped_knowledge().fields[field]
     low = max(info.low, low if low is not None else info.low)
     high = min(info.high, high if high is not None else info.high)
     scale = 10 ** _DECIMALS.get(field, 1)

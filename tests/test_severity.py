@@ -12,7 +12,7 @@ from test_properties import _profile
 from typer.testing import CliRunner
 
 from notegen.cli.app import app
-from notegen.knowledge.settings import default_acid_base_settings
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.severity import severity_problems, severity_words
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.workup.alkalosis import default_alkalosis_pack
@@ -21,7 +21,7 @@ DRAFTER = Drafter()
 
 
 def test_the_shipped_alerts_and_pack_share_every_threshold() -> None:
-    assert severity_problems(default_acid_base_settings(), default_alkalosis_pack().settings) == []
+    assert severity_problems(shipped_knowledge().settings, default_alkalosis_pack().settings) == []
     words = {entry.id: entry for entry in severity_words()}
     assert words["severe_hypokalemia"].pack_settings == ("k_severe_below",)
     # common practice: severe hypokalemia below 2.5 mmol/L, the alerts' critical threshold
@@ -41,14 +41,14 @@ def _cause_evidence(k: float, mg: float | None) -> tuple[str, set[str]]:
 @given(k=st.integers(15, 34).map(lambda tenths: tenths / 10), mg=st.sampled_from([None, 0.9, 1.1, 1.2, 1.5, 2.0]))
 def test_no_note_calls_a_value_severe_in_one_place_and_not_in_another(k: float, mg: float | None) -> None:
     note, ids = _cause_evidence(k, mg)
-    threshold = default_acid_base_settings().potassium_low_critical.value
+    threshold = shipped_knowledge().settings.potassium_low_critical.value
     alert_severe = "severe hypokalemia" in note
     assert alert_severe == (k < threshold)
     assert ("severe_hypokalemia" in ids) == alert_severe
     assert ("potassium_not_severe" in ids) == (not alert_severe)
     assert "too mild" not in note
     if mg is not None:
-        mg_severe = mg < default_acid_base_settings().magnesium_low_warning.value
+        mg_severe = mg < shipped_knowledge().settings.magnesium_low_warning.value
         assert ("severe hypomagnesemia" in note) == mg_severe
         assert ("severe_hypomagnesemia" in ids) == mg_severe
         assert "marked hypomagnesemia" not in note

@@ -20,7 +20,7 @@ from notegen.case.validation import LAB_SECTIONS, validate_case
 from notegen.errors import CaseValueError
 from notegen.intake.paste import parse_paste
 from notegen.intake.read import read_case
-from notegen.knowledge import vocabulary as vocab
+from notegen.knowledge import shipped_knowledge
 from notegen.pipeline import Drafter, DraftOptions
 
 
@@ -161,7 +161,7 @@ def test_a_bare_value_is_read_only_as_given_or_by_a_named_conversion(drawn: tupl
     system = data.get("units")
     if system is None and field in AMBIGUOUS_FIELDS:
         # undeclared: read at all only when the other system's reading is impossible
-        info = vocab.fields()[field]
+        info = shipped_knowledge().fields[field]
         other = u.to_canonical(field, number, u.FIELD_UNITS[field].si)
         assert not info.low <= other <= info.high
     if system is not None:
@@ -176,7 +176,7 @@ _NOTE_FIELDS = [f for f in _FIELDS if f not in ("gas.ph", "urine.ph")]
 @st.composite
 def _one_value_case(draw: st.DrawFn) -> tuple[dict[str, Any], str, float, str | None]:
     field = draw(st.sampled_from(_NOTE_FIELDS))
-    info = vocab.fields()[field]
+    info = shipped_knowledge().fields[field]
     unit = draw(st.sampled_from([None, *u.accepted_units(field)]))
     declared = draw(st.sampled_from([None, "si", "conventional"]))
     as_unit = unit if unit is not None else u.default_unit(field, declared or "conventional")

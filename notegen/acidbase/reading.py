@@ -44,7 +44,8 @@ from notegen.acidbase.steps import (
 )
 from notegen.case.bounds import exact_only
 from notegen.case.model import Case
-from notegen.knowledge.settings import AcidBaseSettings, default_acid_base_settings
+from notegen.knowledge import shipped_knowledge
+from notegen.knowledge.settings import AcidBaseSettings
 
 __all__ = ["AcidBaseReading", "read_acid_base"]
 
@@ -157,6 +158,7 @@ def _driver(name: Disorder, pco2: float, hco3: float) -> str:
     return f"the {'high' if high else 'low'} PaCO2 ({mm(pco2)})"
 
 
+# long: one decision table, case by case, from the pH and the two values; split, its branches would lose their order
 def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Primary, str]:
     s = w.s
     if g.ph is None or g.pco2 is None or g.hco3 is None:
@@ -243,6 +245,7 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     )
 
 
+# long: assembles the reading's ~40 typed fields in the order the reading is made; each step is a function of steps.py
 def read_acid_base(
     case: Case,
     settings: AcidBaseSettings | None = None,
@@ -254,7 +257,7 @@ def read_acid_base(
     delta gap and ratio, expected PaCO2 or bicarbonate and calculated pH rather than working them
     out again. Without it they are computed here.
     """
-    s = settings or default_acid_base_settings()
+    s = settings or shipped_knowledge().settings
     case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
     calcs = compute_calculations(case, s) if calculations is None else calculations
     w = ReadingDraft(s=s, venous=case.gas.sample == "venous", calcs=calcs)

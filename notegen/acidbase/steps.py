@@ -112,6 +112,7 @@ def _estimate(done: Calculation | None) -> Estimate | None:
     return Estimate(done.value, done.low, done.high)
 
 
+# long: the published rule, its alternative form, the edge and the ceiling checks read as one sequence
 def metabolic_compensation(
     primary: Disorder, g: GasValues, w: ReadingDraft
 ) -> tuple[CompensationStatus, ExpectedRange]:
@@ -215,6 +216,7 @@ def _at_the_edge(primary: Disorder, pco2: float, hco3: float, est: Estimate, w: 
     return None
 
 
+# long: acute and chronic rules for acidosis and alkalosis, side by side, so they stay symmetrical
 def respiratory_compensation(
     primary: Disorder, g: GasValues, w: ReadingDraft
 ) -> tuple[CompensationStatus, ExpectedRange, tuple[ExpectedRange, ...], Chronicity]:
@@ -315,6 +317,7 @@ class GapResult:
     normal_gap_acidosis: bool = False
 
 
+# long: the gap, its albumin correction, the delta ratio and its interpretation read as one sequence
 def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> GapResult:
     s, chem, out = w.s, case.chem, GapResult()
     source = gap_bicarbonate(case)

@@ -34,7 +34,7 @@ from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem
 from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
 from notegen.engine.wording import Template, parse_template
 from notegen.errors import RulePackError
-from notegen.knowledge import vocabulary
+from notegen.knowledge import shipped_knowledge
 from notegen.resources import rules_dir
 
 __all__ = [
@@ -191,7 +191,7 @@ def _check(merged: ManagementFile, pack: RulePack, catalogue: Mapping[str, FactS
         if setting.id in pack.settings or setting.id in catalogue:
             where = setting.where
             problems.append((where[0], where[1], f"setting `{setting.id}` has the name of a pack setting or fact"))
-    known_classes = {c for info in vocabulary.medications().values() for c in info.classes}
+    known_classes = {c for info in shipped_knowledge().medications.values() for c in info.classes}
     for group in merged.medication_groups:
         for name in group.classes:
             if name not in known_classes:

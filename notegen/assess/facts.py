@@ -31,7 +31,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.engine.pack import FactSpec
-from notegen.knowledge import vocabulary
+from notegen.knowledge import shipped_knowledge
 from notegen.workup.facts import derive_facts
 
 __all__ = ["ALERT_CODES", "MedicationGroup", "consideration_catalogue", "consideration_facts"]
@@ -107,7 +107,8 @@ def consideration_catalogue(
     added += [_spec(f"test_{t.id}", "boolean", f"{t.label} suggested") for t in pack.tests]
     added += [_spec(f"alert_{code}", "enum", f"{code} alert", values=ALERT_LEVELS) for code in ALERT_CODES]
     for finding_id in _finding_ids():
-        added.append(_spec(f"finding_{finding_id}", "boolean", f"{vocabulary.finding_label(finding_id)} reported"))
+        label = shipped_knowledge().finding_label(finding_id)
+        added.append(_spec(f"finding_{finding_id}", "boolean", f"{label} reported"))
     for group in groups:
         added.append(_spec(f"{group.id}_listed", "boolean", f"{group.label} listed"))
         added.append(_spec(f"{group.id}_names", "text", f"{group.label} listed"))
@@ -119,7 +120,7 @@ def consideration_catalogue(
 @functools.cache
 def _finding_ids() -> tuple[str, ...]:
     # The shipped vocabulary does not change while notegen runs; a set built per case cost more than the rest.
-    return tuple(sorted({info.id for info in vocabulary.findings().values()}))
+    return tuple(sorted({info.id for info in shipped_knowledge().findings.values()}))
 
 
 def _group_facts(meds: tuple[Medication, ...], group: MedicationGroup) -> dict[str, Fact]:

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from notegen._format import format_value
 from notegen.case.model import Case, Measurement
-from notegen.knowledge import vocabulary as vocab
+from notegen.knowledge import shipped_knowledge
 
 _SECTIONS = ("gas", "chem", "urine")
 
@@ -44,7 +44,7 @@ def exact_only(case: Case) -> Case:
 
 def bound_notices(case: Case) -> list[str]:
     """One line per bounded value: shown as reported, and not used in arithmetic."""
-    labels = vocab.fields()
+    labels = shipped_knowledge().fields
     return [
         f"{labels[m.field].label.capitalize()} was reported as {m.qualifier}"
         f"{format_value(m.reported_value, m.reported_unit)}, a bound, not a value: no calculation uses it, "

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from notegen.case.model import Measurement
+from notegen.knowledge import shipped_knowledge
 
 MAX_TEXT = 500
 DEFAULT_WINDOW_HOURS = 24.0
@@ -106,11 +107,11 @@ class _Collector:
 
 def _lab_aliases(section: str) -> dict[str, str]:
     """Analyte names ("sodium", "bicarbonate") -> the section's key, to suggest for a misspelt key."""
-    from notegen.knowledge.analytes import load_vocabulary, normalise
+    from notegen.knowledge.analytes import normalise
 
     return {
         normalise(name): analyte.fields[section]
-        for analyte in load_vocabulary().analytes.values()
+        for analyte in shipped_knowledge().analytes.analytes.values()
         if section in analyte.fields
         for name in analyte.names
     }

@@ -22,6 +22,7 @@ from notegen.case.checks import (
 )
 from notegen.case.drug_names import near_miss
 from notegen.case.model import BloodPressure, Context, Medication, Patient
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge import vocabulary as vocab
 
 PATIENT_KEYS = ("age", "sex", "weight_kg", "height_cm")
@@ -187,7 +188,7 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
 
 
 def _lookup_drug(name: str) -> vocab.DrugInfo | None:
-    table = vocab.medications()
+    table = shipped_knowledge().medications
     words = vocab.fold(name).split(" ")
     # "furosemide 40 mg IV twice daily" -> the longest leading run of words that names a drug
     for end in range(min(len(words), 4), 0, -1):
@@ -249,7 +250,7 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                 col.problem(path, "expected a list of findings")
                 continue
             found: list[str] = []
-            table = vocab.findings()
+            table = shipped_knowledge().findings
             for i, text in enumerate(items):
                 if not isinstance(text, str) or not text.strip() or len(text) > MAX_TEXT:
                     col.problem(f"{path}[{i}]", "a finding must be a short text such as vomiting")

@@ -8,6 +8,7 @@ be; a name far from every known one is kept and reported as unknown, as before.
 
 from __future__ import annotations
 
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge import vocabulary as vocab
 
 # How many single-letter slips (inserted, dropped, changed or two swapped letters) a name of a
@@ -48,7 +49,7 @@ def near_miss(name: str) -> str | None:
     """
     words = vocab.fold(name).split(" ")
     best: tuple[int, str] | None = None
-    for known in vocab.medications():
+    for known in shipped_knowledge().medications:
         count = known.count(" ") + 1
         if count > len(words):
             continue

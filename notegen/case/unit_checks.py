@@ -16,8 +16,7 @@ from typing import Any
 from notegen._henderson import henderson_hasselbalch_ph
 from notegen.case import units as u
 from notegen.case.checks import _Collector, _fmt
-from notegen.knowledge import vocabulary as vocab
-from notegen.knowledge.settings import default_acid_base_settings
+from notegen.knowledge import shipped_knowledge
 
 # Fields whose SI and conventional numbers differ. PO2 (mmHg/kPa) is left out: it does not
 # enter the acid-base reading, and is shown only as reported. The `bun` key is left out too:
@@ -52,7 +51,7 @@ def ambiguous_bare_pco2(pco2: float, ph: float | None, hco3: float | None) -> st
     its own gas's pH and bicarbonate fit it by Henderson-Hasselbalch (within 0.1).
     """
     if ph is not None and hco3 is not None and pco2 > 0 and hco3 > 0:
-        s = default_acid_base_settings()
+        s = shipped_knowledge().settings
         calculated = s.pk_carbonic.value + math.log10(hco3 / (s.co2_solubility.value * pco2))
         if abs(calculated - ph) <= 0.1:
             return None
@@ -60,7 +59,7 @@ def ambiguous_bare_pco2(pco2: float, ph: float | None, hco3: float | None) -> st
 
 
 def _both_readings(field_name: str, number: float, urea: bool) -> str | None:
-    info = vocab.fields()[field_name]
+    info = shipped_knowledge().fields[field_name]
     units = u.FIELD_UNITS[field_name]
     readings: list[str] = []
     for unit in (units.si, units.conventional):
@@ -92,11 +91,11 @@ def pco2_fits_other_unit(ph: float, pco2: float, hco3: float, system: str) -> tu
     other = "kPa" if default == "mmHg" else "mmHg"
     as_default = u.to_canonical("gas.pco2", pco2, default)
     as_other = u.to_canonical("gas.pco2", pco2, other)
-    bounds = vocab.fields()["gas.pco2"]
+    bounds = shipped_knowledge().fields["gas.pco2"]
     if not bounds.low <= as_other <= bounds.high:
         return None
 
-    settings = default_acid_base_settings()
+    settings = shipped_knowledge().settings
     pk, solubility = settings.pk_carbonic.value, settings.co2_solubility.value
 
     def calculated_ph(pco2_mmhg: float) -> float:

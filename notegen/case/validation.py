@@ -4,6 +4,7 @@ Every problem is collected with its field path and reported at once. A value is 
 converted from a unit that was not stated or implied by the case's unit system, and a
 value that fits another unit better is refused with the suggestion, never converted.
 """
+# long: the lab sections' validation, serial results and the case's assembly read in one pass over the case
 
 from __future__ import annotations
 
@@ -45,7 +46,7 @@ from notegen.case.unit_checks import (
 )
 from notegen.case.unit_checks import pco2_fits_other_unit as pco2_fits_other_unit  # its old home, kept
 from notegen.errors import CaseFileError, CaseValueError
-from notegen.knowledge import vocabulary as vocab
+from notegen.knowledge import shipped_knowledge
 
 TOP_KEYS = ("case", "units", "dates", "patient", "gas", "chem", "urine", "context")
 DATE_ORDERS = ("day-first", "month-first")  # `dates:`, how a pasted 03/04/2026 is read
@@ -140,7 +141,7 @@ def _parse_lab_value(raw: Any, path: str, field_name: str, col: _Collector) -> t
 
 
 def _check_plausible(number: float, unit: str, path: str, field_name: str, col: _Collector) -> float | None:
-    info = vocab.fields()[field_name]
+    info = shipped_knowledge().fields[field_name]
     canonical = u.to_canonical(field_name, number, unit)
     if info.low <= canonical <= info.high:
         return canonical

@@ -199,6 +199,7 @@ def _is_batch(sources: Sequence[str], *, jsonl: bool, out_dir: Path | None) -> b
     return jsonl or out_dir is not None or len(sources) > 1 or any(Path(s).is_dir() for s in sources if s != "-")
 
 
+# long: typer reads the options from this signature: one annotated parameter per option of the command
 def draft(
     cases: Annotated[
         list[str] | None,

@@ -16,6 +16,7 @@
    would change a tree's outcome or a cause's tier. Tests that change a tree's outcome come first,
    then the pack's order. Its `why` names what it would decide.
 """
+# long: the walk and its what-if suggestions share the private tree-walking core; split, they would import each other
 
 from __future__ import annotations
 
@@ -249,6 +250,7 @@ def _points(pack: RulePack, truths: list[int] | tuple[int, ...], cause: int) -> 
     return points_for, points_against
 
 
+# long: the walk's passes (trees, evidence, tiers, factors, suggestions) share its local state
 def walk(pack: RulePack, raw_facts: Mapping[str, FactInput]) -> WalkResult:
     """Walk the pack over the facts (name -> fact); facts not given are missing."""
     facts, env = prepare_facts(pack, raw_facts)

@@ -21,7 +21,8 @@ from pydantic import ConfigDict, ValidationError
 from notegen.errors import InputError
 from notegen.intake.fhir_subject import check_one_patient
 from notegen.intake.sections import ParsedInput, Reading, Section, as_utc, assemble_sections
-from notegen.knowledge.loinc import LoincTable, load_loinc_table
+from notegen.knowledge import shipped_knowledge
+from notegen.knowledge.loinc import LoincTable
 
 LOINC_SYSTEM = "http://loinc.org"
 UCUM_SYSTEM = "http://unitsofmeasure.org"
@@ -64,7 +65,7 @@ def read_fhir(data: dict[str, Any], *, source: str) -> ParsedInput:
             f"{source}: reading FHIR needs the fhir.resources package, which is not installed "
             "(pip install fhir.resources, or reinstall notegen)"
         ) from None
-    return _FhirReader(r4b, load_loinc_table(), source).read(data)
+    return _FhirReader(r4b, shipped_knowledge().loinc, source).read(data)
 
 
 class _FhirReader:

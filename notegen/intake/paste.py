@@ -17,6 +17,7 @@ Every non-blank line is either taken or listed in `unused` with the reason. Rule
   header ("Test Result Units") is skipped; a header with a collection and a result time is
   refused. Decimal commas and gas shorthand: intake/paste_formats.py.
 """
+# long: one line-by-line reader class with its block state; the format rules already live in paste_formats.py
 
 from __future__ import annotations
 
@@ -30,7 +31,8 @@ from notegen.errors import InputError, PasteError
 from notegen.intake.paste_formats import SHORTHAND_ORDER, decimal_commas, gas_shorthand, names_any, only_words_from
 from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
 from notegen.intake.unit_system import settle_units
-from notegen.knowledge.analytes import Heading, Vocabulary, load_vocabulary, normalise
+from notegen.knowledge import shipped_knowledge
+from notegen.knowledge.analytes import Heading, Vocabulary, normalise
 
 # How an analyte id reads in a message, where the id is not already the word ("ph" is pH).
 _ANALYTE_WORDS = {"ph": "pH", "pco2": "PCO2", "paco2": "PaCO2", "total_co2": "total CO2"}
@@ -95,7 +97,7 @@ def parse_paste(text: str, *, source: str = "paste", date_order: str | None = No
     for number, raw in enumerate(text.splitlines(), start=1):
         if (digit := foreign_digit(raw)) is not None:  # a Bengali ৪ looks like 8; Python would read 4
             raise PasteError(f"{raw.strip()[:60]!r} {digit}", line=number, source=source)
-    vocabulary = load_vocabulary()
+    vocabulary = shipped_knowledge().analytes
     reader = _PasteReader(vocabulary, source, date_order)
     text, commas = decimal_commas(text)
     lab_lines = reader.read_lines(text)

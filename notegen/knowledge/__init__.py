@@ -5,9 +5,11 @@
     knowledge.problems()                                       # what `check-pack` reports, file and line
 
 The `Drafter` holds one for its rule folders. `shipped_knowledge()` is the one for the shipped folder,
-built once per process; the module-level readers (`vocabulary.medications()`, ...) read through it,
-so nothing under `rules/` is parsed twice. Each part is read only when first used, so a case that
-needs no rule pack never loads one. Every file goes through `rules_yaml.read_rules_file`.
+built once per process; every stage that needs the shipped tables asks it (`shipped_knowledge().fields`),
+so nothing under `rules/` is parsed twice and no reader module keeps a cache of its own. The readers
+(`settings`, `vocabulary`, `analytes`, `loinc`, `packs`) only read; they never import this module.
+Each part is read only when first used, so a case that needs no rule pack never loads one. Every
+file goes through `rules_yaml.read_rules_file`.
 """
 
 from __future__ import annotations
@@ -85,6 +87,17 @@ class Knowledge:
     @cached_property
     def finding_labels(self) -> dict[str, str]:
         return {info.id: info.label for info in self.findings.values()}
+
+    def finding_label(self, finding_id: str) -> str:
+        """The words for a finding id; a look-up, not a scan, since a case may list many findings."""
+        label = self.finding_labels.get(finding_id)
+        return label if label is not None else finding_id.replace("_", " ")
+
+    def drug(self, name: str) -> DrugInfo | None:
+        """The medication vocabulary's entry for a generic name or a synonym."""
+        from notegen.knowledge.vocabulary import fold
+
+        return self.medications.get(fold(name))
 
     @cached_property
     def analytes(self) -> Vocabulary:

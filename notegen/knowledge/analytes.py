@@ -79,15 +79,6 @@ def vocabulary_path() -> Path:
     return rules_dir() / "vocabulary" / "analytes.yaml"
 
 
-def load_vocabulary(path: Path | None = None) -> Vocabulary:
-    """The shipped analyte vocabulary (read once through the process's `Knowledge`), or the file at `path`."""
-    if path is None:
-        from notegen.knowledge import shipped_knowledge
-
-        return shipped_knowledge().analytes
-    return read_analyte_vocabulary(path)
-
-
 def read_analyte_vocabulary(path: Path | None = None) -> Vocabulary:
     """Read and check the vocabulary; a name given to two analytes is refused."""
     path = path or vocabulary_path()

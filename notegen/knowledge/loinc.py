@@ -11,7 +11,7 @@ from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
-__all__ = ["BpComponent", "LoincCode", "LoincTable", "load_loinc_table", "loinc_table_path", "read_loinc_table"]
+__all__ = ["BpComponent", "LoincCode", "LoincTable", "loinc_table_path", "read_loinc_table"]
 
 _STRICT = ConfigDict(frozen=True, extra="forbid")
 
@@ -43,15 +43,6 @@ class LoincTable(BaseModel):
 
 def loinc_table_path() -> Path:
     return rules_dir() / "vocabulary" / "loinc.yaml"
-
-
-def load_loinc_table(path: Path | None = None) -> LoincTable:
-    """The shipped LOINC table (read once through the process's `Knowledge`), or the file at `path`."""
-    if path is None:
-        from notegen.knowledge import shipped_knowledge
-
-        return shipped_knowledge().loinc
-    return read_loinc_table(path)
 
 
 def read_loinc_table(path: Path | None = None) -> LoincTable:

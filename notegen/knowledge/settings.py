@@ -267,9 +267,3 @@ def load_acid_base_settings(extra_dirs: Sequence[Path] = ()) -> AcidBaseSettings
         raise RulePackError(problems)
     return AcidBaseSettings(**merged)
 
-
-def default_acid_base_settings() -> AcidBaseSettings:
-    """The shipped settings, read once per process (through the process's `Knowledge`)."""
-    from notegen.knowledge import shipped_knowledge
-
-    return shipped_knowledge().settings

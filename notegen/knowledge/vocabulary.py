@@ -8,14 +8,11 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
-
-if TYPE_CHECKING:
-    from notegen.knowledge import Knowledge
 
 
 @dataclass(frozen=True)
@@ -75,11 +72,6 @@ def read_medications(folder: Path | None = None) -> dict[str, DrugInfo]:
     return table
 
 
-def drug(generic: str) -> DrugInfo | None:
-    """The shipped vocabulary's entry for a generic name (or a synonym)."""
-    return medications().get(fold(generic))
-
-
 def read_findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     """Folded id, label or synonym -> finding."""
     data = _load((folder or rules_dir()) / "vocabulary" / "findings.yaml")
@@ -91,37 +83,8 @@ def read_findings(folder: Path | None = None) -> dict[str, FindingInfo]:
     return table
 
 
-# The shipped tables, read once through the process's `Knowledge`; a folder reads that folder afresh.
-def fields(folder: Path | None = None) -> dict[str, FieldInfo]:
-    return read_fields(folder) if folder is not None else _shipped().fields
-
-
-def medications(folder: Path | None = None) -> dict[str, DrugInfo]:
-    return read_medications(folder) if folder is not None else _shipped().medications
-
-
-def findings(folder: Path | None = None) -> dict[str, FindingInfo]:
-    return read_findings(folder) if folder is not None else _shipped().findings
-
-
-def _shipped() -> Knowledge:
-    from notegen.knowledge import shipped_knowledge
-
-    return shipped_knowledge()
-
-
-def finding_label(finding_id: str) -> str:
-    """The words for a finding id; a look-up, not a scan, since a case may list many findings."""
-    label = _shipped().finding_labels.get(finding_id)
-    return label if label is not None else finding_id.replace("_", " ")
-
-
 def read_next_test_sentences(folder: Path | None = None) -> dict[str, str]:
     """For each suggested test id, one plain sentence on what its result would change (next_tests.yaml)."""
     data = _load((folder or rules_dir()) / "vocabulary" / "next_tests.yaml")
     return {str(test): " ".join(str(text).split()) for test, text in data.items()}
 
-
-def next_test_sentences() -> dict[str, str]:
-    """The shipped sentences, read once through the process's `Knowledge`."""
-    return _shipped().next_test_sentences

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from notegen._format import sentence_case
 from notegen.case.model import Case, Measurement
+from notegen.knowledge import shipped_knowledge
 
 _GAS_LABELS = {"gas.ph": "pH", "gas.pco2": "PaCO2", "gas.hco3": "HCO3 (gas)", "gas.po2": "PaO2"}
 # Venous values are never labelled as arterial (PaCO2): PvCO2 and venous pH wherever they are shown.
@@ -23,7 +24,6 @@ def _gas_sample(measurement: Measurement, case: Case) -> str | None:
 
 
 def field_label(field: str, case: Case, measurement: Measurement | None = None) -> str:
-    from notegen.knowledge import vocabulary
 
     if measurement is not None and field.startswith("gas."):
         sample = _gas_sample(measurement, case)
@@ -38,5 +38,5 @@ def field_label(field: str, case: Case, measurement: Measurement | None = None) 
         return _VENOUS_LABELS[field]
     if field in _GAS_LABELS:
         return _GAS_LABELS[field]
-    info = vocabulary.fields().get(field)
+    info = shipped_knowledge().fields.get(field)
     return sentence_case(info.label if info else field)

@@ -25,6 +25,7 @@ from notegen.acidbase.calculations import Calculation
 from notegen.assess.model import Assessment
 from notegen.case.model import Case, Measurement, Medication
 from notegen.case.trend import TrendSeries
+from notegen.knowledge import shipped_knowledge
 from notegen.note.labels import field_label
 from notegen.workup.model import CauseEntry, Evidence, SuggestedTest
 
@@ -101,9 +102,8 @@ def plain_source(source: str) -> str:
 
 def test_row(test: SuggestedTest) -> dict[str, str]:
     """A suggested test and one plain sentence on what its result would change."""
-    from notegen.knowledge.vocabulary import next_test_sentences
-
-    return {"test": test.test, "label": sentence_case(test.label), "sentence": next_test_sentences().get(test.test, "")}
+    sentence = shipped_knowledge().next_test_sentences.get(test.test, "")
+    return {"test": test.test, "label": sentence_case(test.label), "sentence": sentence}
 
 
 def _three_figures(value: float) -> str:
@@ -158,7 +158,6 @@ def _medication_text(med: Medication) -> str:
 
 
 def context_items(case: Case) -> list[dict[str, str]]:
-    from notegen.knowledge.vocabulary import finding_label
 
     items: list[dict[str, str]] = []
     patient = case.patient
@@ -181,7 +180,7 @@ def context_items(case: Case) -> list[dict[str, str]]:
     items.append({"label": "Volume status", "text": "not stated" if volume == "unknown" else volume})
     meds = [_medication_text(med) for med in case.context.meds]
     items.append({"label": "Medications", "text": "; ".join(meds) if meds else "none given"})
-    findings = [finding_label(f) for f in case.context.findings]
+    findings = [shipped_knowledge().finding_label(f) for f in case.context.findings]
     items.append({"label": "Findings", "text": join_words(findings) if findings else "none given"})
     context = case.context
     results = [

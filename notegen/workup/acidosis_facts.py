@@ -16,7 +16,7 @@ from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
-from notegen.knowledge.vocabulary import finding_label
+from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis_model import AcidosisWorkupKind
 
 ACIDOSIS_FINDINGS = (
@@ -172,7 +172,7 @@ def derive_acidosis_facts(
         facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
     for finding in ACIDOSIS_FINDINGS:
         facts[finding] = BooleanFact(finding in case.context.findings)
-    losses = [finding_label(f) for f in GUT_LOSSES if f in case.context.findings]
+    losses = [shipped_knowledge().finding_label(f) for f in GUT_LOSSES if f in case.context.findings]
     facts["gut_losses"] = TextFact(join_words(losses)) if losses else MissingFact("none reported")
     facts.update(acidosis_medication_facts(case))
     facts["ketonuria"] = ketonuria_fact(case, pack) if pack is not None else MissingFact("no pack settings")

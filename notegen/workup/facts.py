@@ -23,8 +23,8 @@ from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
-from notegen.knowledge import vocabulary as vocab
-from notegen.knowledge.settings import AcidBaseSettings, default_acid_base_settings
+from notegen.knowledge import shipped_knowledge
+from notegen.knowledge.settings import AcidBaseSettings
 
 CALCIUM_MOLAR_MASS = 40.078  # g/mol (IUPAC standard atomic weight)
 
@@ -99,7 +99,7 @@ def action_window(med: Medication, pack: RulePack) -> float:
     The drug's own longest usual duration of effect when the vocabulary has one, else its class's
     window from the pack.
     """
-    info = vocab.drug(med.generic) if med.generic else None
+    info = shipped_knowledge().drug(med.generic) if med.generic else None
     if info is not None and info.action_hours is not None:
         return info.action_hours[1]
     return max(_setting_hours(pack, DIURETIC_WINDOWS[c]) for c in med.classes if c in DIURETIC_WINDOWS)
@@ -174,7 +174,7 @@ def derive_facts(
     """
     chem, urine, context = case.chem, case.urine, case.context
     calcs = calculations or {}
-    s = settings or default_acid_base_settings()
+    s = settings or shipped_knowledge().settings
     facts: dict[str, Fact] = {
         "urine_cl": _number(case, "urine.cl", urine.cl, "mmol/L"),
         "urine_na": _number(case, "urine.na", urine.na, "mmol/L"),
