@@ -1,11 +1,18 @@
-"""The YAML loader of the shipped rule files: plain types only, and no key given twice."""
+"""The one reader of rule files (knowledge/rules_yaml.py): plain types only, and no key given twice."""
 
 from __future__ import annotations
 
-import pytest
-import yaml
+from typing import Any
 
-from notegen.resources import read_yaml_safely, rules_dir
+import pytest
+
+from notegen.errors import RulePackError
+from notegen.knowledge.rules_yaml import parse_rules_text
+from notegen.resources import rules_dir
+
+
+def read_yaml_safely(text: str) -> Any:
+    return parse_rules_text(text, "rule.yaml")[0]
 
 
 def test_plain_yaml_is_read() -> None:
@@ -18,19 +25,19 @@ def test_plain_yaml_is_read() -> None:
     ids=["top", "same-line", "nested-same-value", "in-a-list"],
 )
 def test_a_key_given_twice_is_refused(text: str) -> None:
-    with pytest.raises(yaml.YAMLError, match="is given twice"):
+    with pytest.raises(RulePackError, match="is given twice"):
         read_yaml_safely(text)
 
 
 def test_a_control_character_in_a_repeated_key_is_escaped_in_the_message() -> None:
-    with pytest.raises(yaml.YAMLError) as info:
+    with pytest.raises(RulePackError) as info:
         read_yaml_safely('"a\\x1b[2J": 1\n"a\\x1b[2J": 2\n')
     assert "\x1b" not in str(info.value)
     assert "a\\u001b[2J" in str(info.value)
 
 
 def test_python_tags_are_refused() -> None:
-    with pytest.raises(yaml.YAMLError):
+    with pytest.raises(RulePackError):
         read_yaml_safely("!!python/object/apply:os.system ['true']\n")
 
 
