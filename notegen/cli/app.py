@@ -96,6 +96,7 @@ def _draft(
     width: int = 80,
     ascii_only: bool = False,
     window_hours: float = 24.0,
+    jobs: int = 1,
 ) -> int:
     """The body of `notegen draft`, whichever parser read the arguments; returns the exit status."""
     from notegen.pipeline import Drafter, DraftOptions
@@ -116,7 +117,9 @@ def _draft(
             raise UsageError("--paste and --set apply to a single case, not to a batch")
         if output is not None:
             raise UsageError("--output writes one note; for several cases give --out FOLDER (one note per case)")
-        return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
+        return run_batch(
+            sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours, jobs=jobs
+        )
     from notegen.intake.files import MAX_BYTES
     from notegen.intake.read import read_case
 
@@ -170,6 +173,10 @@ def draft(
         float,
         typer.Option("--window-hours", min=0.5, help="Results older than this are not mixed into the latest set."),
     ] = 24.0,
+    jobs: Annotated[
+        int,
+        typer.Option("--jobs", "-j", min=0, help="Batch: draft on this many processes (0: one per core)."),
+    ] = 1,
 ) -> None:
     """Draft the assessment section for a case and print it.
 
@@ -191,6 +198,7 @@ def draft(
             width=width,
             ascii_only=ascii_only,
             window_hours=window_hours,
+            jobs=jobs,
         )
     )
     _exit_on_failure(code)
@@ -297,6 +305,8 @@ _VALUES = {
     "--template": "template",
     "--width": "width",
     "--window-hours": "window_hours",
+    "--jobs": "jobs",
+    "-j": "jobs",
 }
 _REPEATED = {"--set": "assignments", "--rules": "rules"}
 _PATHS = ("output", "out_dir", "template")
@@ -348,6 +358,10 @@ def _plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
         if not _WHOLE_NUMBER.fullmatch(found["width"]) or not 30 <= int(found["width"]) <= 400:
             return None
         found["width"] = int(found["width"])
+    if "jobs" in found:
+        if not _WHOLE_NUMBER.fullmatch(found["jobs"]):
+            return None
+        found["jobs"] = int(found["jobs"])
     if "window_hours" in found:
         if not _DECIMAL.fullmatch(found["window_hours"]) or float(found["window_hours"]) < 0.5:
             return None

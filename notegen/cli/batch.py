@@ -17,12 +17,14 @@ import tempfile
 import time
 from collections.abc import Iterable, Iterator
 from pathlib import Path
-from typing import BinaryIO, TextIO
+from typing import TYPE_CHECKING, BinaryIO, TextIO
 
-from notegen.case.validation import validate_case
 from notegen.errors import CaseFileError, InputError, NotegenError, UsageError, printable
 from notegen.intake.files import MAX_BYTES, parse_json
 from notegen.pipeline import Drafter, DraftOptions
+
+if TYPE_CHECKING:
+    from notegen.cli.outputs import NoteFolder
 
 CASE_SUFFIXES = (".yaml", ".yml", ".json")
 _EXTENSIONS = {"markdown": ".md", "text": ".txt", "html": ".html", "json": ".json"}
@@ -185,13 +187,18 @@ def run_batch(
     jsonl: bool,
     window_hours: float,
     stderr: TextIO | None = None,
+    jobs: int = 1,
 ) -> int:
     """Draft every case; return the exit status (0 all drafted, 2 some rejected, 1 some failed unexpectedly).
 
     Messages, the progress line (when `stderr` is a terminal) and the summary go to `stderr`,
-    standard error by default.
+    standard error by default. `jobs` > 1 drafts on that many worker processes (0: one per core);
+    results are written in input order all the same (`notegen.cli.parallel`).
     """
-    from notegen.intake.read import read_case
+    from contextlib import nullcontext
+
+    from notegen.cli.outputs import NoteFolder
+    from notegen.cli.parallel import Job, drafted, job_count
 
     errors = stderr if stderr is not None else sys.stderr
 
@@ -202,10 +209,7 @@ def run_batch(
             raise UsageError(f"--out {out_dir}: cannot make the folder ({exc.strerror})") from None
     if out_dir is None and options.output_format == "html":
         raise UsageError("several HTML notes need --out FOLDER: each note is a page of its own")
-    drafted = rejected = failed = 0
-    extension = _EXTENSIONS[options.output_format]
-    written: dict[Path, str] = {}
-    stdin_bytes: bytes | None = None
+    workers = job_count(jobs)
     items: Iterator[tuple[str, object]]
     if jsonl:
         items = _jsonl_cases(sources, sys.stdin.buffer)
@@ -215,29 +219,49 @@ def run_batch(
         items = ((str(s), s) if isinstance(s, InputError) else (s, None) for s in files)
         progress = _Progress(errors, len(files))
     single_line = options.output_format == "json" and out_dir is None  # JSON Lines on standard output
-    for label, payload in items:
+    job = Job(drafter.rules_dirs, drafter.template, options, jsonl, single_line, window_hours)
+    outcomes = drafted(
+        items,
+        job,
+        jobs=workers,
+        drafter=drafter,
+        read_stdin=lambda: sys.stdin.buffer.read(MAX_BYTES + 1),  # one byte past the limit is enough to refuse
+    )
+    notes = NoteFolder(out_dir) if out_dir is not None else None
+    with notes if notes is not None else nullcontext():
+        counts = _write_outcomes(outcomes, notes, options, jsonl, single_line, progress, errors)
+    drafted_count, rejected, failed = counts
+    progress.clear()
+    summary = f"{drafted_count} drafted, {rejected} rejected"
+    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=errors)
+    if failed:
+        return 1
+    return 0 if rejected == 0 else 2
+
+
+def _write_outcomes(
+    outcomes: Iterator[tuple[str, object]],
+    notes: NoteFolder | None,
+    options: DraftOptions,
+    jsonl: bool,
+    single_line: bool,
+    progress: _Progress,
+    errors: TextIO,
+) -> tuple[int, int, int]:
+    """Write or print each result in order, report each refusal once; (drafted, rejected, failed)."""
+    from notegen.cli.parallel import Drafted
+
+    drafted = rejected = failed = 0
+    extension = _EXTENSIONS[options.output_format]
+    for label, outcome in outcomes:
         progress.update(drafted + rejected + failed)
         try:
-            if isinstance(payload, NotegenError):
-                raise payload
-            if jsonl:
-                case = validate_case(payload, filename=label, window_hours=window_hours)
-            else:
-                if label == "-" and stdin_bytes is None:
-                    stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit is enough to refuse
-                case = read_case(label, window_hours=window_hours, stdin=stdin_bytes)
-            if single_line:
-                note = drafter.draft_json_line(case, explain=options.explain)
-            else:
-                note = drafter.draft(case, options)
+            if not isinstance(outcome, Drafted):
+                raise outcome  # type: ignore[misc]
+            note, case_label = outcome.note, outcome.case_label
             target = None
-            if out_dir is not None:
-                target = out_dir / f"{_note_stem(label, jsonl)}{extension}"
-                if target in written:
-                    raise InputError(
-                        f"{label}: its note would overwrite the note of {written[target]} ({target.name}); "
-                        "rename one of the two cases"
-                    )
+            if notes is not None:
+                target = notes.claim(f"{_note_stem(label, jsonl)}{extension}", label)
         except NotegenError as error:
             rejected += 1
             progress.clear()
@@ -254,21 +278,15 @@ def run_batch(
             continue
         drafted += 1
         if target is not None:
-            written[target] = label
             write_atomically(target, note)
         else:
             if not single_line:
                 # Several notes in one stream: each starts with a line naming its case, so that no
                 # note can be taken for the one before it (a brief note names no case of its own).
-                sys.stdout.write(("\n" if drafted > 1 else "") + _note_header(label, case.label, options) + "\n\n")
+                sys.stdout.write(("\n" if drafted > 1 else "") + _note_header(label, case_label, options) + "\n\n")
             sys.stdout.write(note if note.endswith("\n") else note + "\n")
             if jsonl:
                 # A program that keeps one process open and writes a case at a time reads each result
                 # as soon as it is drafted, not when a pipe's buffer fills (see the README).
                 sys.stdout.flush()
-    progress.clear()
-    summary = f"{drafted} drafted, {rejected} rejected"
-    print(f"notegen: {summary}" + (f", {failed} failed unexpectedly" if failed else ""), file=errors)
-    if failed:
-        return 1
-    return 0 if rejected == 0 else 2
+    return drafted, rejected, failed
