@@ -200,6 +200,25 @@ def test_the_markers_live_on_disk_and_go_when_the_run_ends(tmp_path: Path) -> No
     assert list(tmp_path.iterdir()) == []
 
 
+def test_markers_without_hard_links(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    def no_links(source: object, target: object) -> None:
+        raise PermissionError(1, "Operation not permitted")
+
+    monkeypatch.setattr(outputs.os, "link", no_links)
+    with NoteFolder(tmp_path) as notes:
+        notes.claim("a.md", "cases/a.yaml")
+        with pytest.raises(InputError, match=r"the note of cases/a\.yaml \(a\.md\)"):
+            notes.claim("a.md", "cases/a.json")
+
+
+def test_a_label_with_a_line_break_is_named_whole(tmp_path: Path) -> None:
+    with NoteFolder(tmp_path) as notes:
+        notes.claim("b.md", "cases/b\nc.yaml")
+        notes.claim("a.md", "cases/a.yaml")
+        with pytest.raises(InputError, match=r"the note of cases/b\nc\.yaml \(b\.md\)"):
+            notes.claim("b.md", "cases/b.json")
+
+
 def test_a_note_from_an_earlier_run_is_replaced_not_refused(tmp_path: Path) -> None:
     out = tmp_path / "notes"
     first = _run([str(SAMPLES[0]), str(SAMPLES[1]), "--out", str(out)], 2)
