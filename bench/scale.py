@@ -146,3 +146,32 @@ def report(
     small, large = min(rss), max(rss)
     if small != large:
         print(f"  growth {small:,} -> {large:,}: {(rss[large] - rss[small]) / 1024:+.1f} MiB (target within 5 MiB)")
+
+
+def main() -> None:
+    """`python bench/scale.py 1000 100000`: only the memory under --out, for the sizes given."""
+    import argparse
+    import tempfile
+
+    from run import _child_environment, _notegen_command
+
+    parser = argparse.ArgumentParser(description=main.__doc__)
+    parser.add_argument("sizes", nargs="+", type=int)
+    sizes = parser.parse_args().sizes
+    with tempfile.TemporaryDirectory(prefix="notegen-bench-") as scratch:
+        folder = Path(scratch)
+        env = _child_environment(folder / "pycache")
+        draft = [*_notegen_command(), "draft"]
+        print("peak RSS of notegen draft --jsonl FILE --out FOLDER --format json (one note file per case):")
+        for size in sizes:
+            path = folder / f"memory-{size}.jsonl"
+            write_jsonl(path, size, seed=7)
+            out = folder / "memory-out"
+            rss = peak_rss([*draft, "--jsonl", str(path), "--out", str(out), "--format", "json"], env, folder)
+            shutil.rmtree(out, ignore_errors=True)
+            print(f"  {size:8,} cases: {rss / 1024:6.1f} MiB")
+
+
+if __name__ == "__main__":
+    sys.path.insert(0, str(Path(__file__).resolve().parent))
+    main()

@@ -245,3 +245,21 @@ def test_jobs_is_read_alike_by_both_parsers(tmp_path: Path) -> None:
 def test_a_stand_in_error_travels_with_its_name() -> None:
     error = pickle.loads(pickle.dumps(parallel.stand_in("LocalError", "went wrong")))
     assert type(error).__name__ == "LocalError" and str(error) == "went wrong"
+
+
+def test_the_markers_are_removed_without_listing_them_all_at_once(tmp_path: Path) -> None:
+    import tracemalloc
+
+    folder = tmp_path / "markers"
+    folder.mkdir()
+    (folder / "seed").touch()
+    for index in range(5000):
+        (folder / f"note-{index:05d}.md").hardlink_to(folder / "seed")
+    tracemalloc.start()
+    try:
+        outputs._remove_streaming(folder)
+        _, peak = tracemalloc.get_traced_memory()
+    finally:
+        tracemalloc.stop()
+    assert not folder.exists()
+    assert peak < 200_000, f"peak {peak:,} bytes"  # a list of 5,000 entries (shutil.rmtree's way) is far more

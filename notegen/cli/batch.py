@@ -195,7 +195,7 @@ def run_batch(
     standard error by default. `jobs` > 1 drafts on that many worker processes (0: one per core);
     results are written in input order all the same (`notegen.cli.parallel`).
     """
-    from contextlib import nullcontext
+    from contextlib import closing, nullcontext
 
     from notegen.cli.outputs import NoteFolder
     from notegen.cli.parallel import Job, drafted, job_count
@@ -228,7 +228,7 @@ def run_batch(
         read_stdin=lambda: sys.stdin.buffer.read(MAX_BYTES + 1),  # one byte past the limit is enough to refuse
     )
     notes = NoteFolder(out_dir) if out_dir is not None else None
-    with notes if notes is not None else nullcontext():
+    with closing(outcomes), notes if notes is not None else nullcontext():  # the pool stops however this ends
         counts = _write_outcomes(outcomes, notes, options, jsonl, single_line, progress, errors)
     drafted_count, rejected, failed = counts
     progress.clear()

@@ -18,6 +18,7 @@ as the notes, so such a pair is caught too.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import shutil
@@ -66,7 +67,7 @@ class NoteFolder:
             self._log.close()
             self._log = None
         if self.markers is not None:
-            shutil.rmtree(self.markers, ignore_errors=True)
+            _remove_streaming(self.markers)
             self.markers = None
 
     def claim(self, name: str, label: str) -> Path:
@@ -105,3 +106,24 @@ class NoteFolder:
                 if claimed.casefold() == folded and first == "another case":
                     first = str(label)
         return first
+
+
+def _remove_streaming(folder: Path) -> None:
+    """Remove a flat folder of markers, reading its entries as they come.
+
+    `shutil.rmtree` lists the whole folder first: one entry object per note of the run at once,
+    the very memory the markers are there to avoid (about 19 MiB more at 100,000 notes).
+    """
+    try:
+        for _ in range(3):  # entries removed while the folder is read may make a pass miss some
+            removed = 0
+            with os.scandir(folder) as entries:
+                for entry in entries:
+                    with contextlib.suppress(FileNotFoundError):
+                        os.unlink(entry.path)
+                    removed += 1
+            if not removed:
+                break
+        os.rmdir(folder)
+    except OSError:
+        shutil.rmtree(folder, ignore_errors=True)  # anything unforeseen: the plain way

@@ -16,7 +16,7 @@ import pickle
 import signal
 import sys
 from collections import deque
-from collections.abc import Callable, Iterable, Iterator
+from collections.abc import Callable, Generator, Iterable, Iterator
 from concurrent.futures import Future, ProcessPoolExecutor
 from dataclasses import dataclass
 from itertools import islice
@@ -92,7 +92,7 @@ def drafted(
     jobs: int = 1,
     drafter: Drafter | None = None,
     read_stdin: Callable[[], bytes] | None = None,
-) -> Iterator[tuple[str, Outcome]]:
+) -> Generator[tuple[str, Outcome], None, None]:
     """(label, outcome) for every item, in input order; `jobs` > 1 drafts on that many worker processes.
 
     `read_stdin` reads standard input's bytes for a `-` among the files (once, in this process).
