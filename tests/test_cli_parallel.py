@@ -6,7 +6,6 @@ Every test compares a pooled run with the single-process run of the same input; 
 from __future__ import annotations
 
 import json
-import multiprocessing
 import pickle
 import shutil
 from pathlib import Path
@@ -25,7 +24,8 @@ SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 runner = CliRunner()
 GOOD = "case: good\ngas: {sample: arterial, ph: 7.49, pco2: 48, hco3: 36}\nchem: {na: 136, k: 3.2, cl: 91}\n"
 forked = pytest.mark.skipif(
-    multiprocessing.get_start_method() != "fork", reason="the workers see this test's changes only when forked"
+    parallel.start_context().get_start_method() != "fork",
+    reason="the workers see this test's changes only when forked",
 )
 
 
@@ -263,3 +263,17 @@ def test_the_markers_are_removed_without_listing_them_all_at_once(tmp_path: Path
         tracemalloc.stop()
     assert not folder.exists()
     assert peak < 200_000, f"peak {peak:,} bytes"  # a list of 5,000 entries (shutil.rmtree's way) is far more
+
+
+def test_workers_started_by_a_fork_server_give_the_same_notes(
+    ward: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # the start method of Python 3.12 and later: workers load notegen themselves, nothing inherited
+    import multiprocessing
+
+    if "forkserver" not in multiprocessing.get_all_start_methods():
+        pytest.skip("no fork server on this platform")
+    single = _run([str(ward), "--out", str(tmp_path / "one"), "--format", "json"], 1)
+    monkeypatch.setattr(parallel, "start_context", lambda: multiprocessing.get_context("forkserver"))
+    assert _run([str(ward), "--out", str(tmp_path / "two"), "--format", "json"], 2) == single
+    assert _files(tmp_path / "two") == _files(tmp_path / "one")

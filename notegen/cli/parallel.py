@@ -11,6 +11,8 @@ result is seen once, in order, whichever worker drafted it.
 
 from __future__ import annotations
 
+import multiprocessing
+import multiprocessing.context
 import os
 import pickle
 import signal
@@ -119,7 +121,9 @@ def drafted(
 def _pooled(tasks: Iterator[tuple[str, object, bytes | None]], job: Job, jobs: int) -> Iterator[tuple[str, Outcome]]:
     pending: deque[Future[list[tuple[str, Outcome]]]] = deque()
     limit = jobs * IN_FLIGHT_PER_WORKER
-    executor = ProcessPoolExecutor(max_workers=jobs, initializer=_start_worker, initargs=(job,))
+    executor = ProcessPoolExecutor(
+        max_workers=jobs, mp_context=start_context(), initializer=_start_worker, initargs=(job,)
+    )
     try:
         exhausted = False
         while True:
@@ -135,6 +139,18 @@ def _pooled(tasks: Iterator[tuple[str, object, bytes | None]], job: Job, jobs: i
     finally:
         # on an interrupt or an error in the caller: drop what is queued, wait for no one
         executor.shutdown(wait=not sys.exc_info()[0], cancel_futures=True)
+
+
+def start_context() -> multiprocessing.context.BaseContext:
+    """How workers start: forked where that is safe and cheap (they inherit what this process loaded).
+
+    From Python 3.12 forking a process that runs threads (the pool's own manager thread) is
+    deprecated; there, a fork server starts the workers, which load notegen themselves.
+    """
+    methods = multiprocessing.get_all_start_methods()
+    if sys.version_info < (3, 12) and "fork" in methods:
+        return multiprocessing.get_context("fork")
+    return multiprocessing.get_context("forkserver" if "forkserver" in methods else None)
 
 
 _WORKER: dict[str, Any] = {}
