@@ -43,6 +43,12 @@ def compiled_templates_dir() -> Path | None:
     return packed if packed.is_dir() else None
 
 
+def prepared_packs_dir() -> Path | None:
+    """The shipped rule packs validated when the wheel was built; None in a source checkout."""
+    packed = _PACKAGE / "_data" / "packs_prepared"
+    return packed if packed.is_dir() else None
+
+
 def safe_yaml_loader() -> type[SafeLoader]:
     """PyYAML's safe loader, on libyaml's parser when PyYAML was built with it.
 
