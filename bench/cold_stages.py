@@ -49,7 +49,7 @@ drafter = Drafter()
 settings = drafter.settings
 lap("acid-base settings (rules/acid_base.yaml)")
 pack = drafter.alkalosis_pack
-lap("rule pack: import the engine; read, validate, check, compile")
+lap("rule pack: import the engine; the spec prepared at build time (else the YAML read and checked); compile")
 from notegen.acidbase.calculations import compute_calculations  # noqa: E402
 from notegen.acidbase.reading import read_acid_base  # noqa: E402
 from notegen.workup.alkalosis import evaluate_alkalosis  # noqa: E402

@@ -2,6 +2,7 @@
 
     python bench/run.py            # about two minutes; every figure below comes from this one run
     python bench/run.py --quick    # fewer repeats, for trying a change
+    python bench/run.py --large    # the memory under --output-folder measured at 100,000 cases too (a few minutes more)
 
 Not a test: the figures depend on the machine and on what else it is doing. Cold starts are
 interleaved (floor, note, floor, note, ...) so that a busy moment costs both sides alike, and
@@ -29,6 +30,7 @@ ROOT = BENCH.parent
 sys.path[:0] = [str(BENCH), str(ROOT)]
 
 from cases import generate  # noqa: E402
+from scale import report as scale_report  # noqa: E402
 
 SAMPLE = ROOT / "samples" / "gastric_suction.yaml"
 FLOOR = "import pydantic, jinja2, yaml"
@@ -70,12 +72,19 @@ def _installed(env: dict[str, str]) -> str:
     """Which notegen the commands run: a wheel ships its templates precompiled, a checkout compiles them."""
     code = (
         "import notegen, notegen.resources as r; "
-        "print(notegen.__file__, 'yes' if r.compiled_templates_dir() else 'no (compiled in every process)')"
+        "from notegen.knowledge.packs import load_rule_pack, pack_dirs; "
+        "from notegen.knowledge.prepared_pack import load_prepared_pack; "
+        "ready = load_prepared_pack('alkalosis', pack_dirs('alkalosis')[0], r.prepared_packs_dir()) is not None; "
+        "print(notegen.__file__, 'yes' if ready else 'no', "
+        "'yes' if r.compiled_templates_dir() else 'no (compiled in every process)')"
     )
     output = subprocess.run(
         [sys.executable, "-c", code], env=env, cwd=BENCH, check=True, capture_output=True, text=True
     ).stdout.split()
-    return f"notegen under test: {Path(output[0]).parent}; shipped templates precompiled: {' '.join(output[1:])}"
+    return (
+        f"notegen under test: {Path(output[0]).parent}; shipped rule pack prepared at build time and matching: "
+        f"{output[1]}; shipped templates precompiled: {' '.join(output[2:])}"
+    )
 
 
 def cold_start(runs: int, env: dict[str, str]) -> dict[str, float]:
@@ -237,6 +246,33 @@ print(json.dumps({{"first": first * 1e3, "again": statistics.median(times) * 1e3
     return dict(json.loads(output))
 
 
+_SHIPPED_PACK = """
+import time
+started = time.perf_counter()
+from notegen.knowledge.packs import load_rule_pack
+load_rule_pack("alkalosis")
+print((time.perf_counter() - started) * 1e3)
+"""
+
+
+def shipped_pack_load(env: dict[str, str], runs: int) -> dict[str, float]:
+    """Milliseconds to import the engine and load the shipped pack in a fresh process, as a note does:
+    prepared at build time, and from the YAML (`NOTEGEN_PREPARED_PACK=0`); medians of interleaved runs."""
+    found: dict[str, list[float]] = {"prepared": [], "yaml": []}
+    for _ in range(runs):
+        for name, setting in (("prepared", "1"), ("yaml", "0")):
+            output = subprocess.run(
+                [sys.executable, "-c", _SHIPPED_PACK],
+                env={**env, "NOTEGEN_PREPARED_PACK": setting},
+                cwd=BENCH,
+                check=True,
+                capture_output=True,
+                text=True,
+            ).stdout
+            found[name].append(float(output))
+    return {name: statistics.median(values) for name, values in found.items()}
+
+
 _LAUNCHER = """
 import os, subprocess, sys
 with open(os.devnull, "wb") as sink:
@@ -307,6 +343,7 @@ def scaling(rounds: int) -> dict[str, tuple[int, int, float]]:
 def main(argv: Sequence[str] | None = None) -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="fewer repeats and cases")
+    parser.add_argument("--large", action="store_true", help="memory under --output-folder at 100,000 cases too")
     args = parser.parse_args(argv)
     runs, rounds, count = (15, 2, 500) if args.quick else (21, 5, 2000)
     print(f"notegen benchmark, {datetime.date.today().isoformat()}")
@@ -368,8 +405,14 @@ def main(argv: Sequence[str] | None = None) -> None:
 
         load = pack_load(env, 20)
         print("\nrule pack (read, validate, check, compile):")
+        shipped = shipped_pack_load(env, runs)
         print(
-            f"  first load in a fresh process: {load['first']:.1f} ms; later loads {load['again']:.1f} ms "
+            f"  the shipped pack as a note loads it (engine import included), median of {runs} fresh processes: "
+            f"prepared at build time {shipped['prepared']:.1f} ms, from the YAML {shipped['yaml']:.1f} ms"
+        )
+        print(
+            f"  from the YAML, the first time in that process: {load['first']:.1f} ms; "
+            f"later loads {load['again']:.1f} ms "
             f"(median of 20); acid-base settings {load['settings']:.1f} ms"
         )
 
@@ -383,6 +426,11 @@ def main(argv: Sequence[str] | None = None) -> None:
             rss[size] = peak_rss(path, env)
             print(f"  {size:6,} cases: {rss[size] / 1024:6.1f} MiB")
         print(f"  growth 1,000 -> 10,000: {(rss[10000] - rss[1000]) / 1024:+.1f} MiB")
+
+        memory_sizes = (1000, 10000, 100000) if args.large else (1000, 10000)
+        scale_report(
+            _notegen_command(), env, folder, count=count, runs=3 if args.quick else 5, memory_sizes=memory_sizes
+        )
 
     print("\nscaling, time of one note when a list grows fourfold (4 = linear, 16 = quadratic):")
     for kind, (small, large, ratio) in scaling(rounds + 2).items():

@@ -29,6 +29,17 @@ class NotegenError(Exception):
     def __str__(self) -> str:
         return self.message
 
+    def __reduce__(self) -> tuple[object, ...]:
+        # Rebuilt without the subclass's __init__ (whose arguments are not `args`), so an error crosses
+        # to another process whole: its class, message and fields (`draft --jobs`).
+        return (_rebuilt, (type(self), self.args, self.__dict__))
+
+
+def _rebuilt(kind: type[NotegenError], args: tuple[object, ...], state: dict[str, object]) -> NotegenError:
+    error = kind.__new__(kind, *args)
+    error.__dict__.update(state)
+    return error
+
 
 class InputError(NotegenError):
     """The input (case file, paste, FHIR bundle, --set value) cannot be used."""

@@ -37,3 +37,9 @@ def compiled_templates_dir() -> Path | None:
     """The shipped templates compiled to Python modules when the wheel was built; None in a source checkout."""
     packed = _PACKAGE / "_data" / "templates_compiled"
     return packed if packed.is_dir() else None
+
+
+def prepared_packs_dir() -> Path | None:
+    """The shipped rule packs validated when the wheel was built; None in a source checkout."""
+    packed = _PACKAGE / "_data" / "packs_prepared"
+    return packed if packed.is_dir() else None

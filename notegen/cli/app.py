@@ -134,6 +134,7 @@ def _draft(
     width: int | None = None,
     ascii_only: bool = False,
     window_hours: float = 24.0,
+    jobs: int = 1,
 ) -> int:
     """The body of `notegen draft`, whichever parser read the arguments; returns the exit status.
 
@@ -145,6 +146,8 @@ def _draft(
     if width is not None and not MIN_WIDTH <= width <= MAX_WIDTH:
         raise UsageError(f"--width {width}: give a line width from {MIN_WIDTH} to {MAX_WIDTH}")
     _check_window(window_hours)
+    if jobs < 0:
+        raise UsageError(f"--jobs {jobs}: give a number of processes, or 0 for one per core")
     chosen = format_for(output_format, output)
     check_choices(
         chosen, brief=brief, explain=explain, worksheet=worksheet, width=width, ascii_only=ascii_only, template=template
@@ -168,7 +171,7 @@ def _draft(
             raise UsageError(
                 "--output writes one note; for several cases give --output-folder FOLDER (one note per case)"
             )
-        return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours)
+        return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours, jobs=jobs)
     from notegen.intake.files import MAX_BYTES
     from notegen.intake.read import read_case
 
@@ -282,6 +285,10 @@ def draft(
             show_default=False,
         ),
     ] = 24.0,
+    jobs: Annotated[
+        int, typer.Option("--jobs", "-j", metavar="N", show_default=False,
+                          help="Batch: draft on N processes (0: one per core; default 1).")
+    ] = 1,
 ) -> None:
     """Draft the assessment section for a case and print it.
 
@@ -306,6 +313,7 @@ def draft(
             width=width,
             ascii_only=ascii_only,
             window_hours=window_hours,
+            jobs=jobs,
         )
     )
     _exit_on_failure(code)

@@ -4,9 +4,10 @@ Rules, vocabularies and templates are loaded once by the `Drafter`. A bad case i
 reported on stderr with its message and the others are still drafted; the exit status
 is non-zero at the end when any case was rejected. Notes are written to a temporary
 file and renamed, so a partial note is never left behind, and two cases never write
-to the same note file in one run. Cases are read, drafted and written one at a time, so
-memory does not grow with the number of cases; on a terminal, a progress line is kept
-on standard error.
+to the same note file in one run (checked on the file system, `notegen.cli.outputs`). Cases are
+read, drafted and written one at a time, so memory does not grow with the number of cases; on a
+terminal, a progress line is kept on standard error. With `--jobs N` worker processes draft the
+cases (`notegen.cli.parallel`) and this process still writes, counts and reports each, in order.
 """
 
 from __future__ import annotations
@@ -14,11 +15,11 @@ from __future__ import annotations
 import os
 import sys
 import tempfile
-import time
 from collections.abc import Callable, Iterable, Iterator
+from contextlib import closing
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import BinaryIO, TextIO
+from typing import TYPE_CHECKING, BinaryIO, TextIO
 
 from notegen.case.validation import validate_case
 from notegen.cli.batch_results import (
@@ -27,17 +28,22 @@ from notegen.cli.batch_results import (
     Stopped,
     case_label_of,
     error_line,
+    file_id,
     quiet_stdout,
     refuse_out_folder_over_inputs,
     remove_stale_note,
     result_line,
-    same_file,
     signals_held,
     stop_on_sigterm,
 )
+from notegen.cli.progress import Progress as _Progress
 from notegen.errors import CaseFileError, InputError, NotegenError, UsageError, printable
 from notegen.intake.files import MAX_BYTES, parse_json
 from notegen.pipeline import Drafter, DraftOptions
+
+if TYPE_CHECKING:
+    from notegen.cli.outputs import NoteFolder
+    from notegen.cli.parallel import Outcome
 
 CASE_SUFFIXES = (".yaml", ".yml", ".json")
 _EXTENSIONS = {"markdown": ".md", "text": ".txt", "html": ".html", "json": ".json"}
@@ -164,48 +170,6 @@ def _jsonl_cases(sources: list[str], stdin: BinaryIO) -> Iterator[tuple[BatchInp
                 stream.close()
 
 
-class _Progress:
-    """A one-line count on standard error, drawn only when it is a terminal, at most ten times a second."""
-
-    WIDTH = 30
-
-    def __init__(self, stream: TextIO, total: int | None) -> None:
-        self.stream = stream
-        self.total = total
-        self.enabled = _is_terminal(stream)
-        self.drawn = 0  # length of the line on screen, 0 when none
-        self.last = 0.0
-
-    def update(self, done: int) -> None:
-        if not self.enabled:
-            return
-        now = time.monotonic()
-        if now - self.last < 0.1 and done != self.total:
-            return
-        self.last = now
-        if self.total:
-            filled = self.WIDTH * done // self.total
-            text = f"notegen: drafting [{'#' * filled}{'.' * (self.WIDTH - filled)}] {done}/{self.total}"
-        else:
-            text = f"notegen: drafting, {done} done"
-        self.stream.write("\r" + text.ljust(self.drawn))
-        self.stream.flush()
-        self.drawn = len(text)
-
-    def clear(self) -> None:
-        """Wipe the line, so a message or the summary starts at the left margin."""
-        if self.drawn:
-            self.stream.write("\r" + " " * self.drawn + "\r")
-            self.drawn = 0
-
-
-def _is_terminal(stream: TextIO) -> bool:
-    try:
-        return stream.isatty()
-    except (AttributeError, ValueError):  # no isatty, or a closed stream
-        return False
-
-
 def _note_header(source: str, case_label: str | None, options: DraftOptions) -> str:
     """The line that opens one of several notes written to standard output: its input, and its case label."""
     from notegen.render.ascii_fold import fold_to_ascii
@@ -241,9 +205,11 @@ class _Batch:
     errors: TextIO
     inputs: frozenset[Path] = frozenset()
     counts: Counts = field(default_factory=Counts)
-    written: dict[Path, str] = field(default_factory=dict)
+    notes: NoteFolder | None = None  # this run's claims on note names, on disk (memory stays constant)
     stdin_bytes: bytes | None = None
     progress: _Progress | None = None
+    current: BatchInput | None = None  # the case being settled, for the summary of a stopped run
+    input_ids: frozenset[tuple[int, int] | None] | None = None  # the inputs' identities, read when first needed
 
     @property
     def single_line(self) -> bool:  # JSON Lines on standard output: one result per input
@@ -276,32 +242,90 @@ class _Batch:
         return self.drafter.draft(case, self.options), case.label
 
     def check_target(self, where: BatchInput, target: Path) -> None:
-        if target in self.written:
-            raise InputError(f"{where.label}: its note would overwrite the note of {self.written[target]} "
-                             f"({target.name}); rename one of the two cases")
-        if any(same_file(target, source) for source in self.inputs):
+        """Claim the note's name for this case; InputError if it is an input or another case's note."""
+        if self.is_input(target):
             raise InputError(f"{where.label}: its note {target} would overwrite an input file; "
                              "choose another --output-folder")
+        if self.notes is not None:
+            self.notes.claim(target.name, where.label)
+
+    def is_input(self, target: Path) -> bool:
+        """Whether `target` is one of the inputs: one lookup per case, not one comparison per input."""
+        found = file_id(target)
+        if found is None:
+            return False  # no such file yet: nothing to overwrite
+        if self.input_ids is None:
+            self.input_ids = frozenset(file_id(source) for source in self.inputs)
+        return found in self.input_ids
+
+    def written(self, target: Path) -> bool:
+        """Whether a case of this run has written (or is writing) the note at `target`."""
+        return self.notes is not None and self.notes.claimed(target.name)
+
+    def blank(self, where: BatchInput) -> None:
+        self.counts.blank += 1
+        if self.single_line:
+            self.write(error_line(InputError(f"{where.label}: the line is empty; no case"), where, None))
+        self.clear_stale(self.target(where))  # an earlier run's note for this line is not this run's
+
+    def run(self, items: Iterator[tuple[BatchInput, object]], workers: int) -> None:
+        """Settle every case in input order, drafted here (one job) or by `workers` processes."""
+        from notegen.cli.parallel import Job, in_order
+
+        if workers <= 1:
+            for where, payload in items:
+                self.started(where)
+                self.one(where, payload)
+                self.current = None
+            return
+        job = Job(self.drafter.rules_dirs, self.drafter.template, self.options, self.jsonl, self.single_line,
+                  self.window_hours)
+        with closing(in_order(items, job, workers, blank=_BLANK)) as outcomes:  # the pool stops however this ends
+            for (where, label), outcome in outcomes:
+                self.started(where)
+                self.drafted(where, label, outcome)
+                self.current = None
+
+    def started(self, where: BatchInput) -> None:
+        if self.progress is not None:
+            self.progress.update(self.counts.done)
+        self.current = where
 
     def one(self, where: BatchInput, payload: object) -> None:
-        """Draft one case and write its note, or report why not; only a stop (Ctrl-C, SIGTERM) escapes."""
+        """Draft one case here and write its note, or report why not; only a stop (Ctrl-C, SIGTERM) escapes."""
         if payload is _BLANK:
-            self.counts.blank += 1
-            if self.single_line:
-                self.write(error_line(InputError(f"{where.label}: the line is empty; no case"), where, None))
-            self.clear_stale(self.target(where))  # an earlier run's note for this line is not this run's
+            self.blank(where)
             return
+        self.settle(where, case_label_of(payload), lambda: self.draft(where, payload))
+
+    def drafted(self, where: BatchInput, label: str | None, outcome: Outcome | None) -> None:
+        """Write or report a case a worker drafted (`--jobs`); None is a blank line's place."""
+        from notegen.cli.parallel import Drafted
+
+        def opened() -> tuple[str, str | None]:
+            if isinstance(outcome, Drafted):
+                return outcome.note, outcome.case_label
+            raise outcome  # type: ignore[misc]  # a refusal or an error, raised here as in one process
+
+        if outcome is None:
+            return self.blank(where)
+        self.settle(where, label, opened)
+
+    def settle(self, where: BatchInput, label: str | None, draft: Callable[[], tuple[str, str | None]]) -> None:
+        """Take one case's note from `draft` and write it, or report why not; only a stop escapes."""
         target = self.target(where)
-        label = case_label_of(payload)
         try:
-            note, label = self.draft(where, payload)
+            note, label = draft()
             if target is not None:
                 self.check_target(where, target)
                 try:
                     write_atomically(target, note)
-                except (UsageError, OSError, UnicodeError) as exc:
-                    raise _NotWritten(f"{where.label}: drafted, but {exc}") from None
-                self.written[target] = where.label
+                except BaseException as exc:
+                    if self.notes is not None:
+                        self.notes.release(target.name)  # not written: its name is free, its stale note goes
+                    if isinstance(exc, UsageError | OSError | UnicodeError):
+                        raise _NotWritten(f"{where.label}: drafted, but {exc}") from None
+                    raise
             else:
                 self.emit(where, note, label)
         except NotegenError as error:
@@ -330,11 +354,11 @@ class _Batch:
         self.say(str(error))
         if self.single_line:
             self.write(error_line(error, where, label))
-        if target is not None and target not in self.written:
+        if target is not None and not self.written(target):
             self.clear_stale(target)
 
     def clear_stale(self, target: Path | None) -> None:
-        if target is not None and self.written.get(target) is None:
+        if target is not None and not self.written(target):
             said = remove_stale_note(target, self.inputs)
             if said is not None:
                 self.say(said)
@@ -365,14 +389,20 @@ def run_batch(
     jsonl: bool,
     window_hours: float,
     stderr: TextIO | None = None,
+    jobs: int = 1,
 ) -> int:
     """Draft every case; return the exit status (0 all drafted, 2 some rejected or not written, 1 some failed
     unexpectedly, 130 stopped by Ctrl-C or SIGTERM).
 
     Messages, the progress line (when `stderr` is a terminal) and the summary go to `stderr`,
-    standard error by default. The summary is printed however the run ends.
+    standard error by default. The summary is printed however the run ends. `jobs` > 1 drafts on that
+    many worker processes (0: one per core); each case is still written and reported here, in input order.
     """
+    from notegen.cli.outputs import NoteFolder
+    from notegen.cli.parallel import job_count
+
     errors = stderr if stderr is not None else sys.stderr
+    workers = job_count(jobs)
     extension = _EXTENSIONS[options.output_format]
     if out_dir is None and options.output_format == "html":
         raise UsageError("several HTML notes need --output-folder FOLDER: each note is a page of its own")
@@ -395,14 +425,10 @@ def run_batch(
         progress = _Progress(errors, len(files))
     batch.progress = progress
     stopped: tuple[str, int] | None = None  # why, and the exit status
-    current: BatchInput | None = None
+    batch.notes = NoteFolder(out_dir).__enter__() if out_dir is not None else None
     try:
         with stop_on_sigterm():
-            for where, payload in items:
-                progress.update(batch.counts.done)
-                current = where
-                batch.one(where, payload)
-                current = None
+            batch.run(items, workers)
     except KeyboardInterrupt:
         stopped = ("interrupted", 130)
     except Stopped:
@@ -411,6 +437,9 @@ def run_batch(
         stopped = ("standard output was closed", 141)
         quiet_stdout()
     finally:
+        current = batch.current
+        if batch.notes is not None:
+            batch.notes.close()  # this run's markers go
         progress.clear()
         summary = batch.counts.summary()
         if stopped is not None:

@@ -69,6 +69,15 @@ def case_label_of(payload: object) -> str | None:
     return None
 
 
+def file_id(path: Path) -> tuple[int, int] | None:
+    """The file's (device, inode), what `os.path.samefile` compares; None when it cannot be read."""
+    try:
+        found = path.stat()
+    except OSError:
+        return None
+    return found.st_dev, found.st_ino
+
+
 def same_file(one: Path, other: Path) -> bool:
     try:
         return os.path.samefile(one, other)

@@ -31,6 +31,8 @@ _VALUES = {
     "--template": "template",
     "--width": "width",
     "--window-hours": "window_hours",
+    "--jobs": "jobs",
+    "-j": "jobs",
 }
 _REPEATED = {"--set": "assignments", "--rules": "rules"}
 _PATHS = ("output", "out_dir", "template")
@@ -82,6 +84,10 @@ def plain_draft_arguments(argv: Sequence[str]) -> dict[str, Any] | None:
         if not _WHOLE_NUMBER.fullmatch(found["width"]):
             return None  # the range is checked by `_draft`, whichever parser read it
         found["width"] = int(found["width"])
+    if "jobs" in found:
+        if not _WHOLE_NUMBER.fullmatch(found["jobs"]):
+            return None  # a negative count is left to typer, which refuses it
+        found["jobs"] = int(found["jobs"])
     if "window_hours" in found:
         if not _DECIMAL.fullmatch(found["window_hours"]):
             return None

@@ -6,6 +6,10 @@ nesting deeper than `MAX_DEPTH`, more than `MAX_YAML_NODES` values, tags that bu
 anything but plain data, and numbers YAML 1.1 would read other than as written (`0140`
 is octal 96, `1:30` is base-60 90). JSON is read with duplicate keys refused too. Every
 error names the file, and the line and column where the parser knows them.
+
+When PyYAML has libyaml, a YAML case file is parsed and composed by libyaml first, with the same
+constructors and the same limits checked on the composed tree; anything libyaml refuses, or that
+breaks a limit, is read again by the pure-Python reader, so every refusal keeps its one message.
 """
 
 from __future__ import annotations
@@ -33,44 +37,16 @@ _PLAIN_FLOAT = re.compile(
 _DATA_ONLY_TAGS = ("binary", "set", "omap", "pairs")
 
 
-class _CaseLoader(yaml.SafeLoader):
-    """SafeLoader without aliases or duplicate keys, with a depth limit."""
+class _CaseConstructor(yaml.constructor.SafeConstructor):
+    """The safe constructors, refusing duplicate keys, tags and numbers YAML 1.1 would misread.
+
+    Shared by both readers below: the pure-Python one and libyaml's.
+    """
 
     _filename: str = "<input>"
-    _depth: int = 0
-    _nodes: int = 0
 
     def _error(self, message: str, mark: yaml.Mark) -> CaseFileError:
         return CaseFileError(message, filename=self._filename, line=mark.line + 1, column=mark.column + 1)
-
-    def compose_node(self, parent: yaml.Node | None, index: int) -> yaml.Node | None:
-        if self.check_event(yaml.AliasEvent):
-            event = self.peek_event()  # type: ignore[no-untyped-call]
-            raise CaseFileError(
-                "YAML aliases (*name) are not allowed in a case file; write the value out",
-                filename=self._filename,
-                line=event.start_mark.line + 1,
-                column=event.start_mark.column + 1,
-            )
-        self._nodes += 1
-        if self._nodes > MAX_YAML_NODES:
-            mark = self.peek_event().start_mark  # type: ignore[no-untyped-call]
-            raise self._error(
-                f"holds more than {MAX_YAML_NODES:,} values; a case file holds at most a few hundred", mark
-            )
-        self._depth += 1
-        if self._depth > MAX_DEPTH:
-            mark = self.peek_event().start_mark  # type: ignore[no-untyped-call]
-            raise CaseFileError(
-                f"nested more than {MAX_DEPTH} levels deep; a case file is at most a few levels",
-                filename=self._filename,
-                line=mark.line + 1,
-                column=mark.column + 1,
-            )
-        try:
-            return super().compose_node(parent, index)
-        finally:
-            self._depth -= 1
 
     def construct_object(self, node: yaml.Node, deep: bool = False) -> Any:
         try:
@@ -150,13 +126,136 @@ class _CaseLoader(yaml.SafeLoader):
         return super().construct_mapping(node, deep=deep)
 
 
-_CaseLoader.add_constructor("tag:yaml.org,2002:int", _CaseLoader.construct_plain_int)
-_CaseLoader.add_constructor("tag:yaml.org,2002:float", _CaseLoader.construct_plain_float)
-_CaseLoader.add_constructor("tag:yaml.org,2002:merge", _CaseLoader.refuse_merge_key)
+_add: Any = _CaseConstructor.add_constructor  # typed for loaders; this class is a loader's constructor half
+_add("tag:yaml.org,2002:int", _CaseConstructor.construct_plain_int)
+_add("tag:yaml.org,2002:float", _CaseConstructor.construct_plain_float)
+_add("tag:yaml.org,2002:merge", _CaseConstructor.refuse_merge_key)
 # `=` alone resolves to YAML's "value" tag; in a case file it is just the text "="
-_CaseLoader.add_constructor("tag:yaml.org,2002:value", _CaseLoader.construct_value_as_text)
+_add("tag:yaml.org,2002:value", _CaseConstructor.construct_value_as_text)
 for _tag in _DATA_ONLY_TAGS:  # bytes, sets and ordered pairs are never case data
-    _CaseLoader.add_constructor(f"tag:yaml.org,2002:{_tag}", _CaseLoader.refuse_tag)
+    _add(f"tag:yaml.org,2002:{_tag}", _CaseConstructor.refuse_tag)
+
+
+class _CaseLoader(
+    yaml.reader.Reader,
+    yaml.scanner.Scanner,
+    yaml.parser.Parser,
+    yaml.composer.Composer,
+    _CaseConstructor,
+    yaml.resolver.Resolver,
+):
+    """The pure-Python reader: SafeLoader without aliases, with depth and size limits, checked as it composes.
+
+    Its messages are the reference: whatever libyaml's reader below refuses is read again here.
+    """
+
+    _depth: int = 0
+    _nodes: int = 0
+
+    def __init__(self, stream: str) -> None:
+        yaml.reader.Reader.__init__(self, stream)
+        yaml.scanner.Scanner.__init__(self)
+        yaml.parser.Parser.__init__(self)
+        yaml.composer.Composer.__init__(self)
+        _CaseConstructor.__init__(self)
+        yaml.resolver.Resolver.__init__(self)
+
+    def compose_node(self, parent: yaml.Node | None, index: int) -> yaml.Node | None:
+        if self.check_event(yaml.AliasEvent):
+            event = self.peek_event()  # type: ignore[no-untyped-call]
+            raise CaseFileError(
+                "YAML aliases (*name) are not allowed in a case file; write the value out",
+                filename=self._filename,
+                line=event.start_mark.line + 1,
+                column=event.start_mark.column + 1,
+            )
+        self._nodes += 1
+        if self._nodes > MAX_YAML_NODES:
+            mark = self.peek_event().start_mark  # type: ignore[no-untyped-call]
+            raise self._error(
+                f"holds more than {MAX_YAML_NODES:,} values; a case file holds at most a few hundred", mark
+            )
+        self._depth += 1
+        if self._depth > MAX_DEPTH:
+            mark = self.peek_event().start_mark  # type: ignore[no-untyped-call]
+            raise CaseFileError(
+                f"nested more than {MAX_DEPTH} levels deep; a case file is at most a few levels",
+                filename=self._filename,
+                line=mark.line + 1,
+                column=mark.column + 1,
+            )
+        try:
+            return super().compose_node(parent, index)
+        finally:
+            self._depth -= 1
+
+
+_CParser: Any = yaml.cyaml.CParser if yaml.__with_libyaml__ else None  # type: ignore[attr-defined]
+
+
+def _libyaml_loader() -> type[_CaseConstructor] | None:
+    if _CParser is None:
+        return None
+
+    class _CCaseLoader(_CParser, _CaseConstructor, yaml.resolver.Resolver):  # type: ignore[misc]
+        """libyaml's parser and composer with the same constructors; the limits are checked on its node tree."""
+
+        def __init__(self, stream: str) -> None:
+            _CParser.__init__(self, stream)
+            _CaseConstructor.__init__(self)
+            yaml.resolver.Resolver.__init__(self)
+
+    return _CCaseLoader
+
+
+# libyaml reads a case file several times faster than the pure-Python reader. It is used to accept:
+# anything it refuses, or that breaks a limit, is read again by `_CaseLoader`, whose messages (and
+# line numbers) are the ones reported, so both readers refuse with the same words. Set to None to
+# read with the pure-Python reader alone (the tests run the hostile corpus both ways).
+FAST_LOADER: type[_CaseConstructor] | None = _libyaml_loader()
+
+
+class _Refused(Exception):
+    """libyaml's reading broke a limit or failed: read the text again with the reference reader."""
+
+
+def _within_limits(root: yaml.Node) -> bool:
+    """The limits `_CaseLoader.compose_node` checks, on a composed tree: no alias, depth, number of values.
+
+    libyaml's composer hands back the anchored node again for an alias, so a node met twice is an alias.
+    libyaml itself stops at 1,000 levels of nesting, before this walk could recurse deeply.
+    """
+    seen: set[int] = set()
+    stack: list[tuple[yaml.Node, int]] = [(root, 1)]
+    while stack:
+        node, depth = stack.pop()
+        if depth > MAX_DEPTH or id(node) in seen or len(seen) >= MAX_YAML_NODES:
+            return False
+        seen.add(id(node))
+        if isinstance(node, yaml.MappingNode):
+            stack.extend((child, depth + 1) for pair in node.value for child in pair)
+        elif isinstance(node, yaml.SequenceNode):
+            stack.extend((child, depth + 1) for child in node.value)
+    return True
+
+
+def _parse_with_libyaml(loader_class: type[_CaseConstructor], text: str, filename: str) -> Any:
+    try:
+        loader = loader_class(text)  # type: ignore[call-arg]
+    except (yaml.YAMLError, ValueError) as exc:
+        raise _Refused from exc
+    loader._filename = filename
+    try:
+        node = loader.get_single_node()  # type: ignore[attr-defined]
+        if node is None:
+            return None
+        if not _within_limits(node):
+            raise _Refused
+        return loader.construct_document(node)
+    except (yaml.YAMLError, CaseFileError, ValueError) as exc:
+        raise _Refused from exc
+    finally:
+        loader.dispose()  # type: ignore[attr-defined]
 
 
 def _make_loader(text: str, filename: str) -> _CaseLoader:
@@ -180,6 +279,11 @@ def parse_yaml(text: str, filename: str) -> Any:
             "a case file is a few kilobytes",
             filename=filename,
         )
+    if FAST_LOADER is not None:
+        try:
+            return _parse_with_libyaml(FAST_LOADER, text, filename)
+        except _Refused:
+            pass  # read again below: its message is the one reported
     try:
         # the reader checks every character when it is built, so this belongs inside the `try`
         loader = _make_loader(text, filename)

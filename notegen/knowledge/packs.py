@@ -21,10 +21,22 @@ def pack_dirs(name: str, rules_dirs: Sequence[Path] = ()) -> list[Path]:
 
 
 def load_rule_pack(name: str, rules_dirs: Sequence[Path] = ()) -> RulePack:
-    """Load pack `name` with any service folders laid over it; `RulePackError` lists every problem."""
+    """Load pack `name` with any service folders laid over it; `RulePackError` lists every problem.
+
+    The shipped pack alone comes from the spec validated when the wheel was built, while it matches
+    (`prepared_pack`); with a service's folder laid over it, or without a match, from the YAML.
+    """
     from notegen.engine import load_pack
 
-    return load_pack(pack_dirs(name, rules_dirs))
+    dirs = pack_dirs(name, rules_dirs)
+    if len(dirs) == 1:
+        from notegen.knowledge.prepared_pack import load_prepared_pack
+        from notegen.resources import prepared_packs_dir
+
+        pack = load_prepared_pack(name, dirs[0], prepared_packs_dir())
+        if pack is not None:
+            return pack
+    return load_pack(dirs)
 
 
 def check_rule_pack(name: str, rules_dirs: Sequence[Path] = ()) -> list[Problem]:
