@@ -43,9 +43,8 @@ def test_brief_note_is_shorter() -> None:
     assert len(notegen.draft(path, brief=True).markdown) < len(notegen.draft(path).markdown)
 
 
-def test_a_drafter_drafts_many_cases_with_one_load() -> None:
-    drafter = notegen.Drafter()
-    notes = [drafter.note(p) for p in sorted(SAMPLES.glob("*.yaml"))[:3]]
+def test_a_drafter_drafts_many_cases_with_one_load(drafter: notegen.Drafter, samples_dir: Path) -> None:
+    notes = [drafter.note(p) for p in sorted(samples_dir.glob("*.yaml"))[:3]]
     assert all(n.markdown for n in notes)
 
 

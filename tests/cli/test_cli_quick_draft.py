@@ -11,7 +11,7 @@ from typer.testing import CliRunner
 
 from notegen.cli.app import _plain_draft_arguments, app, main
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLE = str(ROOT / "samples" / "gastric_suction.yaml")
 OTHER = str(ROOT / "samples" / "thiazide_and_vomiting.yaml")
 runner = CliRunner()

@@ -11,8 +11,8 @@ from typer.testing import CliRunner
 from notegen.cli.app import app, main
 
 runner = CliRunner()
-SAMPLE = str(Path(__file__).resolve().parent.parent / "samples" / "gastric_suction.yaml")
-OTHER = str(Path(__file__).resolve().parent.parent / "samples" / "thiazide_and_vomiting.yaml")
+SAMPLE = str(Path(__file__).resolve().parents[2] / "samples" / "gastric_suction.yaml")
+OTHER = str(Path(__file__).resolve().parents[2] / "samples" / "thiazide_and_vomiting.yaml")
 
 
 @pytest.mark.parametrize(

@@ -19,7 +19,7 @@ from notegen.knowledge.prepared_pack import MANIFEST, SHIPPED_PACKS, load_prepar
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.resources import rules_dir
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 CLOSURES = {"test"}  # compiled condition closures: equal in behaviour, never `==`
 

@@ -19,7 +19,7 @@ import test_hostile
 from notegen.errors import CaseFileError
 from notegen.intake import files
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 YAML_FILES = sorted(
     [*(ROOT / "samples").glob("*.yaml"), *(ROOT / "tests" / "bad_inputs").glob("*.yaml")]
     + list((ROOT / "tests" / "fixtures").rglob("*.yaml"))

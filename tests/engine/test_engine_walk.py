@@ -12,7 +12,7 @@ from notegen.engine import MissingFact, NumberFact, Truth, load_pack, walk
 from notegen.engine.program import RulePack
 from notegen.errors import NotegenError
 
-PACKS = Path(__file__).parent / "fixtures" / "packs"
+PACKS = Path(__file__).resolve().parents[1] / "fixtures" / "packs"
 PLANTS = load_pack([PACKS / "plants"])
 SERVICE = load_pack([PACKS / "plants", PACKS / "plants_service"])
 

@@ -20,7 +20,7 @@ from notegen.errors import InputError
 from notegen.intake.fhir import looks_like_fhir, read_fhir
 from notegen.knowledge import shipped_knowledge
 
-FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
+FIXTURES = Path(__file__).resolve().parents[1] / "fixtures" / "inputs"
 
 
 def load(name: str) -> dict[str, Any]:
@@ -200,7 +200,7 @@ def test_every_code_says_where_it_was_checked() -> None:
 def test_importing_the_reader_does_not_import_fhir_resources() -> None:
     code = "import sys, notegen.intake.fhir, notegen.intake; print('fhir.resources' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True,
-                         cwd=Path(__file__).parent.parent)
+                         cwd=Path(__file__).resolve().parents[2])
     assert out.stdout.strip() == "False"
 
 

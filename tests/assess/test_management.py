@@ -25,7 +25,7 @@ from notegen.assess.model import Assessment
 from notegen.intake.read import read_case
 from notegen.pipeline import Drafter
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 
 
 def sample(name: str) -> Callable[[], Assessment]:
@@ -452,7 +452,7 @@ def test_every_consideration_names_its_source() -> None:
 def test_the_shipped_samples_print_no_order() -> None:
     from notegen.intake.read import read_case
 
-    samples = Path(__file__).resolve().parent.parent / "samples"
+    samples = Path(__file__).resolve().parents[2] / "samples"
     for path in sorted(samples.glob("*.yaml")):
         for text in Drafter().assess(read_case(str(path))).management:
             # Lab values fill some sentences ("calcium 11.2 mg/dL"), so only orders are checked here;

@@ -9,7 +9,7 @@ import pytest
 from notegen.errors import PasteError
 from notegen.intake.paste import parse_paste
 
-FIXTURES = Path(__file__).parent / "fixtures" / "inputs"
+FIXTURES = Path(__file__).resolve().parents[1] / "fixtures" / "inputs"
 
 
 def read(name: str) -> str:

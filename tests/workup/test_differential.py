@@ -371,7 +371,7 @@ def test_volume_contraction_needs_evidence() -> None:
     assert "volume_contraction" in factors(urine_cl=12, volume="normal")
 
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 # The causes a nephrologist would name first for each invented sample; None: no alkalosis differential.
 SAMPLE_LEADS: dict[str, set[str] | None] = {
     "thiazide_and_vomiting": {"gastric_loss", "diuretic"},

@@ -11,7 +11,7 @@ from notegen.cli.app import app
 from notegen.knowledge import Knowledge, shipped_knowledge
 from notegen.pipeline import Drafter
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 CASE = SAMPLES / "thiazide_and_vomiting.yaml"
 
 

@@ -16,7 +16,7 @@ from notegen.errors import TemplateError
 from notegen.render import make_environment, render_template
 from notegen.render import template_budget as budget
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLE = ROOT / "samples" / "thiazide_and_vomiting.yaml"
 runner = CliRunner()
 

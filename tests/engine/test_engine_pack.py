@@ -9,7 +9,7 @@ import pytest
 from notegen.engine import check_pack, load_pack
 from notegen.errors import RulePackError
 
-PACKS = Path(__file__).parent / "fixtures" / "packs"
+PACKS = Path(__file__).resolve().parents[1] / "fixtures" / "packs"
 PLANTS = PACKS / "plants"
 SERVICE = PACKS / "plants_service"
 BROKEN = PACKS / "broken"

@@ -7,7 +7,7 @@ import subprocess
 import sys
 from pathlib import Path
 
-SAMPLE = str(Path(__file__).resolve().parent.parent / "samples" / "gastric_suction.yaml")
+SAMPLE = str(Path(__file__).resolve().parents[2] / "samples" / "gastric_suction.yaml")
 REPORT = "print('plugins:', os.environ.get('PYDANTIC_DISABLE_PLUGINS'), file=sys.stderr)\n"
 
 

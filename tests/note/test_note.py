@@ -18,7 +18,7 @@ from notegen.note.writer import complete_assessment, note_context, render_markdo
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.workup.model import CauseEntry, Evidence, FactorEntry, SuggestedTest, TraceEntry
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 FORMATS = ("markdown", "text", "html", "json")
 
 

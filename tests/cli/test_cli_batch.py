@@ -13,7 +13,7 @@ from notegen.cli.app import app
 from notegen.cli.batch import run_batch
 from notegen.pipeline import Drafter, DraftOptions
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 GASTRIC = ROOT / "samples" / "gastric_suction.yaml"
 THIAZIDE = ROOT / "samples" / "thiazide_and_vomiting.yaml"

@@ -19,7 +19,7 @@ from notegen.cli.outputs import NoteFolder
 from notegen.cli.parallel import job_count
 from notegen.errors import InputError, UsageError
 
-ROOT = Path(__file__).parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 runner = CliRunner()
 GOOD = "case: good\ngas: {sample: arterial, ph: 7.49, pco2: 48, hco3: 36}\nchem: {na: 136, k: 3.2, cl: 91}\n"

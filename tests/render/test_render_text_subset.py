@@ -27,7 +27,7 @@ from notegen.render import escape_markdown
 from notegen.render._subset import parse_note_markdown
 from notegen.render.text import MarkdownNode, blocks_to_text, markdown_it_blocks, markdown_to_text
 
-ROOT = Path(__file__).resolve().parents[1]
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 SERVICE = ROOT / "samples" / "service"
 WIDTHS = (30, 80, 200)

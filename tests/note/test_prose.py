@@ -22,7 +22,7 @@ from notegen.note.paragraph import draft_paragraph
 from notegen.pipeline import Drafter
 from notegen.workup.model import CauseEntry, Evidence, FactorEntry, SuggestedTest
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 
 
 @cache

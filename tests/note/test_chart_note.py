@@ -21,7 +21,7 @@ from notegen.intake.read import read_case
 from notegen.knowledge import shipped_knowledge
 from notegen.pipeline import Drafter, DraftOptions
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
 FHIR_BUNDLE = ROOT / "samples" / "fhir_bundle.json"
 PASTED = ROOT / "samples" / "pasted_labs.txt"

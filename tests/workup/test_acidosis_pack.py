@@ -330,7 +330,7 @@ def test_a_service_overlay_changes_a_threshold_in_the_drafted_note(tmp_path: Any
 def test_the_sample_service_overlay_reads_a_lower_urine_osmolal_gap_as_adequate() -> None:
     from pathlib import Path
 
-    service = Path(__file__).resolve().parent.parent / "samples" / "service"
+    service = Path(__file__).resolve().parents[2] / "samples" / "service"
     # Urine osmolal gap 500 - (2 x (50 + 30) + 616/2.8) = 120 mOsm/kg: below the shipped 150, above the service's 100.
     data = case_with(NORMAL_GAP, urine={**URINE_POSITIVE_GAP, "osm": 500, "urea_nitrogen": 616})
     shipped = DRAFTER.assess(read_case_data({"units": "conventional", **data})).acidosis

@@ -8,7 +8,7 @@ from notegen.intake.read import read_case
 from notegen.note.writer import complete_assessment, note_context
 from notegen.pipeline import Drafter, DraftOptions
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 
 
 def test_context_without_the_dump_is_the_same_otherwise() -> None:

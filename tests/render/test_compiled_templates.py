@@ -24,7 +24,7 @@ from notegen.render.template_build import compile_templates
 from notegen.render.templating import shipped_environment
 from notegen.resources import compiled_templates_dir, rules_dir, templates_dir
 
-SAMPLES = sorted((Path(__file__).resolve().parent.parent / "samples").glob("*.yaml"))
+SAMPLES = sorted((Path(__file__).resolve().parents[2] / "samples").glob("*.yaml"))
 OPTIONS = {"note": DraftOptions(), "explain": DraftOptions(explain=True), "brief": DraftOptions(brief=True)}
 
 

@@ -17,7 +17,7 @@ from notegen.errors import CaseValueError, InputError
 from notegen.intake.paste import parse_paste
 from notegen.intake.read import read_case
 
-CORPUS = Path(__file__).parent / "paste_corpus"
+CORPUS = Path(__file__).resolve().parents[1] / "paste_corpus"
 PRINTOUTS = sorted(CORPUS.glob("*.txt"))
 
 

@@ -23,7 +23,7 @@ from notegen.note.paragraph import draft_paragraph
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.schemas import output_schema
 
-SAMPLES = Path(__file__).resolve().parent.parent / "samples"
+SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 DRAFTER = Drafter()
 
 

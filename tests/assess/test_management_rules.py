@@ -53,7 +53,7 @@ def test_a_service_folder_replaces_by_id_and_adds(tmp_path: Path) -> None:
 
 
 def test_the_example_service_folder_adds_its_consideration_where_it_applies() -> None:
-    service = Path(__file__).resolve().parent.parent / "samples" / "service"
+    service = Path(__file__).resolve().parents[2] / "samples" / "service"
     assert check_rule_folders((service,)) == []
     low = management_considerations(assess(case(chem=LOW_K)), rules_dirs=[service])
     assert low[-1].startswith("Our ward potassium protocol")
