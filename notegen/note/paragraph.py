@@ -51,7 +51,12 @@ def draft_paragraph(assessment: Assessment, *, name_next_tests: bool = True) -> 
     sentences += _consistency(reading)
     primary, gap_said = _primary(reading, said, assessment.calculations.get("expected_pco2"))
     sentences += primary
-    sentences += _anion_gap(reading, said, gap_said)
+    # a gap input reported only as a bound ("<10") leaves the gap uncomputed, and the sentence says why
+    bounded = any(
+        m.qualifier is not None and m.field in ("chem.na", "chem.cl", "chem.tco2", "gas.hco3")
+        for m in assessment.case.measurements
+    )
+    sentences += _anion_gap(reading, said, gap_said, bounded)
     sentences += _other_disorders(reading, said)
     sentences += alkalosis_sentences(assessment)
     sentences += acidosis_sentences(assessment)  # the acidosis work-up, after the alkalosis one
@@ -289,17 +294,21 @@ def _gap_used(reading: AcidBaseReading) -> tuple[float | None, str]:
     return reading.anion_gap, ""
 
 
-def _anion_gap(reading: AcidBaseReading, said: set[str], gap_said: bool) -> list[str]:
+def _anion_gap(
+    reading: AcidBaseReading, said: set[str], gap_said: bool, bounded: bool = False
+) -> list[str]:
     metabolic = {"metabolic_alkalosis", "metabolic_acidosis"}
     relevant = bool(metabolic & {*reading.disorders, *reading.possible_disorders, reading.primary})
     used, adjective = _gap_used(reading)
     sentences: list[str] = []
     if used is None or reading.anion_gap_status is None:
         if relevant and reading.hco3 is not None:
-            sentences.append("The anion gap cannot be calculated without exact sodium and chloride values.")
+            exact = "exact " if bounded else ""
+            sentences.append(f"The anion gap cannot be calculated without {exact}sodium and chloride values.")
         elif relevant:
+            exact = "exact " if bounded else ""
             sentences.append(
-                "The anion gap cannot be calculated without exact sodium, chloride and bicarbonate values."
+                f"The anion gap cannot be calculated without {exact}sodium, chloride and bicarbonate values."
             )
         return sentences
     reference = span(*reading.anion_gap_reference, "mmol/L")

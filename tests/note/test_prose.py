@@ -679,3 +679,14 @@ def test_within_above_and_below_say_what_the_numbers_say(ph: float, pco2: float,
         else:
             assert measured < float(low) + 0.051, text
 
+
+
+def test_the_gap_sentence_says_exact_only_when_a_value_was_a_bound() -> None:
+    # Invented: a gas alone says the gap needs sodium and chloride; a bound ("<100") needs an exact value.
+    gas = {"sample": "arterial", "ph": 7.5, "pco2": 48, "hco3": 36}
+    plain = draft_paragraph(Drafter().assess(validate_case({"units": "conventional", "gas": gas})))
+    assert "cannot be calculated without sodium and chloride values" in plain
+    bounded = validate_case({"units": "conventional", "gas": gas, "chem": {"na": ">160", "cl": 95}})
+    assert "cannot be calculated without exact sodium and chloride values" in draft_paragraph(
+        Drafter().assess(bounded)
+    )
