@@ -10,31 +10,35 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
-__all__ = ["FORMAT_NAMES", "plain_draft_arguments"]
+__all__ = ["DRAFT_OPTIONS", "FORMAT_NAMES", "plain_draft_arguments"]
 
 FORMAT_NAMES = ("markdown", "text", "html", "json")  # as `notegen.cli.app.OutputFormat` lists them
-_FLAGS = {
-    "--jsonl": "jsonl",
-    "--explain": "explain",
-    "--brief": "brief",
-    "--worksheet": "worksheet",
-    "--ascii": "ascii_only",
-}
-_VALUES = {
-    "--paste": "paste",
-    "--format": "output_format",
-    "-f": "output_format",
-    "--output": "output",
-    "-o": "output",
-    "--output-folder": "out_dir",
-    "--out": "out_dir",  # the former name of --output-folder
-    "--template": "template",
-    "--width": "width",
-    "--window-hours": "window_hours",
-    "--jobs": "jobs",
-    "-j": "jobs",
-}
-_REPEATED = {"--set": "assignments", "--rules": "rules"}
+# The options of `notegen draft`, once: (every spelling, the parameter it fills, how it is given).
+# `flag` takes no value, `value` one value once, `repeated` a value each time it is given.
+# `tests/cli/test_cli_quick_draft.py` checks this table against the typer command's own options, so the
+# two parsers cannot drift apart.
+DRAFT_OPTIONS: tuple[tuple[tuple[str, ...], str, str], ...] = (
+    (("--jsonl",), "jsonl", "flag"),
+    (("--explain",), "explain", "flag"),
+    (("--brief",), "brief", "flag"),
+    (("--worksheet",), "worksheet", "flag"),
+    (("--ascii",), "ascii_only", "flag"),
+    (("--paste",), "paste", "value"),
+    (("--format", "-f"), "output_format", "value"),
+    (("--output", "-o"), "output", "value"),
+    (("--output-folder",), "out_dir", "value"),
+    (("--out",), "old_out_dir", "value"),  # the former name of --output-folder, read as it
+    (("--template",), "template", "value"),
+    (("--width",), "width", "value"),
+    (("--window-hours",), "window_hours", "value"),
+    (("--jobs", "-j"), "jobs", "value"),
+    (("--set",), "assignments", "repeated"),
+    (("--rules",), "rules", "repeated"),
+)
+_READ_AS = {"old_out_dir": "out_dir"}
+_FLAGS = {flag: dest for flags, dest, kind in DRAFT_OPTIONS if kind == "flag" for flag in flags}
+_VALUES = {flag: _READ_AS.get(dest, dest) for flags, dest, kind in DRAFT_OPTIONS if kind == "value" for flag in flags}
+_REPEATED = {flag: dest for flags, dest, kind in DRAFT_OPTIONS if kind == "repeated" for flag in flags}
 _PATHS = ("output", "out_dir", "template")
 _WHOLE_NUMBER = re.compile(r"[0-9]{1,4}")
 _DECIMAL = re.compile(r"[0-9]{1,6}(\.[0-9]{1,6})?")

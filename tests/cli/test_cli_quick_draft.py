@@ -133,3 +133,21 @@ def test_an_out_of_range_number_is_refused_alike_by_both_parsers() -> None:
         assert _plain_draft_arguments(argv) is not None
         result = CliRunner().invoke(app, argv)
         assert result.exit_code == 2 and message in result.stderr
+
+
+def test_the_plain_option_table_is_the_typer_commands() -> None:
+    """One table of `draft`'s options (`cli/plain.DRAFT_OPTIONS`): every spelling, parameter and kind the
+    typer command declares is in it and nothing else, so the two parsers cannot drift apart."""
+    import typer.main
+
+    from notegen.cli.plain import DRAFT_OPTIONS
+
+    draft = typer.main.get_command(app).commands["draft"]  # type: ignore[attr-defined]
+    declared = set()
+    for param in draft.params:
+        if getattr(param, "param_type_name", "") != "option" or param.name == "help":
+            continue
+        kind = "flag" if param.is_flag else "repeated" if param.multiple else "value"
+        declared.add((tuple(sorted(param.opts)), param.name, kind))
+    table = {(tuple(sorted(flags)), dest, kind) for flags, dest, kind in DRAFT_OPTIONS}
+    assert table == declared
