@@ -16,7 +16,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 from notegen.acidbase.calculations import compute_calculations  # noqa: E402
 from notegen.acidbase.reading import read_acid_base  # noqa: E402
 from notegen.engine import walk  # noqa: E402
-from notegen.workup.alkalosis import default_alkalosis_pack, evaluate_alkalosis  # noqa: E402
+from notegen.knowledge import shipped_knowledge  # noqa: E402
+from notegen.workup.alkalosis import evaluate_alkalosis  # noqa: E402
 from notegen.workup.facts import derive_facts  # noqa: E402
 from tests.alkalosis_cases import alkalosis_case, med  # noqa: E402
 
@@ -34,7 +35,7 @@ def best_microseconds(function: object, number: int = 300) -> float:
 
 def main() -> None:
     started = time.perf_counter()
-    pack = default_alkalosis_pack()
+    pack = shipped_knowledge().alkalosis_pack
     print(f"load, check and compile the pack: {(time.perf_counter() - started) * 1000:.1f} ms")
     for name, case in CASES.items():
         reading, calculations = read_acid_base(case), compute_calculations(case)

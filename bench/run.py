@@ -227,9 +227,8 @@ def pack_load(env: dict[str, str], repeats: int) -> dict[str, float]:
 import json, statistics, time
 from pathlib import Path
 from notegen.engine import load_pack
-from notegen.workup.alkalosis import alkalosis_pack_dirs
 from notegen.knowledge.settings import load_acid_base_settings
-dirs = alkalosis_pack_dirs()
+dirs = pack_dirs(ALKALOSIS_PACK)
 started = time.perf_counter(); load_pack(dirs); first = time.perf_counter() - started
 times = []
 for _ in range({repeats}):
@@ -250,6 +249,8 @@ _SHIPPED_PACK = """
 import time
 started = time.perf_counter()
 from notegen.knowledge.packs import load_rule_pack
+from notegen.knowledge import ALKALOSIS_PACK  # noqa: E402
+from notegen.knowledge.packs import pack_dirs  # noqa: E402
 load_rule_pack("alkalosis")
 print((time.perf_counter() - started) * 1e3)
 """

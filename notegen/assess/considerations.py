@@ -34,7 +34,7 @@ from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem
 from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
 from notegen.engine.wording import Template, parse_template
 from notegen.errors import RulePackError
-from notegen.knowledge import shipped_knowledge
+from notegen.knowledge import ACIDOSIS_PACK, ALKALOSIS_PACK, rule_pack, shipped_knowledge
 from notegen.resources import rules_dir
 
 __all__ = [
@@ -246,15 +246,11 @@ def _build(
 
 
 def _pack(service_folders: tuple[Path, ...]) -> RulePack:
-    from notegen.workup.alkalosis import load_alkalosis_pack
-
-    return load_alkalosis_pack(service_folders)
+    return rule_pack(ALKALOSIS_PACK, service_folders)
 
 
 def _acidosis_pack(service_folders: tuple[Path, ...]) -> RulePack:
-    from notegen.workup.acidosis import load_acidosis_pack
-
-    return load_acidosis_pack(service_folders)
+    return rule_pack(ACIDOSIS_PACK, service_folders)
 
 
 @functools.lru_cache(maxsize=16)

@@ -4,12 +4,11 @@ Every problem is collected with its field path and reported at once. A value is 
 converted from a unit that was not stated or implied by the case's unit system, and a
 value that fits another unit better is refused with the suggestion, never converted.
 """
-# long: the lab sections' validation, serial results and the case's assembly read in one pass over the case
 
 from __future__ import annotations
 
 from collections.abc import Mapping
-from datetime import datetime, timedelta
+from datetime import datetime
 from typing import Any
 
 # The one Henderson-Hasselbalch (a pure function on numbers); pyproject's layer contract names this
@@ -39,6 +38,7 @@ from notegen.case.model import (
     Measurement,
     Urine,
 )
+from notegen.case.serial import check_span, choose_current, sort_key
 from notegen.case.unit_checks import (
     _check_pco2_unit,
     ambiguous_bare_pco2,
@@ -304,81 +304,11 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
             else:
                 by_time[when] = dict(p)
         # oldest first; at the same time a venous gas sorts before an arterial one, so arterial is read
-        entries[section] = [by_time[k] for k in sorted(by_time, key=lambda k: (_sort_key(k[0]), k[1] == "arterial"))]
+        entries[section] = [by_time[k] for k in sorted(by_time, key=lambda k: (sort_key(k[0]), k[1] == "arterial"))]
     elif raw is not None:
         entry = _lab_entry(section, raw, section, col)
         if entry is not None:
             entries[section] = [entry]
-
-
-def _sort_key(when: datetime | None) -> datetime:
-    """An instant to order results by: aware times in UTC, naive ones as written, never the machine's zone.
-
-    A section never mixes the two kinds; across sections a mix is refused where times are subtracted.
-    """
-    if when is None:
-        return datetime.min
-    offset = when.utcoffset()
-    return when.replace(tzinfo=None) - offset if offset is not None else when
-
-
-MAX_SPAN_DAYS = 366  # results further apart are not one admission's serial results: a date is mistyped
-
-
-def _check_span(entries: dict[str, list[dict[str, Any]]], col: _Collector) -> None:
-    """Refuse results spread over more than a year: one mistyped year would make a result "the latest"."""
-    times = [e["taken_at"] for items in entries.values() for e in items if e.get("taken_at") is not None]
-    if len(times) < 2:
-        return
-    oldest, newest = min(times, key=_sort_key), max(times, key=_sort_key)
-    if _sort_key(newest) - _sort_key(oldest) > timedelta(days=MAX_SPAN_DAYS):
-        col.problem(
-            "taken_at",
-            f"results run from {oldest.isoformat(sep=' ', timespec='minutes')} to "
-            f"{newest.isoformat(sep=' ', timespec='minutes')}, more than a year apart: a date is probably "
-            "mistyped; correct it, or draft the older results as a case of their own",
-        )
-
-
-_SECTION_WORDS = {"gas": "gas", "chem": "chemistry", "urine": "urine"}
-
-
-def _choose_current(
-    entries: dict[str, list[dict[str, Any]]], window_hours: float, col: _Collector
-) -> tuple[dict[str, dict[str, Any]], dict[str, list[dict[str, Any]]]]:
-    current: dict[str, dict[str, Any]] = {}
-    earlier: dict[str, list[dict[str, Any]]] = {}
-    serial: dict[str, list[str]] = {}  # time read -> sections given more than once, as the reader names them
-    for section, items in entries.items():
-        chosen = len(items) - 1
-        if section == "gas":
-            complete = [i for i, e in enumerate(items) if "ph" in e and "pco2" in e]
-            if complete:
-                chosen = complete[-1]
-        current[section] = items[chosen]
-        earlier[section] = [e for i, e in enumerate(items) if i != chosen]
-        if len(items) > 1 and items[chosen].get("taken_at"):
-            when = items[chosen]["taken_at"].isoformat(sep=" ", timespec="minutes")
-            serial.setdefault(when, []).append(_SECTION_WORDS.get(section, section))
-    if serial:
-        # One line for all sections: the chart note lists it under what was given but not used.
-        read = "; ".join(f"{' and '.join(names)} of {when}" for when, names in serial.items())
-        col.notices.append(f"Earlier results were given; only the latest complete set is read ({read})")
-    times = [e["taken_at"] for e in current.values() if e.get("taken_at") is not None]
-    if len(times) > 1:
-        try:
-            newest = max(times, key=_sort_key)
-            for section in list(current):
-                when = current[section].get("taken_at")
-                if when is not None and newest - when > timedelta(hours=window_hours):
-                    col.notices.append(
-                        f"{section} results from {when.isoformat(sep=' ', timespec='minutes')} are more than "
-                        f"{_fmt(window_hours)} hours older than the newest results and were not combined with them"
-                    )
-                    earlier[section].append(current.pop(section))
-        except TypeError:
-            col.problem("taken_at", "mixes times with and without a time zone; give all times the same way")
-    return current, earlier
 
 
 def validate_case(
@@ -430,8 +360,8 @@ def validate_case(
     context = validate_context(data.get("context"), col)
     if col.problems:
         raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
-    _check_span(entries, col)
-    current, earlier = ({}, {}) if col.problems else _choose_current(entries, window_hours, col)
+    check_span(entries, col)
+    current, earlier = ({}, {}) if col.problems else choose_current(entries, window_hours, col)
     if col.problems:
         raise CaseValueError(col.problems, filename=filename, origins=col.provenance)
 

@@ -16,15 +16,14 @@
    would change a tree's outcome or a cause's tier. Tests that change a tree's outcome come first,
    then the pack's order. Its `why` names what it would decide.
 """
-# long: the walk and its what-if suggestions share the private tree-walking core; split, they would import each other
 
 from __future__ import annotations
 
-import itertools
 from collections.abc import Mapping
 from dataclasses import dataclass
 
 from notegen.engine.conditions import FALSE, TRUE, UNKNOWN, Env, truth_of
+from notegen.engine.core import TreeState, points_of, tier_of, walk_tree
 from notegen.engine.facts import (
     BooleanFact,
     Bound,
@@ -33,16 +32,14 @@ from notegen.engine.facts import (
     MissingFact,
     NumberFact,
     TextFact,
-    Value,
     as_fact,
     display_fact,
     plain_value,
 )
-from notegen.engine.program import CompiledTest, CompiledTree, RulePack
+from notegen.engine.program import CompiledTree, RulePack
 from notegen.engine.results import (
     TIERS,
     CauseResult,
-    Decision,
     EvidenceResult,
     FactorResult,
     JsonValue,
@@ -52,18 +49,12 @@ from notegen.engine.results import (
     TraceStep,
     TreeOutcome,
 )
+from notegen.engine.suggest import suggest_tests
 from notegen.engine.wording import Template
 from notegen.errors import NotegenError
 
 _MISSING = MissingFact()
 _FACT_TYPES = (NumberFact, BooleanFact, TextFact, MissingFact)
-
-
-@dataclass(frozen=True, slots=True)
-class _TreeState:
-    reach: tuple[int, ...]
-    answers: tuple[int | None, ...]
-    leaf: int
 
 
 @dataclass(frozen=True)
@@ -76,7 +67,7 @@ class WalkResult:
     causes: tuple[CauseResult, ...]
     factors: tuple[FactorResult, ...]
     suggestions: tuple[Suggestion, ...]
-    _states: tuple[_TreeState, ...]
+    _states: tuple[TreeState, ...]
     _evidence: tuple[int, ...]
     _factors: tuple[int, ...]
     _env: Env
@@ -188,79 +179,17 @@ def prepare_facts(pack: RulePack, raw: Mapping[str, FactInput]) -> tuple[dict[st
     return facts, env
 
 
-def _walk_tree(tree: CompiledTree, env: Env) -> _TreeState:
-    nodes = tree.nodes
-    reach = [FALSE] * len(nodes)
-    answers: list[int | None] = [None] * len(nodes)
-    reach[tree.start] = TRUE
-    for key in tree.outcome_keys:
-        env[key] = FALSE
-    leaf = tree.start
-    for index in tree.order:
-        status = reach[index]
-        if status == FALSE:
-            continue
-        node = nodes[index]
-        test = node.test
-        if test is None:
-            outcome_at: str = node.outcome_key  # type: ignore[assignment]
-            if status > env[outcome_at]:  # type: ignore[operator]
-                env[outcome_at] = status
-            if status == TRUE:
-                leaf = index
-            continue
-        answer = test(env)
-        answers[index] = answer
-        on_true, on_false, on_unknown = node.exits  # type: ignore[misc]
-        taken = status if answer > status else answer
-        if taken > reach[on_true]:
-            reach[on_true] = taken
-        taken = TRUE - answer
-        if taken > status:
-            taken = status
-        if taken > reach[on_false]:
-            reach[on_false] = taken
-        if answer == UNKNOWN and status > reach[on_unknown]:
-            reach[on_unknown] = status
-    # Only nodes some `reached:` condition reads need their reach in the environment.
-    for index, key in tree.reached_keys:
-        env[key] = reach[index]
-    return _TreeState(tuple(reach), tuple(answers), leaf)
-
-
-def _tier(points_for: int, points_against: int, pack: RulePack) -> Tier:
-    scoring = pack.scoring
-    net = points_for - points_against
-    if net >= scoring.likely_from:
-        return "likely"
-    if net >= scoring.possible_from or points_for >= scoring.keep_in_view_from:
-        return "possible"
-    return "unlikely"
-
-
-def _points(pack: RulePack, truths: list[int] | tuple[int, ...], cause: int) -> tuple[int, int]:
-    points_for = points_against = 0
-    for index in pack.causes[cause].evidence:
-        if truths[index] == TRUE:
-            item = pack.evidence[index]
-            if item.supporting:
-                points_for += item.weight
-            else:
-                points_against += item.weight
-    return points_for, points_against
-
-
 # long: the walk's passes (trees, evidence, tiers, factors, suggestions) share its local state
 def walk(pack: RulePack, raw_facts: Mapping[str, FactInput]) -> WalkResult:
     """Walk the pack over the facts (name -> fact); facts not given are missing."""
     facts, env = prepare_facts(pack, raw_facts)
-    states = tuple(_walk_tree(tree, env) for tree in pack.trees)
+    states = tuple(walk_tree(tree, env) for tree in pack.trees)
     truths = tuple(item.test(env) for item in pack.evidence)
     tiers: list[Tier] = []
     causes: list[tuple[tuple[int, int, int, int], CauseResult]] = []
     for cause in pack.causes:
-        points_for, points_against = _points(pack, truths, cause.index)
-        tier = _tier(points_for, points_against, pack)
+        points_for, points_against = points_of(pack, truths, cause.index)
+        tier = tier_of(points_for, points_against, pack)
         tiers.append(tier)
         supporting: list[EvidenceResult] = []
         opposing: list[EvidenceResult] = []
@@ -321,7 +250,7 @@ def walk(pack: RulePack, raw_facts: Mapping[str, FactInput]) -> WalkResult:
     outcomes = tuple(
         _outcome(pack, tree, state, facts, env, states) for tree, state in zip(pack.trees, states, strict=True)
     )
-    suggestions = _suggest(pack, env, states, truths, tiers, outcomes)
+    suggestions = suggest_tests(pack, env, states, truths, tiers, outcomes)
     return WalkResult(
         pack=pack,
         facts=facts,
@@ -336,7 +265,7 @@ def walk(pack: RulePack, raw_facts: Mapping[str, FactInput]) -> WalkResult:
     )
 
 
-def _tree_value(pack: RulePack, name: str, states: tuple[_TreeState, ...]) -> str:
+def _tree_value(pack: RulePack, name: str, states: tuple[TreeState, ...]) -> str:
     for tree, state in zip(pack.trees, states, strict=True):
         if tree.id == name:
             return tree.nodes[state.leaf].outcome or ""
@@ -348,7 +277,7 @@ def _fill(
     names: tuple[str, ...],
     template: Template,
     facts: Mapping[str, Fact],
-    states: tuple[_TreeState, ...],
+    states: tuple[TreeState, ...],
 ) -> str:
     values: dict[str, str] = {}
     for name in names:
@@ -366,7 +295,7 @@ def _fill(
 
 
 def _used(
-    pack: RulePack, names: tuple[str, ...], facts: Mapping[str, Fact], states: tuple[_TreeState, ...]
+    pack: RulePack, names: tuple[str, ...], facts: Mapping[str, Fact], states: tuple[TreeState, ...]
 ) -> tuple[tuple[str, JsonValue], ...]:
     return tuple(
         (name, plain_value(facts.get(name, _MISSING)) if name in pack.facts else _tree_value(pack, name, states))
@@ -377,10 +306,10 @@ def _used(
 def _outcome(
     pack: RulePack,
     tree: CompiledTree,
-    state: _TreeState,
+    state: TreeState,
     facts: Mapping[str, Fact],
     env: Env,
-    states: tuple[_TreeState, ...],
+    states: tuple[TreeState, ...],
 ) -> TreeOutcome:
     path = [i for i in tree.order if state.reach[i] == TRUE]
     notes: list[str] = []
@@ -406,120 +335,3 @@ def _outcome(
     )
 
 
-def _suggest(
-    pack: RulePack,
-    env: Env,
-    states: tuple[_TreeState, ...],
-    truths: tuple[int, ...],
-    tiers: list[Tier],
-    outcomes: tuple[TreeOutcome, ...],
-) -> tuple[Suggestion, ...]:
-    found: list[tuple[tuple[int, int], Suggestion]] = []
-    for test in pack.tests:
-        missing = tuple(name for name in test.provides if name not in env)
-        if not missing or not _left_open(pack, missing, states, truths):
-            continue
-        decisions = _what_if(pack, test, missing, env, states, truths, tiers, outcomes)
-        if not decisions:
-            continue
-        first_tree = min((i for i, d in enumerate(decisions) if d.kind == "tree"), default=None)
-        rank = (0 if first_tree is not None else 1, test.index)
-        found.append(
-            (
-                rank,
-                Suggestion(test.id, test.label, missing, decisions, _why(pack, test, missing, decisions), test.source),
-            )
-        )
-    found.sort(key=lambda pair: pair[0])
-    return tuple(s for _, s in found)
-
-
-def _left_open(
-    pack: RulePack, missing: tuple[str, ...], states: tuple[_TreeState, ...], truths: tuple[int, ...]
-) -> bool:
-    """Did the absence of these facts leave some condition unknown (or a `known` test relevant)?"""
-    # A node off the walk's path (reached only "possibly") cannot move that tree's path, and, unless
-    # evidence negates a tree test or a later tree reads this one, nothing else either.
-    for name in missing:
-        for tree_index, node_index in pack.node_readers.get(name, ()):
-            lowest = UNKNOWN if pack.negates_trees or pack.feeds_trees[tree_index] else TRUE
-            if states[tree_index].reach[node_index] >= lowest:
-                return True
-        known = pack.known_readers.get(name, frozenset())
-        for index in pack.evidence_readers.get(name, ()):
-            if truths[index] == UNKNOWN or index in known:
-                return True
-    return False
-
-
-def _what_if(
-    pack: RulePack,
-    test: CompiledTest,
-    missing: tuple[str, ...],
-    env: Env,
-    states: tuple[_TreeState, ...],
-    truths: tuple[int, ...],
-    tiers: list[Tier],
-    outcomes: tuple[TreeOutcome, ...],
-) -> tuple[Decision, ...]:
-    tree_alternatives: dict[int, set[str]] = {i: set() for i in test.trees}
-    tier_alternatives: dict[int, set[str]] = {}
-    options: list[tuple[Value, ...]] = [pack.candidates[name] for name in missing]
-    for combination in itertools.product(*options):
-        trial: Env = dict(env)
-        for name, value in zip(missing, combination, strict=True):
-            trial[name] = value
-        # Only evidence reading the facts, or a tree whose walk came out differently, can change.
-        recheck: set[int] = set(test.direct_evidence)
-        for tree_index in test.trees:
-            tree = pack.trees[tree_index]
-            state = _walk_tree(tree, trial)
-            if state.reach != states[tree_index].reach:
-                recheck.update(pack.tree_evidence[tree_index])
-                outcome = tree.nodes[state.leaf].outcome or ""
-                if outcome != outcomes[tree_index].outcome:
-                    tree_alternatives[tree_index].add(outcome)
-        if not recheck:
-            continue
-        trial_truths = list(truths)
-        causes: set[int] = set()
-        for index in recheck:
-            answer = pack.evidence[index].test(trial)
-            if answer != truths[index]:
-                trial_truths[index] = answer
-                causes.add(pack.evidence[index].cause)
-        for cause_index in causes:
-            tier = _tier(*_points(pack, trial_truths, cause_index), pack)
-            if tier != tiers[cause_index]:
-                tier_alternatives.setdefault(cause_index, set()).add(tier)
-    decisions: list[Decision] = []
-    for tree_index, alternatives in tree_alternatives.items():
-        if alternatives:
-            tree = pack.trees[tree_index]
-            ordered = tuple(o for o in tree.outcomes if o in alternatives)
-            decisions.append(Decision("tree", tree.id, tree.title, outcomes[tree_index].outcome, ordered))
-    for cause_index, alternatives in tier_alternatives.items():
-        if alternatives:
-            cause = pack.causes[cause_index]
-            ordered = tuple(t for t in TIERS if t in alternatives)
-            decisions.append(Decision("cause", cause.id, cause.label, tiers[cause_index], ordered))
-    return tuple(decisions)
-
-
-def _or(words: tuple[str, ...]) -> str:
-    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " or " + words[-1]
-
-
-def _why(pack: RulePack, test: CompiledTest, missing: tuple[str, ...], decisions: tuple[Decision, ...]) -> str:
-    names = ", ".join(pack.facts[name].display_label for name in missing)
-    parts = []
-    for decision in decisions:
-        if decision.kind == "tree":
-            words = next(t.outcome_labels for t in pack.trees if t.id == decision.id)
-            now = words.get(decision.now, decision.now)
-            could_be = tuple(words.get(o, o) for o in decision.could_be)
-            parts.append(f"{decision.label} (now {now}; could be {_or(could_be)})")
-        else:
-            parts.append(f"{decision.label} (now {decision.now}; could become {_or(decision.could_be)})")
-    text = f"{names[:1].upper()}{names[1:]} not given; the result would decide: {'; '.join(parts)}."
-    return f"{test.purpose.strip()} {text}" if test.purpose.strip() else text

@@ -17,7 +17,6 @@ Every non-blank line is either taken or listed in `unused` with the reason. Rule
   header ("Test Result Units") is skipped; a header with a collection and a result time is
   refused. Decimal commas and gas shorthand: intake/paste_formats.py.
 """
-# long: one line-by-line reader class with its block state; the format rules already live in paste_formats.py
 
 from __future__ import annotations
 
@@ -28,26 +27,16 @@ from typing import Any
 
 from notegen.case.checks import foreign_digit
 from notegen.errors import InputError, PasteError
+from notegen.intake.paste_dates import echo as _echo
+from notegen.intake.paste_dates import read_times
 from notegen.intake.paste_formats import SHORTHAND_ORDER, decimal_commas, gas_shorthand, names_any, only_words_from
-from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, as_utc, assemble_sections, parse_number
+from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, assemble_sections, parse_number
 from notegen.intake.unit_system import settle_units
 from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.analytes import Heading, Vocabulary, normalise
 
 # How an analyte id reads in a message, where the id is not already the word ("ph" is pH).
 _ANALYTE_WORDS = {"ph": "pH", "pco2": "PCO2", "paco2": "PaCO2", "total_co2": "total CO2"}
-
-_TIME = r"(?:[T ]\s*(?P<{p}h>\d{{1,2}}):(?P<{p}mi>\d{{2}})(?::(?P<{p}s>\d{{2}}))?)?"
-_MONTHS = "jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec"
-_DATE_PATTERNS = [
-    ("iso", re.compile(r"(?<!\d)(?P<y>\d{4})-(?P<m>\d{2})-(?P<d>\d{2})" + _TIME.format(p=""))),
-    ("slash", re.compile(r"(?<![\d/.])(?P<a>\d{1,2})/(?P<b>\d{1,2})/(?P<y>\d{4}|\d{2})(?![\d/])"
-                         + _TIME.format(p="").replace("[T ]", "[ ,]"))),
-    ("named", re.compile(r"(?<!\d)(?P<d>\d{1,2})[- ](?P<mon>(?:" + _MONTHS + r")[a-z]*)[- ,]+(?P<y>\d{4}|\d{2})"
-                         + _TIME.format(p="").replace("[T ]", "[ ,]"), re.IGNORECASE)),
-]
-_YEARLESS = re.compile(r"(?<![\d/])\d{1,2}/\d{1,2}\s+\d{1,2}:\d{2}")
-_BARE_TIME = re.compile(r"(?<![\d:.])\d{1,2}:\d{2}(?![\d:])")
 
 _NUM = r"\d+(?:\.\d+)?"
 _UNIT = (r"(?:mm\s?Hg|mm\[Hg\]|kPa|torr|mOsm/kg(?:\s?H2O)?|"
@@ -126,11 +115,6 @@ def _as_section(name: str) -> Section:
     raise ValueError(f"unknown section {name!r}")
 
 
-def _echo(line: str, limit: int = 100) -> str:
-    """A pasted line quoted in a message, cut short: a 2 MB line must not become a 2 MB message."""
-    return repr(line) if len(line) <= limit else f"{line[:limit]!r}... ({len(line):,} characters)"
-
-
 def _line_number(entry: str) -> int:
     number = entry.split(":", 1)[0].removeprefix("line ")
     return int(number) if number.isdigit() else 0
@@ -166,7 +150,7 @@ class _PasteReader:
             line = raw.strip()
             if not any(ch.isalnum() for ch in line):
                 continue  # blank or a rule of dashes: holds nothing
-            times, rest = self._times(line, number)
+            times, rest = read_times(line, number, self.source, self.date_order)
             shorthand = self._shorthand(number, line, rest, times, block, in_header)
             if shorthand is not None:
                 block, in_header = shorthand[0], False
@@ -229,53 +213,6 @@ class _PasteReader:
         if not words:
             return True
         return words in self.time_labels or all(word in self.time_labels for word in words.split())
-
-    def _times(self, line: str, number: int) -> tuple[list[tuple[str, datetime]], str]:
-        found: list[tuple[int, tuple[str, datetime]]] = []
-        rest = line
-        for kind, pattern in _DATE_PATTERNS:
-            for match in pattern.finditer(rest):
-                found.append((match.start(), self._moment(kind, match, line, number)))
-            rest = pattern.sub(lambda m: " " * len(m.group(0)), rest)
-        if _YEARLESS.search(rest):
-            raise PasteError(f"{_echo(line)} has a date without a year; write it as 2024-03-01 08:00",
-                             line=number, source=self.source)
-        if _BARE_TIME.search(rest):
-            raise PasteError(f"{_echo(line)} has a time without a date; put the date in front (2024-03-01 08:00)",
-                             line=number, source=self.source)
-        found.sort(key=lambda item: item[0])
-        return [moment for _, moment in found], rest.strip()
-
-    def _moment(self, kind: str, match: re.Match[str], line: str, number: int) -> tuple[str, datetime]:
-        year = int(match["y"])
-        if year < 100:
-            year += 2000  # a two-digit year on a lab result is this century
-        if kind == "iso":
-            month, day = int(match["m"]), int(match["d"])
-        elif kind == "named":
-            month = _MONTHS.split("|").index(match["mon"][:3].lower()) + 1
-            day = int(match["d"])
-        else:
-            first, second = int(match["a"]), int(match["b"])
-            if first <= 12 and second <= 12 and first != second and self.date_order is None:
-                raise PasteError(
-                    f"{match.group(0).strip()!r} could be day/month or month/day; write the date as "
-                    f"{year:04d}-MM-DD, or say how dates are written: `dates: day-first` (or month-first) in "
-                    "the case file, or --set dates=day-first", line=number, source=self.source)
-            if first <= 12 and second <= 12 and first != second:
-                month, day = (second, first) if self.date_order == "day-first" else (first, second)
-            else:
-                month, day = (first, second) if second > 12 or first == second else (second, first)
-        hour = int(match["h"]) if match["h"] else None
-        minute = int(match["mi"]) if match["mi"] else 0
-        second_ = int(match["s"]) if match["s"] else 0
-        try:
-            moment = datetime(year, month, day, hour or 0, minute, second_)
-        except ValueError as exc:
-            raise PasteError(f"{match.group(0).strip()!r} is not a valid date ({exc})",
-                             line=number, source=self.source) from exc
-        iso = moment.isoformat() if hour is not None else moment.date().isoformat()
-        return iso, as_utc(moment)
 
     def _lab_line(
         self, number: int, line: str, rest: str, times: list[tuple[str, datetime]], block: _Block

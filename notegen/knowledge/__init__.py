@@ -25,7 +25,7 @@ if TYPE_CHECKING:
     from notegen.knowledge.settings import AcidBaseSettings
     from notegen.knowledge.vocabulary import DrugInfo, FieldInfo, FindingInfo
 
-__all__ = ["ACIDOSIS_PACK", "ALKALOSIS_PACK", "Knowledge", "shipped_knowledge"]
+__all__ = ["ACIDOSIS_PACK", "ALKALOSIS_PACK", "Knowledge", "rule_pack", "shipped_knowledge"]
 
 ALKALOSIS_PACK = "alkalosis"
 ACIDOSIS_PACK = "acidosis"
@@ -58,6 +58,10 @@ class Knowledge:
         from notegen.knowledge.packs import load_rule_pack
 
         return load_rule_pack(ACIDOSIS_PACK, self.rules_dirs)
+
+    def pack(self, name: str) -> RulePack:
+        """The rule pack `name` (ALKALOSIS_PACK or ACIDOSIS_PACK) for these folders."""
+        return {ALKALOSIS_PACK: self.alkalosis_pack, ACIDOSIS_PACK: self.acidosis_pack}[name]
 
     # The vocabularies are the shipped ones: a service adds rules and wording, not case fields.
     @cached_property
@@ -134,3 +138,11 @@ class Knowledge:
 def shipped_knowledge() -> Knowledge:
     """The knowledge of the shipped `rules/` folder, built once per process."""
     return Knowledge()
+
+
+def rule_pack(name: str, rules_dirs: tuple[Path, ...] | list[Path] = ()) -> RulePack:
+    """The shipped pack `name` with any service folders laid over it; `RulePackError` lists every problem.
+
+    Without service folders it is the process's shipped pack, loaded once.
+    """
+    return Knowledge(rules_dirs).pack(name) if rules_dirs else shipped_knowledge().pack(name)

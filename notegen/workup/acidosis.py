@@ -1,6 +1,6 @@
 """The metabolic-acidosis differential: derive facts, walk the shipped pack, shape the result.
 
-    pack = load_acidosis_pack([Path("our-rules")])      # shipped rules/acidosis + our-rules/acidosis
+    pack = rule_pack(ACIDOSIS_PACK, [Path("our-rules")])      # shipped rules/acidosis + our-rules/acidosis
     result = evaluate_acidosis(case, read_acid_base(case), pack, calculations=calculations)
     result.kind, result.differential[0].cause, result.json_ready()
 
@@ -12,45 +12,22 @@ only those enter the differential. Otherwise `evaluate_acidosis` returns None.
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
-from pathlib import Path
+from collections.abc import Mapping
 
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
-from notegen.engine import Fact, FactInput, Problem, RulePack, walk
+from notegen.engine import Fact, FactInput, RulePack, walk
 from notegen.engine.facts import as_fact
 from notegen.engine.results import Suggestion
-from notegen.knowledge import ACIDOSIS_PACK, Knowledge, shipped_knowledge
-from notegen.knowledge.packs import check_rule_pack, pack_dirs
+from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis_facts import acidosis_kind, derive_acidosis_facts
 from notegen.workup.acidosis_model import AcidosisTest, AcidosisWorkup
 from notegen.workup.alkalosis import _evidence, _undecided
 from notegen.workup.model import CauseEntry, TraceEntry
 
-ACIDOSIS_FOLDER = ACIDOSIS_PACK
 KIND_TREE = "gap_pattern"  # the tree whose leaf names the causes in view
 AMMONIUM_TREE = "ammonium_excretion"
-
-
-def acidosis_pack_dirs(rules_dirs: Sequence[Path] = ()) -> list[Path]:
-    """The shipped pack folder, then `<dir>/acidosis` of each service folder that has one."""
-    return pack_dirs(ACIDOSIS_PACK, rules_dirs)
-
-
-def load_acidosis_pack(rules_dirs: Sequence[Path] = ()) -> RulePack:
-    """Load the shipped pack with any service folders laid over it; `RulePackError` lists every problem."""
-    return default_acidosis_pack() if not rules_dirs else Knowledge(tuple(rules_dirs)).acidosis_pack
-
-
-def default_acidosis_pack() -> RulePack:
-    """The shipped pack, loaded once per process (through the process's `Knowledge`)."""
-    return shipped_knowledge().acidosis_pack
-
-
-def check_acidosis_pack(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
-    """Every problem of the layered pack as (file, line, message); empty when it loads cleanly."""
-    return check_rule_pack(ACIDOSIS_PACK, rules_dirs)
 
 
 def _test(pack: RulePack, suggestion: Suggestion) -> AcidosisTest:
@@ -82,7 +59,7 @@ def evaluate_acidosis(
     kind = acidosis_kind(reading)
     if kind is None:
         return None
-    pack = pack or default_acidosis_pack()
+    pack = pack or shipped_knowledge().acidosis_pack
     facts: dict[str, Fact] = derive_acidosis_facts(case, reading, calculations, pack)
     for name, value in (extra_facts or {}).items():
         facts[name] = as_fact(value)

@@ -13,11 +13,12 @@ from collections.abc import Mapping
 from notegen._format import join_words
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
-from notegen.case.model import Case, Medication
+from notegen.case.model import Case
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack, TextFact
 from notegen.errors import NotegenError
 from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis_model import AcidosisWorkupKind
+from notegen.workup.facts import class_facts
 
 ACIDOSIS_FINDINGS = (
     "diabetes",
@@ -97,26 +98,9 @@ def _case_number(case: Case, field: str, unit: str) -> Fact:
     return NumberFact(value, unit or None, qualifier)
 
 
-def _of_classes(meds: tuple[Medication, ...], classes: tuple[str, ...]) -> list[Medication]:
-    return [m for m in meds if set(m.classes) & set(classes)]
-
-
 def acidosis_medication_facts(case: Case) -> dict[str, Fact]:
     """Class facts and the names to show, from `Case.context.meds`."""
-    meds = case.context.meds
-    unknown = [m.name for m in meds if not m.recognised]
-    facts: dict[str, Fact] = {}
-    for name, classes in ACIDOSIS_CLASS_FACTS.items():
-        if _of_classes(meds, classes):
-            facts[name] = BooleanFact(True)
-        elif unknown:
-            facts[name] = MissingFact(f"unrecognised medication: {', '.join(unknown)}")
-        else:
-            facts[name] = BooleanFact(False)
-    for name, classes in ACIDOSIS_NAME_FACTS.items():
-        listed = _of_classes(meds, classes)
-        facts[name] = TextFact(join_words(m.generic or m.name for m in listed)) if listed else MissingFact()
-    return facts
+    return class_facts(case.context.meds, ACIDOSIS_CLASS_FACTS, ACIDOSIS_NAME_FACTS)
 
 
 def _setting(pack: RulePack, setting: str, unit: str) -> float:

@@ -1,6 +1,6 @@
 """The metabolic-alkalosis differential: derive facts, walk the shipped pack, shape the result.
 
-    pack = load_alkalosis_pack([Path("our-rules")])      # shipped rules/alkalosis + our-rules/alkalosis
+    pack = rule_pack(ALKALOSIS_PACK, [Path("our-rules")])      # shipped rules/alkalosis + our-rules/alkalosis
     result = evaluate_alkalosis(case, read_acid_base(case), pack, calculations=compute_calculations(case))
     result.chloride_class, result.differential[0].cause, result.json_ready()
 
@@ -12,7 +12,6 @@ and holds no differential.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from pathlib import Path
 from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict
@@ -20,11 +19,10 @@ from pydantic import BaseModel, ConfigDict
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
-from notegen.engine import Fact, FactInput, Problem, RulePack, walk
+from notegen.engine import Fact, FactInput, RulePack, walk
 from notegen.engine.facts import as_fact, plain_value
 from notegen.engine.results import EvidenceResult, OpenEvidence
-from notegen.knowledge import ALKALOSIS_PACK, Knowledge, shipped_knowledge
-from notegen.knowledge.packs import check_rule_pack, pack_dirs
+from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.settings import AcidBaseSettings
 from notegen.workup.facts import derive_facts
 from notegen.workup.model import (
@@ -37,28 +35,7 @@ from notegen.workup.model import (
     TraceEntry,
 )
 
-PACK_FOLDER = ALKALOSIS_PACK
 JsonValue = float | bool | str | None
-
-
-def alkalosis_pack_dirs(rules_dirs: Sequence[Path] = ()) -> list[Path]:
-    """The shipped pack folder, then `<dir>/alkalosis` of each service folder that has one."""
-    return pack_dirs(ALKALOSIS_PACK, rules_dirs)
-
-
-def load_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> RulePack:
-    """Load the shipped pack with any service folders laid over it; `RulePackError` lists every problem."""
-    return default_alkalosis_pack() if not rules_dirs else Knowledge(tuple(rules_dirs)).alkalosis_pack
-
-
-def default_alkalosis_pack() -> RulePack:
-    """The shipped pack, loaded once per process (through the process's `Knowledge`)."""
-    return shipped_knowledge().alkalosis_pack
-
-
-def check_alkalosis_pack(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
-    """Every problem of the layered pack as (file, line, message); empty when it loads cleanly."""
-    return check_rule_pack(ALKALOSIS_PACK, rules_dirs)
 
 
 class RuleResult(BaseModel):
@@ -129,7 +106,7 @@ def evaluate_alkalosis(
     `extra_facts` adds or replaces facts the case model does not hold (renin, aldosterone, a diuretic
     screen, a cortisol evaluation). `explain` adds the trace of the walk.
     """
-    pack = pack or default_alkalosis_pack()
+    pack = pack or shipped_knowledge().alkalosis_pack
     found = _alkalosis(reading)
     label = f"{pack.id} {pack.spec.pack.version}"
     if found is None:

@@ -113,21 +113,33 @@ def _unrecognised(meds: tuple[Medication, ...]) -> list[str]:
     return [m.name for m in meds if not m.recognised]
 
 
-def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
-    """Class facts, diuretic timing and the names to show, from `Case.context.meds`."""
-    meds = case.context.meds
+def class_facts(
+    meds: tuple[Medication, ...],
+    listed_facts: Mapping[str, tuple[str, ...]],
+    name_facts: Mapping[str, tuple[str, ...]],
+) -> dict[str, Fact]:
+    """Yes/no facts for medication classes (unknown while a listed name is not recognised) and the names
+    to show for others; shared by both work-ups."""
     unknown = _unrecognised(meds)
     facts: dict[str, Fact] = {}
-    for name, classes in CLASS_FACTS.items():
+    for name, classes in listed_facts.items():
         if _of_classes(meds, classes):
             facts[name] = BooleanFact(True)
         elif unknown:
             facts[name] = MissingFact(f"unrecognised medication: {', '.join(unknown)}")
         else:
             facts[name] = BooleanFact(False)
-    for name, classes in NAME_FACTS.items():
+    for name, classes in name_facts.items():
         listed = _of_classes(meds, classes)
         facts[name] = TextFact(join_words(m.generic or m.name for m in listed)) if listed else MissingFact()
+    return facts
+
+
+def medication_facts(case: Case, pack: RulePack) -> dict[str, Fact]:
+    """Class facts, diuretic timing and the names to show, from `Case.context.meds`."""
+    meds = case.context.meds
+    unknown = _unrecognised(meds)
+    facts = class_facts(meds, CLASS_FACTS, NAME_FACTS)
 
     diuretics = _of_classes(meds, tuple(DIURETIC_WINDOWS))
     timed = [m.last_dose_hours for m in diuretics if m.last_dose_hours is not None]

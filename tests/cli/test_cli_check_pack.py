@@ -7,6 +7,7 @@ from pathlib import Path
 from typer.testing import CliRunner
 
 from notegen.cli.app import app
+from notegen.knowledge import ACIDOSIS_PACK, rule_pack
 
 runner = CliRunner()
 
@@ -134,6 +135,4 @@ def test_a_sound_acidosis_overlay_passes_and_changes_the_threshold(tmp_path: Pat
     (tmp_path / "acidosis" / "ours.yaml").write_text(sound, encoding="utf-8")
     result = runner.invoke(app, ["check-pack", str(tmp_path)])
     assert result.exit_code == 0, result.output
-    from notegen.workup.acidosis import load_acidosis_pack
-
-    assert load_acidosis_pack([tmp_path]).settings["lactate_high_from"] == (5.0, "mmol/L")
+    assert rule_pack(ACIDOSIS_PACK, [tmp_path]).settings["lactate_high_from"] == (5.0, "mmol/L")

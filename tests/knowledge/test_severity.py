@@ -15,17 +15,16 @@ from notegen.cli.app import app
 from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.severity import severity_problems, severity_words
 from notegen.pipeline import Drafter, DraftOptions
-from notegen.workup.alkalosis import default_alkalosis_pack
 
 DRAFTER = Drafter()
 
 
 def test_the_shipped_alerts_and_pack_share_every_threshold() -> None:
-    assert severity_problems(shipped_knowledge().settings, default_alkalosis_pack().settings) == []
+    assert severity_problems(shipped_knowledge().settings, shipped_knowledge().alkalosis_pack.settings) == []
     words = {entry.id: entry for entry in severity_words()}
     assert words["severe_hypokalemia"].pack_settings == ("k_severe_below",)
     # common practice: severe hypokalemia below 2.5 mmol/L, the alerts' critical threshold
-    assert default_alkalosis_pack().settings["k_severe_below"][0] == 2.5
+    assert shipped_knowledge().alkalosis_pack.settings["k_severe_below"][0] == 2.5
 
 
 def _cause_evidence(k: float, mg: float | None) -> tuple[str, set[str]]:

@@ -256,10 +256,8 @@ def test_the_paragraph_and_the_reading_steps_print_a_ph_alike() -> None:
 
 
 def test_every_shipped_test_has_its_clinical_sentence() -> None:
-    from notegen.workup.alkalosis import default_alkalosis_pack
-
     sentences = shipped_knowledge().next_test_sentences
-    for test in default_alkalosis_pack().spec.tests:
+    for test in shipped_knowledge().alkalosis_pack.spec.tests:
         text = sentences.get(test.id, "")
         assert text.endswith(".") and text.count(". ") == 0, test.id  # one sentence
         assert not INTERNAL.search(text), test.id

@@ -18,12 +18,13 @@ from notegen.acidbase.calculations import compute_calculations, urine_gap_calcul
 from notegen.acidbase.reading import read_acid_base
 from notegen.engine import FactInput
 from notegen.intake.read import read_case_data
+from notegen.knowledge import shipped_knowledge
 from notegen.pipeline import Drafter
 from notegen.resources import rules_dir
-from notegen.workup.acidosis import default_acidosis_pack, evaluate_acidosis
+from notegen.workup.acidosis import evaluate_acidosis
 from notegen.workup.acidosis_model import ACIDOSIS_CAUSE_IDS, AcidosisWorkup
 
-PACK = default_acidosis_pack()
+PACK = shipped_knowledge().acidosis_pack
 DRAFTER = Drafter()
 ADULT = {"age": 45, "sex": "male"}
 # A high anion gap acidosis: Na 138 - (Cl 100 + HCO3 8) = 30 mmol/L; Winter's formula

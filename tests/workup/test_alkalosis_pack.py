@@ -5,9 +5,9 @@ from __future__ import annotations
 import pytest
 
 from notegen.engine import BooleanFact, FactInput, NumberFact, WalkResult, walk
-from notegen.workup.alkalosis import default_alkalosis_pack
+from notegen.knowledge import shipped_knowledge
 
-PACK = default_alkalosis_pack()
+PACK = shipped_knowledge().alkalosis_pack
 
 
 def run(**facts: FactInput) -> WalkResult:

@@ -12,13 +12,9 @@ from notegen.acidbase.calculations import compute_calculations
 from notegen.acidbase.reading import read_acid_base
 from notegen.case.model import Case
 from notegen.engine import FactInput, RulePack
-from notegen.workup.alkalosis import (
-    RuleResult,
-    check_alkalosis_pack,
-    default_alkalosis_pack,
-    evaluate_alkalosis,
-    load_alkalosis_pack,
-)
+from notegen.knowledge import ALKALOSIS_PACK, rule_pack, shipped_knowledge
+from notegen.knowledge.packs import check_rule_pack
+from notegen.workup.alkalosis import RuleResult, evaluate_alkalosis
 
 
 def evaluate(
@@ -42,8 +38,8 @@ def suggested_tests(result: RuleResult) -> list[str]:
 
 
 def test_shipped_pack_passes_its_checks() -> None:
-    assert check_alkalosis_pack() == []
-    pack = default_alkalosis_pack()
+    assert check_rule_pack(ALKALOSIS_PACK) == []
+    pack = shipped_knowledge().alkalosis_pack
     assert {c.id for c in pack.causes} == {
         "gastric_loss", "diuretic", "mineralocorticoid_excess", "alkali_load", "reduced_gfr",
         "post_hypercapnia", "salt_wasting_tubulopathy", "chloride_losing_diarrhea", "potassium_magnesium_depletion",
@@ -59,7 +55,7 @@ def test_shipped_pack_passes_its_checks() -> None:
 
 
 def test_every_item_names_its_provenance() -> None:
-    spec = default_alkalosis_pack().spec
+    spec = shipped_knowledge().alkalosis_pack.spec
     sources = [s.source for s in spec.settings] + [t.source for t in spec.tests] + [f.source for f in spec.factors]
     sources += [n.source for tree in spec.trees for n in tree.nodes]
     sources += [e.source for c in spec.causes for e in (*c.evidence.supporting, *c.evidence.opposing)]
@@ -333,8 +329,8 @@ def test_service_overlay_changes_wording_and_a_threshold(tmp_path: Path) -> None
         "      - id: chloride_responsive\n"
         "        says: 'Urine Cl {urine_cl} (< {urine_cl_responsive_below}): saline-responsive.'\n"
     )
-    assert check_alkalosis_pack([tmp_path / "our-rules"]) == []
-    pack = load_alkalosis_pack([tmp_path / "our-rules"])
+    assert check_rule_pack(ALKALOSIS_PACK, [tmp_path / "our-rules"]) == []
+    pack = rule_pack(ALKALOSIS_PACK, [tmp_path / "our-rules"])
     case = alkalosis_case(urine_cl=22)
     assert evaluate(case).chloride_class == "indeterminate"
     result = evaluate(case, pack)
@@ -346,7 +342,7 @@ def test_broken_service_pack_is_reported_with_file_and_line(tmp_path: Path) -> N
     folder = tmp_path / "alkalosis"
     folder.mkdir()
     (folder / "bad.yaml").write_text("settings:\n  - id: egfr_maintenance_below\n    value: 30\n    unit: mL/min\n")
-    problems = check_alkalosis_pack([tmp_path])
+    problems = check_rule_pack(ALKALOSIS_PACK, [tmp_path])
     assert any(p[0] == str(folder / "bad.yaml") and p[1] == 4 and "is in mL/min;" in p[2] for p in problems), problems
     assert len(problems) == 1  # one problem, at the setting, not one per condition using it
 

@@ -9,10 +9,10 @@ from notegen.acidbase.calculations import compute_calculations
 from notegen.acidbase.reading import read_acid_base
 from notegen.case.model import Case, Medication
 from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, TextFact
-from notegen.workup.alkalosis import default_alkalosis_pack
+from notegen.knowledge import shipped_knowledge
 from notegen.workup.facts import derive_facts, urine_calcium_creatinine_ratio
 
-PACK = default_alkalosis_pack()
+PACK = shipped_knowledge().alkalosis_pack
 
 
 def facts_of(case: Case) -> dict[str, Fact]:
