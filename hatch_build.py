@@ -4,8 +4,9 @@ The compiled templates land in the wheel at `notegen/_data/templates_compiled/`,
 lets an installed notegen tell whether they still match its jinja2 and its templates (see
 `notegen/render/compiled_templates.py`). The shipped rule packs, read, validated and checked, land at
 `notegen/_data/packs_prepared/` with a manifest of what it was made from (see
-`notegen/knowledge/prepared_pack.py`). An editable install reads the templates and rules from the
-checkout and prepares them as it always has, so it gets neither.
+`notegen/knowledge/prepared_pack.py`), and so do the considerations (`rules/management.yaml`),
+checked against those packs (`notegen/assess/management_file.py`). An editable install reads the
+templates and rules from the checkout and prepares them as it always has, so it gets neither.
 """
 
 from __future__ import annotations
@@ -31,6 +32,7 @@ class CompileTemplatesHook(BuildHookInterface):
         # them here; it needs jinja2, pydantic and PyYAML (build requirements).
         sys.path.insert(0, self.root)
         try:
+            from notegen.assess.management_file import prepare_considerations
             from notegen.knowledge.prepared_pack import SHIPPED_PACKS, prepare_pack
             from notegen.render.template_build import compile_templates
         finally:
@@ -44,6 +46,7 @@ class CompileTemplatesHook(BuildHookInterface):
         try:
             for name in SHIPPED_PACKS:
                 prepare_pack(Path("rules") / name, self._packs, name)
+            prepare_considerations(Path("rules"), self._packs)
         finally:
             os.chdir(here)
         build_data["force_include"][str(self._packs)] = PACKS_IN_WHEEL

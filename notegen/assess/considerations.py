@@ -11,7 +11,9 @@ its three-valued logic over the facts of `notegen.assess.facts`:
 
 Loading checks every condition against the fact catalogue of the LOADED alkalosis pack (the shipped
 one with any service folder laid over it), so a cause a service adds can be named at once and a
-typo fails with its file and line. No doses: the file holds considerations for the clinician.
+typo fails with its file and line (`notegen.assess.management_file`). The shipped file alone is
+used as the wheel's build hook checked it, while every rule file matches. No doses: the file holds
+considerations for the clinician.
 """
 
 from __future__ import annotations
@@ -20,21 +22,25 @@ import functools
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Annotated, Any
 
-from pydantic import Field, ValidationError
-
-from notegen.assess.facts import MedicationGroup, consideration_catalogue, consideration_facts
+from notegen.assess.facts import MedicationGroup, consideration_facts
+from notegen.assess.management_file import (
+    PREPARED_NAME,
+    Checked,
+    ConsiderationSpec,
+    ManagementFile,
+    check_file,
+    prepare_considerations,
+    setting_specs,
+)
 from notegen.assess.model import Assessment, WithheldConsideration
 from notegen.engine import RulePack
-from notegen.engine.checks import check_conditions
-from notegen.engine.conditions import FALSE, TRUE, Compiled, ConditionSyntaxError, Env, Limits, compile_condition
+from notegen.engine.conditions import FALSE, TRUE, Compiled, Env, Limits, compile_condition
 from notegen.engine.facts import BooleanFact, Fact, MissingFact, TextFact, display_fact, fact_value
-from notegen.engine.pack import ConditionField, FactSpec, Id, PackModel, Problem, SettingSpec, Text
-from notegen.engine.source import PackSourceError, SourceDict, locate, read_yaml
+from notegen.engine.pack import FactSpec, Problem
 from notegen.engine.wording import Template, parse_template
 from notegen.errors import RulePackError
-from notegen.knowledge import ACIDOSIS_PACK, ALKALOSIS_PACK, rule_pack, shipped_knowledge
+from notegen.knowledge import ACIDOSIS_PACK, ALKALOSIS_PACK, rule_pack
 from notegen.resources import rules_dir
 
 __all__ = [
@@ -44,113 +50,12 @@ __all__ = [
     "check_considerations",
     "consider",
     "load_considerations",
+    "prepare_considerations",
     "management_considerations",
     "select_considerations",
     "weigh_considerations",
     "withheld_considerations",
 ]
-
-FILE_NAME = "management.yaml"
-SECTIONS = ("settings", "medication_groups", "considerations")
-
-
-# The file's content ----------------------------------------------------------------------------
-
-
-class Contraindication(PackModel):
-    """A condition under which the consideration must not be printed, with its reason and source."""
-
-    if_: ConditionField = Field(alias="if")
-    because: Text
-    source: Text
-
-
-class Addition(PackModel):
-    """A sentence added to the consideration when its condition holds."""
-
-    if_: ConditionField = Field(alias="if")
-    says: Text
-    source: Text
-
-
-class ConsiderationSpec(PackModel):
-    id: Id
-    when: ConditionField
-    never_when: tuple[Contraindication, ...] = ()
-    says: Text
-    also: tuple[Addition, ...] = ()
-    source: Text
-
-
-class GroupSpec(PackModel):
-    id: Id
-    classes: Annotated[tuple[str, ...], Field(min_length=1)]
-    label: Text
-
-
-class ManagementFile(PackModel):
-    settings: tuple[SettingSpec, ...] = ()
-    medication_groups: tuple[GroupSpec, ...] = ()
-    considerations: tuple[ConsiderationSpec, ...] = ()
-
-
-# Loading ---------------------------------------------------------------------------------------
-
-
-def _explain(error: ValidationError, raw: SourceDict) -> list[Problem]:
-    problems: list[Problem] = []
-    for detail in error.errors():
-        cause = (detail.get("ctx") or {}).get("error")
-        if isinstance(cause, ConditionSyntaxError):
-            problems.append((cause.where[0], cause.where[1], cause.message))
-            continue
-        loc = tuple(detail["loc"])
-        where = locate(raw, loc[:-1] if detail["type"] == "missing" else loc)
-        field = ".".join(str(part) for part in loc)
-        problems.append((where[0], where[1], f"`{field}`: {detail['msg'].removeprefix('Value error, ')}"))
-    return problems
-
-
-def _read(path: Path, problems: list[Problem]) -> ManagementFile | None:
-    try:
-        raw = read_yaml(path)
-    except PackSourceError as error:
-        problems.append((error.where[0], error.where[1], error.message))
-        return None
-    if not isinstance(raw, SourceDict) or not raw:
-        problems.append((str(path), 1, f"expected a mapping with the sections {', '.join(SECTIONS)}"))
-        return None
-    unknown = [key for key in raw if key not in SECTIONS]
-    for key in unknown:
-        where = raw.where_of(key)
-        problems.append((where[0], where[1], f"unknown section `{key}`; sections are {', '.join(SECTIONS)}"))
-    if unknown:
-        return None
-    try:
-        return ManagementFile.model_validate(raw)
-    except ValidationError as error:
-        problems.extend(_explain(error, raw))
-        return None
-
-
-def _merge(files: Sequence[ManagementFile], problems: list[Problem]) -> ManagementFile:
-    """Lay each file over the ones before it: an item with a known id replaces it, a new id is added."""
-    merged: dict[str, dict[str, Any]] = {name: {} for name in SECTIONS}
-    for file in files:
-        for name in SECTIONS:
-            seen: dict[str, int | None] = {}
-            for item in getattr(file, name):
-                if item.id in seen:
-                    message = f"id `{item.id}` is used twice (first on line {seen[item.id]})"
-                    problems.append((item.where[0], item.where[1], message))
-                seen[item.id] = item.where[1]
-                merged[name][item.id] = item
-    return ManagementFile.model_construct(
-        settings=tuple(merged["settings"].values()),
-        medication_groups=tuple(merged["medication_groups"].values()),
-        considerations=tuple(merged["considerations"].values()),
-    )
-
 
 @dataclass(frozen=True)
 class _Compiled:
@@ -169,48 +74,15 @@ class Considerations:
     pack: RulePack
     groups: tuple[MedicationGroup, ...]
     catalogue: Mapping[str, FactSpec]
-    acidosis_pack: RulePack | None = None
+    acidosis_causes: tuple[str, ...] = ()  # the acidosis pack's cause ids: `cause_<id>` facts
 
     @property
     def specs(self) -> tuple[ConsiderationSpec, ...]:
         return tuple(item.spec for item in self.items)
 
 
-def _settings(pack: RulePack, own: Sequence[SettingSpec]) -> list[SettingSpec]:
-    shipped = [
-        SettingSpec.model_validate({"id": name, "value": value, "unit": unit, "source": "the alkalosis pack"})
-        for name, (value, unit) in pack.settings.items()
-    ]
-    return [*shipped, *own]
-
-
-def _check(merged: ManagementFile, pack: RulePack, catalogue: Mapping[str, FactSpec]) -> list[Problem]:
-    problems: list[Problem] = []
-    settings = _settings(pack, merged.settings)
-    for setting in merged.settings:
-        if setting.id in pack.settings or setting.id in catalogue:
-            where = setting.where
-            problems.append((where[0], where[1], f"setting `{setting.id}` has the name of a pack setting or fact"))
-    known_classes = {c for info in shipped_knowledge().medications.values() for c in info.classes}
-    for group in merged.medication_groups:
-        for name in group.classes:
-            if name not in known_classes:
-                where = group.where_of("classes")
-                problems.append((where[0], where[1], f"medication class `{name}` is in no vocabulary entry"))
-    conditions = []
-    names = set(catalogue) | {s.id for s in settings}
-    for item in merged.considerations:
-        conditions += [item.when, *(c.if_ for c in item.never_when), *(a.if_ for a in item.also)]
-        for text, where in ((item.says, item.where_of("says")), *((a.says, a.where_of("says")) for a in item.also)):
-            for name in parse_template(text).names:
-                if name not in names:
-                    problems.append((where[0], where[1], f"placeholder `{{{name}}}` names no fact or setting"))
-    problems += check_conditions(conditions, catalogue.values(), settings)
-    return problems
-
-
 def _compile(merged: ManagementFile, pack: RulePack) -> tuple[_Compiled, ...]:
-    settings = {s.id: s.value for s in _settings(pack, merged.settings)}
+    settings = {s.id: s.value for s in setting_specs(pack, merged.settings)}
     limits = Limits(settings, {})
     return tuple(
         _Compiled(
@@ -224,25 +96,9 @@ def _compile(merged: ManagementFile, pack: RulePack) -> tuple[_Compiled, ...]:
     )
 
 
-def _files(folders: tuple[Path, ...]) -> list[Path]:
-    # The shipped file must exist; a service's folder need not change the considerations.
-    return [folders[0] / FILE_NAME, *(f / FILE_NAME for f in folders[1:] if (f / FILE_NAME).is_file())]
-
-
-def _build(
-    folders: tuple[Path, ...], pack: RulePack, acidosis_pack: RulePack | None = None
-) -> tuple[Considerations | None, list[Problem]]:
-    problems: list[Problem] = []
-    files = [parsed for path in _files(folders) if (parsed := _read(path, problems)) is not None]
-    if problems:
-        return None, problems
-    merged = _merge(files, problems)
-    groups = tuple(MedicationGroup(g.id, g.classes, g.label) for g in merged.medication_groups)
-    catalogue = consideration_catalogue(pack, groups, acidosis_pack)
-    problems += _check(merged, pack, catalogue)
-    if problems:
-        return None, sorted(set(problems), key=lambda p: (p[0], p[1] or 0, p[2]))
-    return Considerations(_compile(merged, pack), pack, groups, catalogue, acidosis_pack), []
+def _assemble(checked: Checked, pack: RulePack) -> Considerations:
+    compiled = _compile(checked.merged, pack)
+    return Considerations(compiled, pack, checked.groups, checked.catalogue, checked.acidosis_causes)
 
 
 def _pack(service_folders: tuple[Path, ...]) -> RulePack:
@@ -256,10 +112,22 @@ def _acidosis_pack(service_folders: tuple[Path, ...]) -> RulePack:
 @functools.lru_cache(maxsize=16)
 def _load(resolved: tuple[Path, ...], given: tuple[Path, ...]) -> Considerations:
     # Cached by where the folders are (`resolved`); problems name the files as the user gave them.
-    loaded, problems = _build((_shipped_folder(), *given), _pack(given), _acidosis_pack(given))
-    if loaded is None:
+    pack = _pack(given)
+    if not given and (prepared := _prepared()) is not None:
+        return _assemble(prepared, pack)
+    checked, problems = check_file((_shipped_folder(), *given), pack, _acidosis_pack(given))
+    if checked is None:
         raise RulePackError(problems)
-    return loaded
+    return _assemble(checked, pack)
+
+
+def _prepared() -> Checked | None:
+    """The shipped considerations as the wheel's build hook checked them, while every rule file still matches."""
+    from notegen.knowledge.prepared_pack import load_prepared
+    from notegen.resources import prepared_packs_dir
+
+    prepared = load_prepared(PREPARED_NAME, _shipped_folder(), prepared_packs_dir())
+    return prepared if isinstance(prepared, Checked) else None
 
 
 @functools.cache
@@ -285,7 +153,7 @@ def check_considerations(rules_dirs: Sequence[Path] = ()) -> list[Problem]:
         pack, acidosis_pack = _pack(folders), _acidosis_pack(folders)
     except RulePackError:
         return []
-    return _build((_shipped_folder(), *folders), pack, acidosis_pack)[1]
+    return check_file((_shipped_folder(), *folders), pack, acidosis_pack)[1]
 
 
 # Selecting -------------------------------------------------------------------------------------
@@ -325,7 +193,7 @@ class Verdict:
 
 
 def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
-    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_pack)
+    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_causes)
     # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
     env: Env = {
         name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)

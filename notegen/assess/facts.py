@@ -155,7 +155,7 @@ def consideration_facts(
     assessment: Assessment,
     pack: RulePack,
     groups: Sequence[MedicationGroup],
-    acidosis_pack: RulePack | None = None,
+    acidosis_causes: Sequence[str] = (),
 ) -> dict[str, Fact]:
     """The facts of `consideration_catalogue` for this assessment; a value not held is missing, never guessed."""
     case = assessment.case
@@ -166,10 +166,10 @@ def consideration_facts(
     present |= {m.mechanism for m in assessment.generation if m.status == "present"}
     suggested = {t.test for t in assessment.next_tests}
     facts.update({f"cause_{c.id}": BooleanFact(c.id in likely) for c in pack.causes})
-    if acidosis_pack is not None:
+    if acidosis_causes:
         entries = assessment.acidosis.differential if assessment.acidosis is not None else ()
         acidosis_likely = {c.cause for c in entries if c.tier in ("likely", "possible")}
-        facts.update({f"cause_{c.id}": BooleanFact(c.id in acidosis_likely) for c in acidosis_pack.causes})
+        facts.update({f"cause_{cause}": BooleanFact(cause in acidosis_likely) for cause in acidosis_causes})
     facts.update({f"factor_{f.id}": BooleanFact(f.id in present) for f in pack.factors})
     facts.update({f"test_{t.id}": BooleanFact(t.id in suggested) for t in pack.tests})
     levels: dict[str, str] = {}

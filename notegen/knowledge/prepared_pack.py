@@ -29,7 +29,17 @@ from typing import TYPE_CHECKING, Any
 if TYPE_CHECKING:
     from notegen.engine import RulePack
 
-__all__ = ["FORMAT", "MANIFEST", "SHIPPED_PACKS", "load_prepared_pack", "pack_digests", "prepare_pack", "prepared_key"]
+__all__ = [
+    "FORMAT",
+    "MANIFEST",
+    "SHIPPED_PACKS",
+    "load_prepared",
+    "load_prepared_pack",
+    "pack_digests",
+    "prepare_pack",
+    "prepared_key",
+    "write_prepared",
+]
 
 MANIFEST = "manifest.json"
 FORMAT = 1  # of the manifest and the pickle layout
@@ -99,7 +109,7 @@ def load_prepared_pack(name: str, folder: Path, prepared: Path | None) -> RulePa
         if manifest["packs"][name] != prepared_key(folder):
             return None
         spec = pickle.loads((prepared / f"{name}.pickle").read_bytes())  # noqa: S301 - notegen's own file
-    except (OSError, ValueError, KeyError, TypeError, AttributeError, ImportError, pickle.UnpicklingError):
+    except (OSError, ValueError, KeyError, TypeError, AttributeError, ImportError, EOFError, pickle.UnpicklingError):
         return None
     from notegen.engine.pack import PackSpec
     from notegen.engine.program import compile_pack
@@ -107,3 +117,46 @@ def load_prepared_pack(name: str, folder: Path, prepared: Path | None) -> RulePa
     if not isinstance(spec, PackSpec):
         return None
     return compile_pack(spec, (folder,))
+
+
+# Any other shipped rule data checked at build time (the considerations) ----------------------------
+
+
+def rules_digests(rules: Path) -> dict[str, str]:
+    """Relative path -> SHA-256 of every file under the rules folder: any rule file edited changes the key."""
+    return {
+        path.relative_to(rules).as_posix(): hashlib.sha256(path.read_bytes()).hexdigest()
+        for path in sorted(rules.rglob("*"))
+        if path.is_file() and not path.name.startswith(".")
+    }
+
+
+def _key(rules: Path) -> dict[str, Any]:
+    return {**prepared_key(rules), "files": rules_digests(rules)}
+
+
+def write_prepared(value: object, name: str, rules: Path, target: Path) -> None:
+    """Keep `value`, checked from the rule files under `rules`, as `<name>.pickle` with its key `<name>.json`.
+
+    The key is that of `prepared_key` with every file under `rules` (not one pack folder): what is
+    prepared this way may read any of them.
+    """
+    target.mkdir(parents=True, exist_ok=True)
+    (target / f"{name}.pickle").write_bytes(pickle.dumps(value, protocol=pickle.HIGHEST_PROTOCOL))
+    (target / f"{name}.json").write_text(json.dumps(_key(rules), indent=1, sort_keys=True) + "\n", encoding="utf-8")
+
+
+def load_prepared(name: str, rules: Path, prepared: Path | None) -> object | None:
+    """What `write_prepared` kept under `name`, if its key still matches the files under `rules`; else None.
+
+    `NOTEGEN_PREPARED_PACK=0` turns this off too. The caller checks the type of what it gets.
+    """
+    if prepared is None or os.environ.get("NOTEGEN_PREPARED_PACK") == "0":
+        return None
+    try:
+        if json.loads((prepared / f"{name}.json").read_text(encoding="utf-8")) != _key(rules):
+            return None
+        value: object = pickle.loads((prepared / f"{name}.pickle").read_bytes())  # noqa: S301 - notegen's own file
+    except (OSError, ValueError, KeyError, TypeError, AttributeError, ImportError, EOFError, pickle.UnpicklingError):
+        return None
+    return value
