@@ -33,6 +33,7 @@ class CompileTemplatesHook(BuildHookInterface):
         sys.path.insert(0, self.root)
         try:
             from notegen.assess.management_file import prepare_considerations
+            from notegen.knowledge import prepare_knowledge
             from notegen.knowledge.prepared_pack import SHIPPED_PACKS, prepare_pack
             from notegen.render.template_build import compile_templates
         finally:
@@ -47,6 +48,7 @@ class CompileTemplatesHook(BuildHookInterface):
             for name in SHIPPED_PACKS:
                 prepare_pack(Path("rules") / name, self._packs, name)
             prepare_considerations(Path("rules"), self._packs)
+            prepare_knowledge(Path("rules"), self._packs)
         finally:
             os.chdir(here)
         build_data["force_include"][str(self._packs)] = PACKS_IN_WHEEL

@@ -15,6 +15,7 @@ from notegen.assess.management_file import PREPARED_NAME, Checked, check_file, p
 from notegen.engine import load_pack
 from notegen.errors import RulePackError
 from notegen.intake.read import read_case
+from notegen.knowledge import Knowledge
 from notegen.knowledge.prepared_pack import load_prepared
 from notegen.pipeline import Drafter, DraftOptions
 from notegen.resources import rules_dir
@@ -144,3 +145,19 @@ def test_a_service_folder_is_always_read_from_its_yaml(
     loaded = considerations.load_considerations([service])
     assert loaded.items  # the shipped ones, read from the YAML and laid under the service's (empty) file
     assert asked == []
+
+
+def test_a_note_without_an_acidosis_loads_no_acidosis_pack(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch, fresh_cache: None
+) -> None:
+    # The considerations name the acidosis causes; prepared, they carry the ids and need not load the pack.
+    target = tmp_path / "shipped-prepared"
+    prepare_considerations(rules_dir(), target)
+    monkeypatch.setattr("notegen.resources.prepared_packs_dir", lambda: target)
+    knowledge = Knowledge()
+    monkeypatch.setattr("notegen.knowledge.shipped_knowledge", lambda: knowledge)
+    case = read_case(str(SAMPLES[0].with_name("gastric_suction.yaml")))
+    note = Drafter().draft(case, DraftOptions(output_format="markdown"))
+    assert "alkalosis" in note
+    assert "alkalosis_pack" in vars(knowledge)
+    assert "acidosis_pack" not in vars(knowledge)

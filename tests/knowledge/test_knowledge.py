@@ -31,6 +31,15 @@ def test_each_part_is_read_once() -> None:
     assert "furosemide" in knowledge.medications
 
 
+def test_a_pack_asked_for_by_name_loads_only_that_pack() -> None:
+    knowledge = Knowledge()
+    assert knowledge.pack("alkalosis") is knowledge.alkalosis_pack
+    assert "acidosis_pack" not in vars(knowledge)  # each pack costs milliseconds to load
+    assert knowledge.pack("acidosis") is knowledge.acidosis_pack
+    with pytest.raises(KeyError):
+        knowledge.pack("no-such-pack")
+
+
 def _folders(tmp_path: Path) -> dict[str, Path]:
     """Invented service folders, good and broken, each broken in one file."""
     made: dict[str, Path] = {}
