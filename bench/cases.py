@@ -107,7 +107,7 @@ def make_case(index: int, seed: int = 2026) -> dict[str, Any]:
     """Case number `index` of the series `seed`; the same arguments always give the same case."""
     rng = random.Random(seed * 1_000_003 + index)
     pattern = rng.choice(PATTERNS)
-    case: dict[str, Any] = {"case": f"invented case {index}"}
+    case: dict[str, Any] = {"case": f"invented case {index}", "units": "conventional"}
     case["patient"] = {
         "age": rng.randint(19, 92),
         "sex": rng.choice(("female", "male")),

