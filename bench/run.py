@@ -227,6 +227,8 @@ def pack_load(env: dict[str, str], repeats: int) -> dict[str, float]:
 import json, statistics, time
 from pathlib import Path
 from notegen.engine import load_pack
+from notegen.knowledge import ALKALOSIS_PACK
+from notegen.knowledge.packs import pack_dirs
 from notegen.knowledge.settings import load_acid_base_settings
 dirs = pack_dirs(ALKALOSIS_PACK)
 started = time.perf_counter(); load_pack(dirs); first = time.perf_counter() - started
@@ -249,8 +251,6 @@ _SHIPPED_PACK = """
 import time
 started = time.perf_counter()
 from notegen.knowledge.packs import load_rule_pack
-from notegen.knowledge import ALKALOSIS_PACK  # noqa: E402
-from notegen.knowledge.packs import pack_dirs  # noqa: E402
 load_rule_pack("alkalosis")
 print((time.perf_counter() - started) * 1e3)
 """

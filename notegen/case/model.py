@@ -68,6 +68,7 @@ class Measurement(BaseModel):
     qualifier: Literal["<", ">"] | None = None  # "<10" is held as value 10, qualifier "<"
     taken_at: datetime | None = None
     source: str = "case file"  # e.g. "case file", "paste line 4", "FHIR Observation/obs-3", "--set"
+    sample: Literal["arterial", "venous"] | None = None  # a gas value's own gas sample, when stated
 
 
 class Patient(BaseModel):

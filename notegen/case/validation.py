@@ -251,6 +251,7 @@ def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, 
                 qualifier=qualifier,  # type: ignore[arg-type]
                 taken_at=taken_at,
                 source=col.source(key_path),
+                sample=values.get("sample"),  # each gas keeps its own sample (None outside the gas section)
             )
         )
     if section == "gas" and not _unit_given(values.get("pco2")):

@@ -12,21 +12,10 @@ _VENOUS_LABELS = {"gas.ph": "Venous pH", "gas.pco2": "PvCO2", "gas.hco3": "HCO3 
 _NEUTRAL_LABELS = {"gas.pco2": "PCO2", "gas.po2": "PO2"}
 
 
-def _gas_sample(measurement: Measurement, case: Case) -> str | None:
-    """The sample of the gas `measurement` came from (each gas keeps its own), or None when not stated."""
-    key = measurement.field.split(".", 1)[1]
-    matches = {
-        gas.sample
-        for gas in (*case.earlier_gas, case.gas)
-        if gas.taken_at == measurement.taken_at and getattr(gas, key, None) == measurement.value
-    }
-    return matches.pop() if len(matches) == 1 else None
-
-
 def field_label(field: str, case: Case, measurement: Measurement | None = None) -> str:
 
     if measurement is not None and field.startswith("gas."):
-        sample = _gas_sample(measurement, case)
+        sample = measurement.sample  # each gas keeps its own sample type
         if sample == "venous" and field in _VENOUS_LABELS:
             return _VENOUS_LABELS[field]
         if sample is None and field in _NEUTRAL_LABELS and any(

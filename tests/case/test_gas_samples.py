@@ -37,3 +37,21 @@ def test_a_trend_of_one_sample_type_keeps_its_plain_label() -> None:
     data = {"units": "conventional", "gas": [dict(g, sample="arterial") for g in SERIAL["gas"]]}
     labels = {s.label for s in build_trend(validate_case(data))}
     assert {"pH", "PCO2", "HCO3"} <= labels
+
+
+def test_each_value_carries_its_own_gas_sample() -> None:
+    # An arterial and a venous gas drawn in the same minute with the same PCO2: before, the label was
+    # found by matching time and value against every gas, which could not tell these two apart (and
+    # cost a scan of every gas for every value: quadratic in serial gases).
+    data = {
+        "units": "conventional",
+        "gas": [
+            {"sample": "venous", "ph": 7.40, "pco2": 46, "hco3": 28, "taken_at": "2026-03-14T06:00"},
+            {"sample": "arterial", "ph": 7.46, "pco2": 46, "hco3": 32, "taken_at": "2026-03-14T06:00"},
+        ],
+    }
+    case = validate_case(data)
+    samples = {(m.field, m.value, m.sample) for m in case.measurements if m.field.startswith("gas.")}
+    assert ("gas.pco2", 46, "arterial") in samples
+    assert ("gas.ph", 7.40, "venous") in samples
+    assert {m.sample for m in case.measurements if m.field.startswith("chem.")} <= {None}
