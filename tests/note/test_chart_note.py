@@ -123,13 +123,13 @@ def _without_magnesium_or_creatinine() -> Assessment:
 def test_a_cause_waiting_on_a_missing_test_is_never_listed_as_unlikely() -> None:
     assessment = _without_magnesium_or_creatinine()
     waiting = {c.cause: c.not_assessable_without for c in assessment.differential if c.not_assessable_without}
-    assert waiting["reduced_gfr"] == ("eGFR (serum creatinine, age and sex)",)
+    assert waiting["reduced_gfr"] == ("eGFR (from the serum creatinine, age and sex)",)
     assert waiting["potassium_magnesium_depletion"] == ("serum magnesium",)
     sheet = _note(assessment.case, worksheet=True)
     unlikely = sheet[sheet.index("### Unlikely") : sheet.index("## How it arose")]
     assert "Reduced GFR" not in unlikely and "magnesium depletion" not in unlikely
     assert "Nothing in these values argues for it" not in sheet
-    assert "- **Reduced GFR:** not assessable without an eGFR (serum creatinine, age and sex)." in sheet
+    assert "- **Reduced GFR:** not assessable without an eGFR (from the serum creatinine, age and sex)." in sheet
     assert "- **Severe potassium or magnesium depletion:** not assessable without a serum magnesium." in sheet
     paragraph = _note(assessment.case, brief=True)
     assert "magnesium depletion cannot be assessed without a serum magnesium" in paragraph
