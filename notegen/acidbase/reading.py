@@ -150,12 +150,17 @@ def _ph_status(ph: float | None, w: ReadingDraft) -> PhStatus | None:
     return status
 
 
-def _driver(name: Disorder, pco2: float, hco3: float) -> str:
+def _pco2_word(w: ReadingDraft) -> str:
+    """A venous PCO2 is never called arterial."""
+    return "PvCO2" if w.venous else "PaCO2"
+
+
+def _driver(name: Disorder, pco2: float, hco3: float, w: ReadingDraft) -> str:
     """'the high bicarbonate (36 mmol/L)': the value behind a disorder, in words."""
     high = name in ("metabolic_alkalosis", "respiratory_acidosis")
     if name.startswith("metabolic"):
         return f"the {'high' if high else 'low'} bicarbonate ({mmol(hco3)})"
-    return f"the {'high' if high else 'low'} PaCO2 ({mm(pco2)})"
+    return f"the {'high' if high else 'low'} {_pco2_word(w)} ({mm(pco2)})"
 
 
 # long: one decision table, case by case, from the pH and the two values; split, its branches would lose their order
@@ -179,11 +184,14 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
             )
         return "undetermined", reason
     ph, pco2, hco3 = g.ph, g.pco2, g.hco3
+    # A venous PCO2 is read against the arterial range moved up by the mean venous-arterial difference
+    # (Bloom 2014), never converted: a PvCO2 of 48 is an ordinary venous value, not hypercapnia.
+    shift = s.venous_pco2_offset.value if w.venous else 0.0
     # Each process's share of the pH shift, from Henderson-Hasselbalch: positive pushes toward alkalemia.
     metabolic = math.log10(hco3 / s.hco3_normal.value)
-    respiratory = math.log10(s.pco2_normal.value / pco2)
+    respiratory = math.log10((s.pco2_normal.value + shift) / pco2)
     met_abnormal = hco3 < s.hco3_low.value or hco3 > s.hco3_high.value
-    resp_abnormal = pco2 < s.pco2_low.value or pco2 > s.pco2_high.value
+    resp_abnormal = pco2 < s.pco2_low.value + shift or pco2 > s.pco2_high.value + shift
     met_name: Disorder = "metabolic_alkalosis" if metabolic > 0 else "metabolic_acidosis"
     resp_name: Disorder = "respiratory_alkalosis" if respiratory > 0 else "respiratory_acidosis"
     if status == "acidemia":
@@ -197,28 +205,28 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
     abnormal_toward = [t for t in toward if t[2]]
     if status == "normal" and not met_abnormal and not resp_abnormal:
         w.primary_basis = "all_normal"
-        return "none", "pH, PaCO2 and bicarbonate are all within their reference ranges"
+        return "none", f"pH, {_pco2_word(w)} and bicarbonate are all within their reference ranges"
     if abnormal_toward:
         name, _, _ = max(abnormal_toward, key=lambda t: t[1])
         if len(abnormal_toward) == 2:
             reason = (
-                f"both the bicarbonate and the PaCO2 push the pH the same way; the {WORDS[name]} "
+                f"both the bicarbonate and the {_pco2_word(w)} push the pH the same way; the {WORDS[name]} "
                 "accounts for more of the shift"
             )
         elif status == "normal":
             reason = (
                 f"the pH is within range but on the {'alkaline' if direction > 0 else 'acid'} side of "
-                f"{ph_text(s.ph_normal.value)}, which {_driver(name, pco2, hco3)} explains"
+                f"{ph_text(s.ph_normal.value)}, which {_driver(name, pco2, hco3, w)} explains"
             )
         else:
-            reason = f"{_driver(name, pco2, hco3)} accounts for the {status}"
+            reason = f"{_driver(name, pco2, hco3, w)} accounts for the {status}"
         w.primary_basis = "both_push_same_way" if len(abnormal_toward) == 2 else "one_value_explains"
         return name, reason
     if status != "normal" and toward:
         name, _, _ = max(toward, key=lambda t: t[1])
         w.primary_basis = "larger_push"
         return name, (
-            f"the pH is out of range while PaCO2 and bicarbonate sit just inside theirs; the "
+            f"the pH is out of range while {_pco2_word(w)} and bicarbonate sit just inside theirs; the "
             f"{WORDS[name]} is the larger push"
         )
     abnormal = [(n, a) for n, _, a in shares if a]
@@ -232,16 +240,17 @@ def _primary(g: GasValues, status: PhStatus | None, w: ReadingDraft) -> tuple[Pr
             f"bicarbonate out of range while the pH is normal, offset by an opposing {WORDS[resp_name]}",
         )
         w.add(
-            resp_name, f"PaCO2 out of range while the pH is normal, offset by an opposing {WORDS[met_name]}"
+            resp_name,
+            f"{_pco2_word(w)} out of range while the pH is normal, offset by an opposing {WORDS[met_name]}",
         )
         w.primary_basis = "offsetting_mixed"
         return "undetermined", (
-            "the pH sits at the mid-point with both PaCO2 and bicarbonate abnormal in "
+            f"the pH sits at the mid-point with both {_pco2_word(w)} and bicarbonate abnormal in "
             "opposite directions: a mixed disorder whose first process cannot be told"
         )
     w.primary_basis = "values_disagree"
     return "undetermined", (
-        "the pH does not fit the direction of the PaCO2 and bicarbonate; check the gas values"
+        f"the pH does not fit the direction of the {_pco2_word(w)} and bicarbonate; check the gas values"
     )
 
 
@@ -277,6 +286,10 @@ def read_acid_base(
             "arterial values outside shock; venous minus arterial averages pH -0.03 and bicarbonate "
             "+1 mmol/L, Bloom 2014; Kelly 2016). Venous PCO2 is not converted (limits of agreement -20 "
             "to +26 mmHg), so the compensation verdict is uncertain."
+        )
+        w.findings.append(
+            "The PvCO2 is read against the arterial PCO2 range moved up by the mean venous-arterial "
+            f"difference of {mm(s.venous_pco2_offset.value)} (Bloom 2014), not converted to a PaCO2."
         )
         if g.pco2 is not None and g.pco2 < s.venous_pco2_screen.value:
             w.findings.append(

@@ -78,6 +78,7 @@ class AcidBaseSettings(BaseModel):
     resp_alkalosis_chronic_slope: Setting
     resp_hco3_tolerance: Setting
     venous_pco2_screen: Setting
+    venous_pco2_offset: Setting
     alkalemia_warning: Setting
     alkalemia_critical: Setting
     acidemia_warning: Setting

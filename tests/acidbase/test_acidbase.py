@@ -301,6 +301,28 @@ def test_venous_pco2_is_never_set_against_the_arterial_prediction() -> None:
     assert (resp.compensation, resp.chronicity, resp.possible_disorders) == ("uncertain", "indeterminate", ())
 
 
+def test_a_normal_venous_gas_is_not_read_as_a_respiratory_acidosis() -> None:
+    # Bloom et al., Eur J Emerg Med 2014: venous PCO2 runs a mean 4.4 mmHg above the arterial value, so the
+    # venous reference range is the arterial 35-45 mmHg moved up: 39.4-49.4 mmHg. A venous pH 7.36 with a
+    # PvCO2 of 47 and a bicarbonate of 25.8 is an ordinary venous gas; it was read as a primary respiratory
+    # acidosis because the PvCO2 was set against the arterial upper limit of 45.
+    r = read_acid_base(Case(gas=Gas(sample="venous", ph=7.36, pco2=47, hco3=25.8)))
+    assert r.primary == "none"
+    assert r.disorders == ()
+    assert any("moved up" in f and "4.4 mmHg" in f and "Bloom 2014" in f for f in r.findings)
+    # The same values from an arterial sample still read as a respiratory acidosis.
+    arterial = read_acid_base(Case(gas=Gas(sample="arterial", ph=7.36, pco2=47, hco3=25.8)))
+    assert arterial.primary == "respiratory_acidosis"
+    # A venous PCO2 well above the moved range still reads as one, and a low one as a respiratory alkalosis
+    # (38 mmHg venous is about 33.6 arterial, below 35).
+    assert read_acid_base(Case(gas=Gas(sample="venous", ph=7.30, pco2=58, hco3=27.5))).primary == (
+        "respiratory_acidosis"
+    )
+    low = read_acid_base(Case(gas=Gas(sample="venous", ph=7.44, pco2=38, hco3=25)))
+    assert low.primary == "respiratory_alkalosis"
+    assert "PvCO2" in low.primary_reason and "PaCO2" not in low.primary_reason
+
+
 def test_venous_gas_low_pco2_screen() -> None:
     # Kelly 2016: a venous PCO2 below 45 mmHg makes arterial hypercapnia very unlikely.
     r = read_acid_base(Case(gas=_gas(30, 15, sample="venous")))
