@@ -23,7 +23,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Annotated, Any
 
 from notegen.cli.plain import plain_draft_arguments
-from notegen.errors import InputError, NotegenError, UsageError
+from notegen.errors import NotegenError, NothingToAssessError, UsageError
 
 if TYPE_CHECKING:
     import typer
@@ -187,14 +187,14 @@ def _draft(
         stdin=sys.stdin.buffer.read(MAX_BYTES + 1) if needs_stdin else None,  # one byte past the limit refuses
         window_hours=window_hours,
     )
-    if not case.measurements:
-        where = sources[0] if sources else "--set"
-        raise InputError(f"{where}: nothing to assess: the case holds no measured value; give gas, chem or urine "
-                         "values, or --paste a lab block")
+    try:
+        note = drafter.draft(case, options)
+    except NothingToAssessError as refusal:
+        raise refusal.at(sources[0] if sources else "--set", hint=", or --paste a lab block") from None
     for medication in case.context.meds:
         if not medication.recognised:  # in the note too; said here so a pipeline's log shows it
             _say(f"medication {medication.name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
-    _write_output(drafter.draft(case, options), output)
+    _write_output(note, output)
     return 0
 
 

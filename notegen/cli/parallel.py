@@ -42,6 +42,7 @@ class Drafted:
 
     note: str
     case_label: str | None
+    unknown_medications: tuple[str, ...] = ()  # names not in the vocabulary, said on standard error
 
 
 @dataclass(frozen=True, slots=True)
@@ -89,7 +90,7 @@ def draft_one(drafter: Drafter, job: Job, label: str, payload: object, stdin: by
             note = drafter.draft(case, job.options)
     except Exception as error:  # noqa: BLE001 - handed to the caller, which reports and counts it
         return error
-    return Drafted(note, case.label)
+    return Drafted(note, case.label, tuple(m.name for m in case.context.meds if not m.recognised))
 
 
 def drafted(
