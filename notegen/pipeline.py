@@ -27,7 +27,7 @@ from notegen.case.model import Case
 from notegen.case.trend import build_trend
 from notegen.errors import NothingToAssessError
 from notegen.knowledge import Knowledge, shipped_knowledge
-from notegen.knowledge.settings import AcidBaseSettings
+from notegen.knowledge.settings import AcidBaseSettings, DateOrder
 from notegen.note.document import Note
 from notegen.note.options import DraftOptions, OutputFormat
 
@@ -55,6 +55,19 @@ class Drafter:
     @property
     def settings(self) -> AcidBaseSettings:
         return self.knowledge.settings
+
+    @property
+    def date_order(self) -> DateOrder | None:
+        """How the service reads a pasted 03/04/2026 (`date_order` in its acid_base.yaml); None: refused."""
+        setting = self.settings.date_order
+        return setting.value if setting is not None else None
+
+    def read_case(self, source: str | None, **how: Any) -> Case:
+        """`notegen.intake.read.read_case` (same arguments), a pasted date read in the service's date order
+        unless the case file (`dates:`) or `date_order=` says otherwise."""
+        from notegen.intake.read import read_case
+
+        return read_case(source, service_date_order=self.date_order, **how)
 
     @property
     def alkalosis_pack(self) -> RulePack:

@@ -12,7 +12,11 @@ from datetime import datetime
 from notegen.errors import PasteError
 from notegen.intake.sections import as_utc
 
-__all__ = ["echo", "read_times"]
+__all__ = ["ORDER_HINT", "echo", "read_times"]
+
+# How a refusal of an ambiguous date says to give the order: the option, the case key (a service's
+# `date_order` setting in its rules folder does the same for all its cases).
+ORDER_HINT = "give the date order: --date-order day-first (or month-first), or `dates: day-first` in the case file"
 
 
 _TIME = r"(?:[T ]\s*(?P<{p}h>\d{{1,2}}):(?P<{p}mi>\d{{2}})(?::(?P<{p}s>\d{{2}}))?)?"
@@ -66,8 +70,7 @@ def _moment(
         if first <= 12 and second <= 12 and first != second and date_order is None:
             raise PasteError(
                 f"{match.group(0).strip()!r} could be day/month or month/day; write the date as "
-                f"{year:04d}-MM-DD, or say how dates are written: `dates: day-first` (or month-first) in "
-                "the case file, or --set dates=day-first", line=number, source=source)
+                f"{year:04d}-MM-DD, or {ORDER_HINT}", line=number, source=source)
         if first <= 12 and second <= 12 and first != second:
             month, day = (second, first) if date_order == "day-first" else (first, second)
         else:

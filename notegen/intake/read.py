@@ -9,13 +9,16 @@ from __future__ import annotations
 
 import re
 from collections.abc import Mapping, Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from notegen.case.checks import DEFAULT_WINDOW_HOURS
 from notegen.case.model import Case
 from notegen.case.validation import LAB_SECTIONS, validate_case
 from notegen.errors import InputError
 from notegen.intake.files import decode, parse_text, read_source
+
+if TYPE_CHECKING:
+    from notegen.knowledge.settings import DateOrder
 
 FHIR_MAX_DEPTH = 40  # FHIR nests deeper than a case file does
 
@@ -78,13 +81,19 @@ def _renumbered(provenance: Mapping[str, str], offsets: Mapping[str, int]) -> di
     return out
 
 
-def _date_order(data: Mapping[str, Any], overrides: Sequence[str]) -> str | None:
-    """How a pasted 03/04/2026 is read: `--set dates=...` (the last one) or the case file's `dates:`."""
+def _date_order(
+    data: Mapping[str, Any], overrides: Sequence[str], option: DateOrder | None, service: DateOrder | None
+) -> DateOrder | None:
+    """How a pasted 03/04/2026 is read: the command line's `--date-order` (or `--set dates=...`, the last
+    one), else the case file's `dates:`, else the service's `date_order` setting; None refuses it."""
     order = data.get("dates")
     for assignment in overrides:
         name, _, value = assignment.partition("=")
         if name.strip() == "dates":
             order = value.strip().strip("\"'")
+            if option is not None and order != option:
+                raise InputError(f"--date-order {option} and --set dates={order} disagree; give the date order once")
+    order = option or order or service
     return order if order in ("day-first", "month-first") else None
 
 
@@ -95,11 +104,15 @@ def read_case(
     overrides: Sequence[str] = (),
     stdin: bytes | None = None,
     window_hours: float = DEFAULT_WINDOW_HOURS,
+    date_order: DateOrder | None = None,
+    service_date_order: DateOrder | None = None,
 ) -> Case:
     """Read, merge and validate a case from any mix of the ways in.
 
     `source` is a case-file path, `-` for standard input, or None; `paste` is a path
-    or `-` for a pasted lab block. Only one of them may read standard input.
+    or `-` for a pasted lab block. Only one of them may read standard input. A pasted date such as
+    03/04/2026 reads in `date_order` (the command line's), else the case's `dates:`, else
+    `service_date_order` (a service's setting, `Drafter.date_order`).
     """
     if source == "-" and paste == "-":
         raise InputError("only one of the case file and the paste can come from standard input (-)")
@@ -128,7 +141,8 @@ def read_case(
             paste_text, paste_name = decode(stdin or b"", "<stdin>"), "pasted labs"
         else:
             paste_text, paste_name = read_source(paste)
-        result = parse_paste(paste_text, source=paste_name, date_order=_date_order(data, overrides))
+        order = _date_order(data, overrides, date_order, service_date_order)
+        result = parse_paste(paste_text, source=paste_name, date_order=order)
         if source is None:
             filename = paste_name
         data, offsets = _merge_labs(data, result.data, paste_name)
