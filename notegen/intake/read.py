@@ -97,6 +97,24 @@ def _date_order(
     return order if order in ("day-first", "month-first") else None
 
 
+def _holds_times(data: Mapping[str, Any]) -> bool:
+    """Whether any lab result of `data` (a case file's, a FHIR resource's) carries a time."""
+    for section in LAB_SECTIONS:
+        entries = data.get(section)
+        for entry in entries if isinstance(entries, list) else [entries]:
+            if isinstance(entry, Mapping) and entry.get("taken_at") is not None:
+                return True
+    return False
+
+
+def _other_dates(date: str, others: str, where: str) -> InputError:
+    """An ambiguous pasted date beside other dates: ordering them would need its reading."""
+    from notegen.intake.paste_dates import ORDER_HINT
+
+    return InputError(f"{where}: the pasted date {date!r} could be day/month or month/day, and {others} to be put "
+                      f"in order with it; write the pasted dates as YYYY-MM-DD, or {ORDER_HINT}")
+
+
 def read_case(
     source: str | None,
     *,
@@ -121,6 +139,7 @@ def read_case(
     unused: list[str] = []
     notices: list[str] = []
     filename = "--set"
+    date_as_written: str | None = None  # a pasted date read neither way (PasteDates.unresolved)
     if source is not None:
         text, filename = read_source(source, stdin)
         parsed = parse_text(text, filename, max_depth=FHIR_MAX_DEPTH)
@@ -145,17 +164,23 @@ def read_case(
         result = parse_paste(paste_text, source=paste_name, date_order=order)
         if source is None:
             filename = paste_name
+        date_as_written = result.date_as_written
+        if date_as_written is not None and _holds_times(data):
+            raise _other_dates(date_as_written, "the case file's results carry dates", paste_name)
         data, offsets = _merge_labs(data, result.data, paste_name)
         provenance.update(_renumbered(result.provenance, offsets))
         unused.extend(result.unused)
     if overrides:
         from notegen.intake.overrides import apply_overrides, override_provenance
 
+        if date_as_written is not None and any("taken_at" in a.partition("=")[0] for a in overrides):
+            raise _other_dates(date_as_written, "--set gives a result time", "--set")
         data = apply_overrides(data, list(overrides))
         provenance.update(override_provenance(list(overrides)))
     if source is None and paste is None and not overrides:
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
-    case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)
+    case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours,
+                         date_as_written=date_as_written)
     if unused or notices:
         case = case.model_copy(update={"notices": (*notices, *case.notices, *unused)})
     return case
