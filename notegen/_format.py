@@ -9,6 +9,7 @@ from __future__ import annotations
 import functools
 import math
 from collections.abc import Iterable
+from datetime import datetime
 from decimal import ROUND_HALF_UP, Decimal
 
 __all__ = [
@@ -17,6 +18,7 @@ __all__ = [
     "format_hours",
     "format_number",
     "format_range",
+    "format_result_time",
     "format_value",
     "format_value_beside",
     "join_words",
@@ -162,3 +164,13 @@ def format_hours(hours: float) -> str:
     text = format_value(hours)
     return f"{text} hour{'' if text == '1' else 's'}"
 
+
+def format_result_time(when: datetime, date_as_written: str | None = None) -> str:
+    """A result's time as every output shows it: "2026-03-14 06:30" (with its UTC offset when it has one).
+
+    `date_as_written` ("12/01/2026"): the case's one date, read neither day first nor month first; the
+    calendar date held in `when` is then one reading kept for ordering only and is never shown:
+    "12/01/2026 06:30".
+    """
+    text = when.isoformat(sep=" ", timespec="minutes")
+    return text if date_as_written is None else date_as_written + text[len("YYYY-MM-DD"):]

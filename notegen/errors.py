@@ -4,7 +4,8 @@
      ├── InputError              exit 2: the user's input cannot be used
      │    ├── CaseFileError      the case file cannot be read or parsed (file, line, column)
      │    ├── CaseValueError     a field has a wrong type, unit or implausible value (field path)
-     │    └── PasteError         a pasted lab block cannot be used (line)
+     │    ├── PasteError         a pasted lab block cannot be used (line)
+     │    └── NothingToAssessError  a valid case holds no measured value (the input's name)
      ├── UsageError              exit 2: the command line itself is wrong
      ├── RulePackError           exit 2: a rule pack fails its load-time checks (file, line, rule id)
      └── TemplateError           exit 2: a note template fails to compile or render (template, line)
@@ -113,6 +114,25 @@ class PasteError(InputError):
         if line is not None:
             where += f", line {line}"
         super().__init__(f"{where}: {message}")
+
+
+class NothingToAssessError(InputError):
+    """A valid case that holds no measured value: there is nothing to draft from.
+
+    Raised by the `Drafter` for every path; a caller that knows the input's name gives it with `at`.
+    """
+
+    def __init__(self, where: str | None = None, *, hint: str = "") -> None:
+        self.where = where
+        self.hint = hint
+        head = f"{where}: " if where else ""
+        super().__init__(
+            f"{head}nothing to assess: the case holds no measured value; give gas, chem or urine values{hint}"
+        )
+
+    def at(self, where: str, *, hint: str = "") -> NothingToAssessError:
+        """The same refusal naming its input (`hint`: what else this way in could give, e.g. a paste)."""
+        return self if self.where is not None else NothingToAssessError(where, hint=hint)
 
 
 class UsageError(NotegenError):

@@ -25,8 +25,9 @@ from notegen.assess.model import Assessment
 from notegen.assess.warnings import collect_warnings
 from notegen.case.model import Case
 from notegen.case.trend import build_trend
+from notegen.errors import NothingToAssessError
 from notegen.knowledge import Knowledge, shipped_knowledge
-from notegen.knowledge.settings import AcidBaseSettings
+from notegen.knowledge.settings import AcidBaseSettings, DateOrder
 from notegen.note.document import Note
 from notegen.note.options import DraftOptions, OutputFormat
 
@@ -56,6 +57,19 @@ class Drafter:
         return self.knowledge.settings
 
     @property
+    def date_order(self) -> DateOrder | None:
+        """How the service reads a pasted 03/04/2026 (`date_order` in its acid_base.yaml); None: refused."""
+        setting = self.settings.date_order
+        return setting.value if setting is not None else None
+
+    def read_case(self, source: str | None, **how: Any) -> Case:
+        """`notegen.intake.read.read_case` (same arguments), a pasted date read in the service's date order
+        unless the case file (`dates:`) or `date_order=` says otherwise."""
+        from notegen.intake.read import read_case
+
+        return read_case(source, service_date_order=self.date_order, **how)
+
+    @property
     def alkalosis_pack(self) -> RulePack:
         return self.knowledge.alkalosis_pack
 
@@ -69,7 +83,10 @@ class Drafter:
         case -> calculations -> acid-base reading -> rule walk (when there is a metabolic alkalosis).
         The shipped rule pack is loaded, and the rule engine imported, only when a case first needs
         them; a service's pack (`rules_dirs`) is loaded for every case, so its errors always show.
+        A case with no measured value is refused here, on every path (`NothingToAssessError`).
         """
+        if not _has_values(case):
+            raise NothingToAssessError()
         if self.rules_dirs:
             self.alkalosis_pack  # noqa: B018 - load and check the service's pack now
             self.acidosis_pack  # noqa: B018
@@ -126,6 +143,14 @@ class Drafter:
         cost more than drafting the note.
         """
         return self.assess(case, explain=explain).model_dump_json(by_alias=True) + "\n"
+
+
+def _has_values(case: Case) -> bool:
+    """Whether the case holds a measured value: read from a file, or set on a `Case` built in code."""
+    if case.measurements:
+        return True
+    return any(value is not None for section in (case.gas, case.chem, case.urine)
+               for name, value in section if name not in ("taken_at", "sample"))
 
 
 def _alkalosis_to_work_up(reading: AcidBaseReading) -> bool:

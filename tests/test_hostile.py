@@ -313,9 +313,10 @@ def test_the_network_block_works(no_network: list[str]) -> None:
 
 @pytest.mark.parametrize("output_format", FORMATS)
 def test_every_sample_drafts_without_the_network(no_network: list[str], output_format: str) -> None:
-    for source in [*SAMPLES, FHIR_BUNDLE]:
+    context_only = ROOT / "samples" / "with_paste" / "context_only.yaml"
+    for source in [*SAMPLES, FHIR_BUNDLE, context_only]:
         # the context-only sample holds no measured value: it is drafted with its paste, as the README shows
-        paste = ["--paste", str(source.with_name("pasted_labs.txt"))] if source.stem == "context_only" else []
+        paste = ["--paste", str(ROOT / "samples" / "pasted_labs.txt")] if source == context_only else []
         for extra in ([], ["--explain"], [] if output_format == "json" else ["--brief"]):
             result = runner.invoke(app, ["draft", str(source), "--format", output_format, *paste, *extra])
             assert result.exit_code == 0, f"{source.name} {extra}: {result.stderr}"

@@ -45,6 +45,7 @@ from notegen.assess.model import Assessment
 from notegen.case.model import Case
 from notegen.case.validation import validate_case
 from notegen.intake.read import read_case
+from notegen.knowledge.settings import SETTING_NAMES
 from notegen.pipeline import Drafter, DraftOptions
 
 ROOT = Path(__file__).parent.parent
@@ -83,7 +84,8 @@ def _leaves(value: Any, path: str = "") -> Iterator[tuple[str, Any]]:
 def _fixed_numbers(drafter: Drafter) -> set[float]:
     """4. SETTINGS and 5. CITATIONS of the shipped data, the same for every case."""
     allowed: set[float] = set(QUOTED_FIGURES)
-    for _, setting in drafter.settings:
+    for name in SETTING_NAMES:  # the numeric settings (the date order is a word)
+        setting = getattr(drafter.settings, name)
         allowed.add(float(setting.value))
         allowed |= {*_numbers(setting.source), *_numbers(setting.unit)}
     for pack in (drafter.alkalosis_pack, drafter.acidosis_pack):

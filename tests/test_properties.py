@@ -197,7 +197,7 @@ def patient(draw: st.DrawFn) -> dict[str, Any]:
 
 @st.composite
 def case_file(draw: st.DrawFn) -> dict[str, Any]:
-    """Any valid case file: every section optional, serial results sometimes."""
+    """Any valid case file with a measured value: every section optional, serial results sometimes."""
     system = draw(st.sampled_from(["conventional", "si"]))
     # the unit system is declared: without it a bare value of an analyte whose SI and conventional
     # numbers overlap is refused (test_unit_checks.py holds the undeclared properties)
@@ -220,7 +220,14 @@ def case_file(draw: st.DrawFn) -> dict[str, Any]:
         data["patient"] = draw(patient())
     if draw(st.integers(0, 2)) > 0:
         data["context"] = draw(context())
+    # a case without a measured value is refused (nothing to assess): not a case to draft
+    assume(any(key not in ("taken_at", "sample") for name in LAB_SECTIONS for entry in _entries(data.get(name))
+               for key in entry))
     return data
+
+
+def _entries(section: Any) -> list[dict[str, Any]]:
+    return [] if section is None else section if isinstance(section, list) else [section]
 
 
 @st.composite

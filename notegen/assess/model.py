@@ -6,11 +6,13 @@ note renderers read only this model, and the JSON output is this model dumped.
 
 from __future__ import annotations
 
+from pydantic import SerializationInfo, SerializerFunctionWrapHandler, model_serializer
+
 from notegen._model import FrozenModel
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
-from notegen.case.model import Case
+from notegen.case.model import Case, times_as_written
 from notegen.case.trend import TrendSeries
 from notegen.workup.acidosis_model import AcidosisWorkup
 from notegen.workup.model import (
@@ -57,3 +59,13 @@ class Assessment(FrozenModel):
     acidosis: AcidosisWorkup | None = None
     disclaimer: str = ""  # the draft's one-line disclaimer, as every note format prints it
     cautions: tuple[str, ...] = ()  # the cautions every note carries (reference ranges used, adults only...)
+
+    @model_serializer(mode="wrap")
+    # no return type: with one, pydantic would take it as the JSON schema of the whole model
+    def _trend_dates_as_written(self, handler: SerializerFunctionWrapHandler, info: SerializationInfo):  # type: ignore[no-untyped-def]
+        """The trend's times with the case's date as written, as the case's own times (`Case.date_as_written`)."""
+        data = handler(self)
+        if self.case.date_as_written is not None and info.mode_is_json() and isinstance(data, dict):
+            times_as_written([point for series in data.get("trend") or () for point in series.get("points", ())],
+                             self.case.date_as_written)
+        return data

@@ -97,6 +97,7 @@ class _Collector:
     problems: list[tuple[str, str]] = field(default_factory=list)
     measurements: list[Measurement] = field(default_factory=list)
     notices: list[str] = field(default_factory=list)
+    date_as_written: str | None = None  # the one date of every result, read neither way (Case.date_as_written)
 
     def problem(self, path: str, text: str) -> None:
         self.problems.append((path, text))

@@ -8,9 +8,12 @@ A value that was not given is `None`, never a default.
 from __future__ import annotations
 
 from datetime import datetime
-from typing import Literal
+from typing import Annotated, Any, Literal
 
-from pydantic import BaseModel, ConfigDict
+from pydantic import BaseModel, ConfigDict, SerializationInfo, SerializerFunctionWrapHandler, model_serializer
+from pydantic.json_schema import WithJsonSchema
+
+from notegen._format import format_result_time
 
 Sex = Literal["female", "male"]
 Sample = Literal["arterial", "venous"]
@@ -53,6 +56,20 @@ CANONICAL_UNITS: dict[str, str] = {
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
 
+# A result's time. In the JSON it is ISO 8601, except in a case whose date was read neither day first
+# nor month first (`Case.date_as_written`): there it is that date as written and the time.
+ResultTime = Annotated[datetime, WithJsonSchema(
+    {"type": "string", "description": "ISO 8601 date-time (2026-03-14T06:30:00); when the case's "
+     "date_as_written is set, that date as written and the time (12/01/2026 06:30)"}, mode="serialization")]
+
+
+def times_as_written(entries: list[Any], date_as_written: str) -> None:
+    """In dumped JSON data, write each entry's `taken_at` with the date as written (`format_result_time`)."""
+    for entry in entries:
+        when = entry.get("taken_at") if isinstance(entry, dict) else None
+        if isinstance(when, str):
+            entry["taken_at"] = format_result_time(datetime.fromisoformat(when), date_as_written)
+
 
 class Measurement(BaseModel):
     """One reported value: as reported, and as converted to the canonical unit."""
@@ -66,7 +83,7 @@ class Measurement(BaseModel):
     reported_unit: str
     reported_text: str | None = None  # the number as written ("1.0"), when the input shows it
     qualifier: Literal["<", ">"] | None = None  # "<10" is held as value 10, qualifier "<"
-    taken_at: datetime | None = None
+    taken_at: ResultTime | None = None
     source: str = "case file"  # e.g. "case file", "paste line 4", "FHIR Observation/obs-3", "--set"
     sample: Literal["arterial", "venous"] | None = None  # a gas value's own gas sample, when stated
 
@@ -88,7 +105,7 @@ class Gas(BaseModel):
     pco2: float | None = None
     hco3: float | None = None
     po2: float | None = None
-    taken_at: datetime | None = None
+    taken_at: ResultTime | None = None
 
 
 class Chem(BaseModel):
@@ -110,7 +127,7 @@ class Chem(BaseModel):
     osm: float | None = None
     bhb: float | None = None  # beta-hydroxybutyrate
     salicylate: float | None = None
-    taken_at: datetime | None = None
+    taken_at: ResultTime | None = None
 
 
 class Urine(BaseModel):
@@ -125,7 +142,7 @@ class Urine(BaseModel):
     calcium: float | None = None
     ketones: float | None = None  # acetoacetate, as a strip or assay reports it
     urea_nitrogen: float | None = None  # urine urea nitrogen, for the urine osmolal gap
-    taken_at: datetime | None = None
+    taken_at: ResultTime | None = None
 
 
 class BloodPressure(BaseModel):
@@ -185,3 +202,18 @@ class Case(BaseModel):
     earlier_urine: tuple[Urine, ...] = ()
     # What was given but not used, and why (unrecognised medications or findings, stale values ...).
     notices: tuple[str, ...] = ()
+    # Every result's one date as the paste wrote it ("12/01/2026"), when it reads both day first and
+    # month first and no order was given: the times order the results, the calendar date is not known.
+    # The times hold it in one reading for ordering only; every output shows it as written.
+    date_as_written: str | None = None
+
+    @model_serializer(mode="wrap")
+    # no return type: with one, pydantic would take it as the JSON schema of the whole model
+    def _dates_as_written(self, handler: SerializerFunctionWrapHandler, info: SerializationInfo):  # type: ignore[no-untyped-def]
+        data = handler(self)
+        if self.date_as_written is not None and info.mode_is_json() and isinstance(data, dict):
+            entries = [data.get(name) for name in ("gas", "chem", "urine")]
+            for name in ("earlier_gas", "earlier_chem", "earlier_urine", "measurements"):
+                entries.extend(data.get(name) or ())
+            times_as_written(entries, self.date_as_written)
+        return data

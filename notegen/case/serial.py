@@ -9,6 +9,7 @@ from __future__ import annotations
 from datetime import datetime, timedelta
 from typing import Any
 
+from notegen._format import format_result_time
 from notegen.case.checks import _Collector, _fmt
 
 __all__ = ["MAX_SPAN_DAYS", "check_span", "choose_current", "sort_key"]
@@ -29,7 +30,11 @@ MAX_SPAN_DAYS = 366  # results further apart are not one admission's serial resu
 
 
 def check_span(entries: dict[str, list[dict[str, Any]]], col: _Collector) -> None:
-    """Refuse results spread over more than a year: one mistyped year would make a result "the latest"."""
+    """Refuse results spread over more than a year: one mistyped year would make a result "the latest".
+
+    With a date read neither way (`Case.date_as_written`) every result is of that one day: the span is
+    within the day, whichever calendar date the times hold, so neither this check nor the window is fooled.
+    """
     times = [e["taken_at"] for items in entries.values() for e in items if e.get("taken_at") is not None]
     if len(times) < 2:
         return
@@ -37,8 +42,8 @@ def check_span(entries: dict[str, list[dict[str, Any]]], col: _Collector) -> Non
     if sort_key(newest) - sort_key(oldest) > timedelta(days=MAX_SPAN_DAYS):
         col.problem(
             "taken_at",
-            f"results run from {oldest.isoformat(sep=' ', timespec='minutes')} to "
-            f"{newest.isoformat(sep=' ', timespec='minutes')}, more than a year apart: a date is probably "
+            f"results run from {format_result_time(oldest, col.date_as_written)} to "
+            f"{format_result_time(newest, col.date_as_written)}, more than a year apart: a date is probably "
             "mistyped; correct it, or draft the older results as a case of their own",
         )
 
@@ -61,7 +66,7 @@ def choose_current(
         current[section] = items[chosen]
         earlier[section] = [e for i, e in enumerate(items) if i != chosen]
         if len(items) > 1 and items[chosen].get("taken_at"):
-            when = items[chosen]["taken_at"].isoformat(sep=" ", timespec="minutes")
+            when = format_result_time(items[chosen]["taken_at"], col.date_as_written)
             serial.setdefault(when, []).append(_SECTION_WORDS.get(section, section))
     if serial:
         # One line for all sections: the chart note lists it under what was given but not used.
@@ -72,10 +77,10 @@ def choose_current(
         try:
             newest = max(times, key=sort_key)
             for section in list(current):
-                when = current[section].get("taken_at")
-                if when is not None and newest - when > timedelta(hours=window_hours):
+                taken = current[section].get("taken_at")
+                if taken is not None and newest - taken > timedelta(hours=window_hours):
                     col.notices.append(
-                        f"{section} results from {when.isoformat(sep=' ', timespec='minutes')} are more than "
+                        f"{section} results from {format_result_time(taken, col.date_as_written)} are more than "
                         f"{_fmt(window_hours)} hours older than the newest results and were not combined with them"
                     )
                     earlier[section].append(current.pop(section))

@@ -6,11 +6,9 @@ for analytes measured more than once. Values are in the canonical units of `note
 
 from __future__ import annotations
 
-from datetime import datetime
-
 from pydantic import BaseModel, ConfigDict
 
-from notegen.case.model import Case, Chem, Gas, Urine
+from notegen.case.model import Case, Chem, Gas, ResultTime, Urine
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
 
@@ -29,7 +27,7 @@ TREND_FIELDS: tuple[tuple[str, str, str, str], ...] = (
 class TrendPoint(BaseModel):
     model_config = _FROZEN
 
-    taken_at: datetime | None
+    taken_at: ResultTime | None
     value: float
 
 

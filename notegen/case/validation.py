@@ -13,6 +13,7 @@ from typing import Any
 
 # The one Henderson-Hasselbalch (a pure function on numbers); pyproject's layer contract names this
 # single exception to "case imports only from below".
+from notegen._format import format_result_time
 from notegen.case import units as u
 from notegen.case.checks import (
     _VALUE_TEXT,
@@ -177,9 +178,14 @@ def _parse_time(raw: Any, path: str, col: _Collector) -> datetime | None:
     if when is None:
         col.problem(path, f"{str(raw)[:60]!r} is not an ISO date-time such as 2026-03-14T06:30")
     elif not YEARS[0] <= when.year <= YEARS[1]:
-        col.problem(path, f"{when.isoformat()} is not a plausible result time (year {when.year})")
+        col.problem(path, f"{_time_text(when, col)} is not a plausible result time (year {when.year})")
         when = None
     return when
+
+
+def _time_text(when: datetime, col: _Collector) -> str:
+    """A time in a refusal: ISO as given, or with the date as written when it reads both ways."""
+    return when.isoformat() if col.date_as_written is None else format_result_time(when, col.date_as_written)
 
 
 def _lab_entry(section: str, raw: Any, path: str, col: _Collector) -> dict[str, Any] | None:
@@ -295,7 +301,7 @@ def _lab_section(section: str, raw: Any, col: _Collector, entries: dict[str, lis
                     if key in ("taken_at", "sample") or key not in earlier:
                         continue
                     if abs(earlier[key] - value) > 1e-9:
-                        at = when[0].isoformat() if when[0] is not None else "(no time)"
+                        at = _time_text(when[0], col) if when[0] is not None else "(no time)"
                         col.problem(
                             f"{section}.{key}",
                             f"two different values ({_fmt(earlier[key])} and {_fmt(value)}) at the same time "
@@ -319,8 +325,13 @@ def validate_case(
     provenance: Mapping[str, str] | None = None,
     default_source: str = "case file",
     window_hours: float = DEFAULT_WINDOW_HOURS,
+    date_as_written: str | None = None,
 ) -> Case:
-    """Validate plain case data into a `Case`, or raise with every problem found."""
+    """Validate plain case data into a `Case`, or raise with every problem found.
+
+    `date_as_written`: every result's one date as a paste wrote it, read neither day first nor month
+    first (`Case.date_as_written`); the calendar dates of the times are then never shown.
+    """
     if data is None:
         raise CaseFileError("the file is empty", filename=filename)
     if not isinstance(data, Mapping):
@@ -336,6 +347,7 @@ def validate_case(
         provenance=provenance or {},
         default_source=default_source,
         declared="units" in data,
+        date_as_written=date_as_written,
     )
     for key in data:
         if key not in TOP_KEYS:
@@ -382,4 +394,5 @@ def validate_case(
         earlier_chem=tuple(build("chem", e) for e in earlier.get("chem", [])),
         earlier_urine=tuple(build("urine", e) for e in earlier.get("urine", [])),
         notices=tuple(col.notices),
+        date_as_written=date_as_written,
     )

@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import functools
 import gc
-import math
 import os
 import sys
 from collections.abc import Callable, Sequence
@@ -23,15 +22,13 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Annotated, Any
 
 from notegen.cli.plain import plain_draft_arguments
-from notegen.errors import InputError, NotegenError, UsageError
+from notegen.errors import NotegenError, NothingToAssessError, UsageError
 
 if TYPE_CHECKING:
     import typer
 
-MAX_WINDOW_HOURS = 100_000  # about eleven years: any longer window is a typing slip
 DEFAULT_WIDTH = 80
 MIN_WIDTH, MAX_WIDTH = 30, 400
-MIN_WINDOW_HOURS = 0.5
 APP_HELP = (
     "Draft the acid-base assessment section of a clinical note from lab values and context.\n\n"
     "Example: notegen draft samples/thiazide_and_vomiting.yaml"
@@ -94,14 +91,6 @@ def _utf8_streams() -> None:
                 pass
 
 
-def _check_window(window_hours: float) -> None:
-    if math.isfinite(window_hours) and window_hours < MIN_WINDOW_HOURS:
-        raise UsageError(f"--window-hours {window_hours:g}: give at least {MIN_WINDOW_HOURS:g} hours")
-    if not math.isfinite(window_hours) or not MIN_WINDOW_HOURS <= window_hours <= MAX_WINDOW_HOURS:
-        raise UsageError(f"--window-hours must be a number of hours from {MIN_WINDOW_HOURS:g} to "
-                         f"{MAX_WINDOW_HOURS:,}, not {window_hours}")
-
-
 def _exit_on_failure(code: int) -> None:
     if code:
         raise typer.Exit(code)
@@ -135,17 +124,18 @@ def _draft(
     ascii_only: bool = False,
     window_hours: float = 24.0,
     jobs: int = 1,
+    date_order: str | None = None,
 ) -> int:
     """The body of `notegen draft`, whichever parser read the arguments; returns the exit status.
 
     `output_format` None: the one `output`'s suffix names, else Markdown; `width` None: 80.
     """
-    from notegen.cli.choices import check_choices, format_for
+    from notegen.cli.choices import check_choices, check_window, date_order_choice, format_for
     from notegen.pipeline import Drafter, DraftOptions
 
     if width is not None and not MIN_WIDTH <= width <= MAX_WIDTH:
         raise UsageError(f"--width {width}: give a line width from {MIN_WIDTH} to {MAX_WIDTH}")
-    _check_window(window_hours)
+    check_window(window_hours)
     if jobs < 0:
         raise UsageError(f"--jobs {jobs}: give a number of processes, or 0 for one per core")
     chosen = format_for(output_format, output)
@@ -165,36 +155,36 @@ def _draft(
     if _is_batch(sources, jsonl=jsonl, out_dir=out_dir):
         from notegen.cli.batch import run_batch
 
-        if paste is not None or assignments:
-            raise UsageError("--paste and --set apply to a single case, not to a batch")
+        if paste is not None or assignments or date_order is not None:  # a service sets its date order in --rules
+            raise UsageError("--paste, --set and --date-order apply to a single case, not to a batch")
         if output is not None:
             raise UsageError(
                 "--output writes one note; for several cases give --output-folder FOLDER (one note per case)"
             )
         return run_batch(sources, drafter, options, out_dir=out_dir, jsonl=jsonl, window_hours=window_hours, jobs=jobs)
     from notegen.intake.files import MAX_BYTES
-    from notegen.intake.read import read_case
 
     if output is not None:
         from notegen.cli.batch_results import refuse_output_over_inputs
 
         refuse_output_over_inputs(output, [*sources, *([paste] if paste is not None else [])])
     needs_stdin = "-" in sources or paste == "-"
-    case = read_case(
+    case = drafter.read_case(
         sources[0] if sources else None,
         paste=paste,
         overrides=tuple(assignments),
         stdin=sys.stdin.buffer.read(MAX_BYTES + 1) if needs_stdin else None,  # one byte past the limit refuses
         window_hours=window_hours,
+        date_order=date_order_choice(date_order),
     )
-    if not case.measurements:
-        where = sources[0] if sources else "--set"
-        raise InputError(f"{where}: nothing to assess: the case holds no measured value; give gas, chem or urine "
-                         "values, or --paste a lab block")
+    try:
+        note = drafter.draft(case, options)
+    except NothingToAssessError as refusal:
+        raise refusal.at(sources[0] if sources else "--set", hint=", or --paste a lab block") from None
     for medication in case.context.meds:
         if not medication.recognised:  # in the note too; said here so a pipeline's log shows it
             _say(f"medication {medication.name!r} is not in notegen's vocabulary; it was kept but not reasoned with")
-    _write_output(drafter.draft(case, options), output)
+    _write_output(note, output)
     return 0
 
 
@@ -289,6 +279,10 @@ def draft(
         int, typer.Option("--jobs", "-j", metavar="N", show_default=False,
                           help="Batch: draft on N processes (0: one per core; default 1).")
     ] = 1,
+    date_order: Annotated[
+        str | None, typer.Option("--date-order", metavar="ORDER", show_default=False,
+                                 help="How a pasted date such as 03/04/2026 reads: day-first or month-first.")
+    ] = None,
 ) -> None:
     """Draft the assessment section for a case and print it.
 
@@ -314,6 +308,7 @@ def draft(
             ascii_only=ascii_only,
             window_hours=window_hours,
             jobs=jobs,
+            date_order=date_order,
         )
     )
     _exit_on_failure(code)

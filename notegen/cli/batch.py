@@ -18,10 +18,10 @@ import tempfile
 from collections.abc import Callable, Iterable, Iterator
 from contextlib import closing
 from dataclasses import dataclass, field
+from functools import cached_property
 from pathlib import Path
 from typing import TYPE_CHECKING, BinaryIO, TextIO
 
-from notegen.case.validation import validate_case
 from notegen.cli.batch_results import (
     BatchInput,
     Counts,
@@ -35,15 +35,16 @@ from notegen.cli.batch_results import (
     result_line,
     signals_held,
     stop_on_sigterm,
+    unknown_medications_line,
 )
 from notegen.cli.progress import Progress as _Progress
-from notegen.errors import CaseFileError, InputError, NotegenError, UsageError, printable
+from notegen.errors import CaseFileError, InputError, NotegenError, NothingToAssessError, UsageError, printable
 from notegen.intake.files import MAX_BYTES, parse_json
 from notegen.pipeline import Drafter, DraftOptions
 
 if TYPE_CHECKING:
     from notegen.cli.outputs import NoteFolder
-    from notegen.cli.parallel import Outcome
+    from notegen.cli.parallel import Job, Outcome
 
 CASE_SUFFIXES = (".yaml", ".yml", ".json")
 _EXTENSIONS = {"markdown": ".md", "text": ".txt", "html": ".html", "json": ".json"}
@@ -225,21 +226,19 @@ class _Batch:
             return None
         return self.out_dir / f"{_note_stem(where)}{_EXTENSIONS[self.options.output_format]}"
 
-    def draft(self, where: BatchInput, payload: object) -> tuple[str, str | None]:
-        """The note and the case label, or raise the case's error."""
-        from notegen.intake.read import read_case
+    @cached_property
+    def job(self) -> Job:  # what drafting a case needs beyond the case, here and in each worker
+        from notegen.cli.parallel import Job
+        return Job(self.drafter.rules_dirs, self.drafter.template, self.options, self.jsonl, self.single_line,
+                   self.window_hours)
 
-        if isinstance(payload, NotegenError):
-            raise payload
-        if self.jsonl:
-            case = validate_case(payload, filename=where.label, window_hours=self.window_hours)
-        else:
-            if where.file == "-" and self.stdin_bytes is None:
-                self.stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit refuses
-            case = read_case(where.file, window_hours=self.window_hours, stdin=self.stdin_bytes)
-        if self.single_line:
-            return self.drafter.draft_json_line(case, explain=self.options.explain), case.label
-        return self.drafter.draft(case, self.options), case.label
+    def draft(self, where: BatchInput, payload: object) -> Outcome:
+        """Read and draft one case in this process, as a worker does (`parallel.draft_one`): errors are returned."""
+        from notegen.cli.parallel import draft_one
+
+        if where.file == "-" and not self.jsonl and self.stdin_bytes is None:
+            self.stdin_bytes = sys.stdin.buffer.read(MAX_BYTES + 1)  # one byte past the limit refuses
+        return draft_one(self.drafter, self.job, where.label, payload, self.stdin_bytes)
 
     def check_target(self, where: BatchInput, target: Path) -> None:
         """Claim the note's name for this case; InputError if it is an input or another case's note."""
@@ -270,7 +269,7 @@ class _Batch:
 
     def run(self, items: Iterator[tuple[BatchInput, object]], workers: int) -> None:
         """Settle every case in input order, drafted here (one job) or by `workers` processes."""
-        from notegen.cli.parallel import Job, in_order
+        from notegen.cli.parallel import in_order
 
         if workers <= 1:
             for where, payload in items:
@@ -278,9 +277,7 @@ class _Batch:
                 self.one(where, payload)
                 self.current = None
             return
-        job = Job(self.drafter.rules_dirs, self.drafter.template, self.options, self.jsonl, self.single_line,
-                  self.window_hours)
-        with closing(in_order(items, job, workers, blank=_BLANK)) as outcomes:  # the pool stops however this ends
+        with closing(in_order(items, self.job, workers, blank=_BLANK)) as outcomes:  # the pool stops however this ends
             for (where, label), outcome in outcomes:
                 self.started(where)
                 self.drafted(where, label, outcome)
@@ -294,16 +291,17 @@ class _Batch:
     def one(self, where: BatchInput, payload: object) -> None:
         """Draft one case here and write its note, or report why not; only a stop (Ctrl-C, SIGTERM) escapes."""
         if payload is _BLANK:
-            self.blank(where)
-            return
-        self.settle(where, case_label_of(payload), lambda: self.draft(where, payload))
+            return self.blank(where)
+        self.drafted(where, case_label_of(payload), self.draft(where, payload))
 
     def drafted(self, where: BatchInput, label: str | None, outcome: Outcome | None) -> None:
-        """Write or report a case a worker drafted (`--jobs`); None is a blank line's place."""
+        """Write or report a drafted case (here or by a worker); None is a blank line's place."""
         from notegen.cli.parallel import Drafted
 
         def opened() -> tuple[str, str | None]:
             if isinstance(outcome, Drafted):
+                if outcome.unknown_medications:  # in the note too; said here so a pipeline's log shows it
+                    self.say(unknown_medications_line(where.label, outcome.unknown_medications))
                 return outcome.note, outcome.case_label
             raise outcome  # type: ignore[misc]  # a refusal or an error, raised here as in one process
 
@@ -351,6 +349,8 @@ class _Batch:
         self.counts.drafted += 1
 
     def refused(self, where: BatchInput, error: NotegenError, label: str | None, target: Path | None) -> None:
+        if isinstance(error, NothingToAssessError):
+            error = error.at(where.label)
         self.say(str(error))
         if self.single_line:
             self.write(error_line(error, where, label))

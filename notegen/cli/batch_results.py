@@ -17,7 +17,7 @@ import os
 import signal
 import sys
 import threading
-from collections.abc import Iterable, Iterator
+from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -49,6 +49,14 @@ def result_line(note_json: str, where: BatchInput, case_label: str | None) -> st
     rest = body[1:].lstrip()
     joiner = "" if rest.startswith("}") else ","
     return f'{{"input":{_input_member(where, case_label)}{joiner}{rest}\n'
+
+
+def unknown_medications_line(label: str, names: Sequence[str]) -> str:
+    """One line per input naming the medications not in the vocabulary (kept in the note, not reasoned with)."""
+    if len(names) == 1:
+        return f"{label}: medication {names[0]!r} is not in notegen's vocabulary; it was kept but not reasoned with"
+    shown = ", ".join(repr(name) for name in names)
+    return f"{label}: medications {shown} are not in notegen's vocabulary; they were kept but not reasoned with"
 
 
 def error_line(error: NotegenError, where: BatchInput, case_label: str | None) -> str:

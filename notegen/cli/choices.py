@@ -3,15 +3,40 @@ do not apply to the chosen format (an error that says why, never silently ignore
 
 from __future__ import annotations
 
+import math
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from notegen.errors import UsageError
 
-__all__ = ["FORMAT_BY_SUFFIX", "check_choices", "format_for"]
+if TYPE_CHECKING:
+    from notegen.knowledge.settings import DateOrder
+
+__all__ = ["FORMAT_BY_SUFFIX", "check_choices", "check_window", "date_order_choice", "format_for"]
 
 FORMAT_BY_SUFFIX = {".md": "markdown", ".markdown": "markdown", ".txt": "text", ".html": "html", ".htm": "html",
                     ".json": "json"}  # fmt: skip
 DEFAULT_FORMAT = "markdown"
+MAX_WINDOW_HOURS = 100_000  # about eleven years: any longer window is a typing slip
+MIN_WINDOW_HOURS = 0.5
+
+
+def check_window(window_hours: float) -> None:
+    if math.isfinite(window_hours) and window_hours < MIN_WINDOW_HOURS:
+        raise UsageError(f"--window-hours {window_hours:g}: give at least {MIN_WINDOW_HOURS:g} hours")
+    if not math.isfinite(window_hours) or not MIN_WINDOW_HOURS <= window_hours <= MAX_WINDOW_HOURS:
+        raise UsageError(f"--window-hours must be a number of hours from {MIN_WINDOW_HOURS:g} to "
+                         f"{MAX_WINDOW_HOURS:,}, not {window_hours}")
+
+
+def date_order_choice(value: str | None) -> DateOrder | None:
+    """`--date-order`: how a pasted 03/04/2026 reads, checked here whichever parser read it."""
+    if value is None:
+        return None
+    for order in ("day-first", "month-first"):
+        if value == order:
+            return order
+    raise UsageError(f"--date-order {value}: give day-first (03/04/2026 is 3 April) or month-first (4 March)")
 
 
 def format_for(output_format: str | None, output: Path | None) -> str:

@@ -42,6 +42,7 @@ class Drafted:
 
     note: str
     case_label: str | None
+    unknown_medications: tuple[str, ...] = ()  # names not in the vocabulary, said on standard error
 
 
 @dataclass(frozen=True, slots=True)
@@ -74,7 +75,6 @@ def job_count(jobs: int) -> int:
 def draft_one(drafter: Drafter, job: Job, label: str, payload: object, stdin: bytes | None) -> Outcome:
     """Draft one batch item; a refusal or an unexpected error is returned, not raised."""
     from notegen.case.validation import validate_case
-    from notegen.intake.read import read_case
 
     try:
         if isinstance(payload, BaseException):
@@ -82,14 +82,14 @@ def draft_one(drafter: Drafter, job: Job, label: str, payload: object, stdin: by
         if job.jsonl:
             case = validate_case(payload, filename=label, window_hours=job.window_hours)
         else:
-            case = read_case(label, window_hours=job.window_hours, stdin=stdin)
+            case = drafter.read_case(label, window_hours=job.window_hours, stdin=stdin)  # the service's date order
         if job.single_line:
             note = drafter.draft_json_line(case, explain=job.options.explain)
         else:
             note = drafter.draft(case, job.options)
     except Exception as error:  # noqa: BLE001 - handed to the caller, which reports and counts it
         return error
-    return Drafted(note, case.label)
+    return Drafted(note, case.label, tuple(m.name for m in case.context.meds if not m.recognised))
 
 
 def drafted(

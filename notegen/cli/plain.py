@@ -32,6 +32,7 @@ DRAFT_OPTIONS: tuple[tuple[tuple[str, ...], str, str], ...] = (
     (("--width",), "width", "value"),
     (("--window-hours",), "window_hours", "value"),
     (("--jobs", "-j"), "jobs", "value"),
+    (("--date-order",), "date_order", "value"),
     (("--set",), "assignments", "repeated"),
     (("--rules",), "rules", "repeated"),
 )

@@ -8,8 +8,10 @@ Every non-blank line is either taken or listed in `unused` with the reason. Rule
 - A line with two or more times is a time-column header: the rows below give one value
   per column, in order. A row whose cell count differs from the column count is not used.
 - A time written on an analyte line applies to that line only.
-- A date like 03/04/2024 where both parts could be the month is refused (PasteError):
-  write 2024-03-04. A time without a date, or a date without a year, is refused too.
+- A date like 03/04/2024 where both parts could be the month reads in the date order given; without
+  one it stands only as the paste's one date (the times order the results; it is shown as written),
+  else it is refused (PasteError, intake/paste_dates.py). A time without a date, or a date without a
+  year, is refused too.
 - Units are passed on as written; a line without a unit leaves "unit" out, unless the paste's
   other units settle its system (intake/unit_system.py).
 - A line whose name says calculated, estimated or corrected is not used (another quantity);
@@ -27,8 +29,8 @@ from typing import Any
 
 from notegen.case.checks import foreign_digit
 from notegen.errors import InputError, PasteError
+from notegen.intake.paste_dates import PasteDates, read_times
 from notegen.intake.paste_dates import echo as _echo
-from notegen.intake.paste_dates import read_times
 from notegen.intake.paste_formats import SHORTHAND_ORDER, decimal_commas, gas_shorthand, names_any, only_words_from
 from notegen.intake.sections import LAB_SECTIONS, ParsedInput, Reading, Section, assemble_sections, parse_number
 from notegen.intake.unit_system import settle_units
@@ -90,6 +92,7 @@ def parse_paste(text: str, *, source: str = "paste", date_order: str | None = No
     reader = _PasteReader(vocabulary, source, date_order)
     text, commas = decimal_commas(text)
     lab_lines = reader.read_lines(text)
+    date_as_written = reader.dates.unresolved()
     readings = settle_units(reader.resolve(lab_lines))
 
     def conflict(message: str, involved: Any) -> InputError:
@@ -105,7 +108,7 @@ def parse_paste(text: str, *, source: str = "paste", date_order: str | None = No
         readings = [replace(r, origin=f"{r.origin} (decimal comma read as a point)") for r in readings]
     sections, provenance, duplicates = assemble_sections(readings, conflict)
     unused = sorted(reader.unused, key=_line_number) + duplicates
-    return ParsedInput(data=sections, provenance=provenance, unused=unused)
+    return ParsedInput(data=sections, provenance=provenance, unused=unused, date_as_written=date_as_written)
 
 
 def _as_section(name: str) -> Section:
@@ -122,7 +125,7 @@ def _line_number(entry: str) -> int:
 
 class _PasteReader:
     def __init__(self, vocabulary: Vocabulary, source: str, date_order: str | None = None) -> None:
-        self.date_order = date_order  # "day-first" / "month-first": how 03/04/2026 reads; None: refused
+        self.dates = PasteDates(source, date_order)  # how 03/04/2026 reads, and every date as written
         self.vocabulary = vocabulary
         self.source = source
         self.names = vocabulary.name_index()
@@ -150,7 +153,7 @@ class _PasteReader:
             line = raw.strip()
             if not any(ch.isalnum() for ch in line):
                 continue  # blank or a rule of dashes: holds nothing
-            times, rest = read_times(line, number, self.source, self.date_order)
+            times, rest = read_times(line, number, self.dates)
             shorthand = self._shorthand(number, line, rest, times, block, in_header)
             if shorthand is not None:
                 block, in_header = shorthand[0], False

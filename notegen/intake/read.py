@@ -9,13 +9,16 @@ from __future__ import annotations
 
 import re
 from collections.abc import Mapping, Sequence
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from notegen.case.checks import DEFAULT_WINDOW_HOURS
 from notegen.case.model import Case
 from notegen.case.validation import LAB_SECTIONS, validate_case
 from notegen.errors import InputError
 from notegen.intake.files import decode, parse_text, read_source
+
+if TYPE_CHECKING:
+    from notegen.knowledge.settings import DateOrder
 
 FHIR_MAX_DEPTH = 40  # FHIR nests deeper than a case file does
 
@@ -78,14 +81,38 @@ def _renumbered(provenance: Mapping[str, str], offsets: Mapping[str, int]) -> di
     return out
 
 
-def _date_order(data: Mapping[str, Any], overrides: Sequence[str]) -> str | None:
-    """How a pasted 03/04/2026 is read: `--set dates=...` (the last one) or the case file's `dates:`."""
+def _date_order(
+    data: Mapping[str, Any], overrides: Sequence[str], option: DateOrder | None, service: DateOrder | None
+) -> DateOrder | None:
+    """How a pasted 03/04/2026 is read: the command line's `--date-order` (or `--set dates=...`, the last
+    one), else the case file's `dates:`, else the service's `date_order` setting; None refuses it."""
     order = data.get("dates")
     for assignment in overrides:
         name, _, value = assignment.partition("=")
         if name.strip() == "dates":
             order = value.strip().strip("\"'")
+            if option is not None and order != option:
+                raise InputError(f"--date-order {option} and --set dates={order} disagree; give the date order once")
+    order = option or order or service
     return order if order in ("day-first", "month-first") else None
+
+
+def _holds_times(data: Mapping[str, Any]) -> bool:
+    """Whether any lab result of `data` (a case file's, a FHIR resource's) carries a time."""
+    for section in LAB_SECTIONS:
+        entries = data.get(section)
+        for entry in entries if isinstance(entries, list) else [entries]:
+            if isinstance(entry, Mapping) and entry.get("taken_at") is not None:
+                return True
+    return False
+
+
+def _other_dates(date: str, others: str, where: str) -> InputError:
+    """An ambiguous pasted date beside other dates: ordering them would need its reading."""
+    from notegen.intake.paste_dates import ORDER_HINT
+
+    return InputError(f"{where}: the pasted date {date!r} could be day/month or month/day, and {others} to be put "
+                      f"in order with it; write the pasted dates as YYYY-MM-DD, or {ORDER_HINT}")
 
 
 def read_case(
@@ -95,11 +122,15 @@ def read_case(
     overrides: Sequence[str] = (),
     stdin: bytes | None = None,
     window_hours: float = DEFAULT_WINDOW_HOURS,
+    date_order: DateOrder | None = None,
+    service_date_order: DateOrder | None = None,
 ) -> Case:
     """Read, merge and validate a case from any mix of the ways in.
 
     `source` is a case-file path, `-` for standard input, or None; `paste` is a path
-    or `-` for a pasted lab block. Only one of them may read standard input.
+    or `-` for a pasted lab block. Only one of them may read standard input. A pasted date such as
+    03/04/2026 reads in `date_order` (the command line's), else the case's `dates:`, else
+    `service_date_order` (a service's setting, `Drafter.date_order`).
     """
     if source == "-" and paste == "-":
         raise InputError("only one of the case file and the paste can come from standard input (-)")
@@ -108,6 +139,7 @@ def read_case(
     unused: list[str] = []
     notices: list[str] = []
     filename = "--set"
+    date_as_written: str | None = None  # a pasted date read neither way (PasteDates.unresolved)
     if source is not None:
         text, filename = read_source(source, stdin)
         parsed = parse_text(text, filename, max_depth=FHIR_MAX_DEPTH)
@@ -128,20 +160,27 @@ def read_case(
             paste_text, paste_name = decode(stdin or b"", "<stdin>"), "pasted labs"
         else:
             paste_text, paste_name = read_source(paste)
-        result = parse_paste(paste_text, source=paste_name, date_order=_date_order(data, overrides))
+        order = _date_order(data, overrides, date_order, service_date_order)
+        result = parse_paste(paste_text, source=paste_name, date_order=order)
         if source is None:
             filename = paste_name
+        date_as_written = result.date_as_written
+        if date_as_written is not None and _holds_times(data):
+            raise _other_dates(date_as_written, "the case file's results carry dates", paste_name)
         data, offsets = _merge_labs(data, result.data, paste_name)
         provenance.update(_renumbered(result.provenance, offsets))
         unused.extend(result.unused)
     if overrides:
         from notegen.intake.overrides import apply_overrides, override_provenance
 
+        if date_as_written is not None and any("taken_at" in a.partition("=")[0] for a in overrides):
+            raise _other_dates(date_as_written, "--set gives a result time", "--set")
         data = apply_overrides(data, list(overrides))
         provenance.update(override_provenance(list(overrides)))
     if source is None and paste is None and not overrides:
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
-    case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours)
+    case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours,
+                         date_as_written=date_as_written)
     if unused or notices:
         case = case.model_copy(update={"notices": (*notices, *case.notices, *unused)})
     return case

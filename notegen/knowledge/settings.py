@@ -3,14 +3,16 @@
 Every threshold the calculation core and the acid-base reading use is a `Setting`
 carrying its value, unit and source, so the output can say which figure it used and why.
 A service folder holding its own `acid_base.yaml` overrides keys of the shipped file;
-an unknown key, a wrong type or a changed unit is rejected with the file and line.
+an unknown key, a wrong type or a changed unit is rejected with the file and line. One key is not
+a number: `date_order` (day-first or month-first), how the service's pasted dates such as 03/04/2026
+read; the shipped file leaves it unset, so an ambiguous date is refused unless a case says.
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 from pathlib import Path
-from typing import Any
+from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict
 
@@ -24,6 +26,10 @@ SHIPPED_ORIGIN = "rules/acid_base.yaml"
 
 _FROZEN = ConfigDict(frozen=True, extra="forbid")
 
+DateOrder = Literal["day-first", "month-first"]
+DATE_ORDERS: tuple[DateOrder, ...] = ("day-first", "month-first")
+DATE_ORDER_KEY = "date_order"
+
 
 class Setting(BaseModel):
     """One threshold or constant: its value, unit, published source and the file it came from."""
@@ -32,6 +38,16 @@ class Setting(BaseModel):
 
     value: float
     unit: str
+    source: str
+    origin: str = SHIPPED_ORIGIN
+
+
+class DateOrderSetting(BaseModel):
+    """How a service's pasted dates such as 03/04/2026 read, with why (its laboratory's printouts)."""
+
+    model_config = _FROZEN
+
+    value: DateOrder
     source: str
     origin: str = SHIPPED_ORIGIN
 
@@ -104,9 +120,10 @@ class AcidBaseSettings(BaseModel):
     chloride_target: Setting
     chloride_distribution: Setting
     calcium_albumin_factor: Setting
+    date_order: DateOrderSetting | None = None  # not a threshold: None unless a service sets it
 
 
-SETTING_NAMES: tuple[str, ...] = tuple(AcidBaseSettings.model_fields)
+SETTING_NAMES: tuple[str, ...] = tuple(name for name in AcidBaseSettings.model_fields if name != DATE_ORDER_KEY)
 
 # Pairs (lower, upper) that must stay strictly ordered after any override.
 _ORDERED: tuple[tuple[str, str], ...] = (
@@ -222,6 +239,21 @@ def _parse_entries(
     return out
 
 
+def _date_order(path: Path, entry: Any, line: int | None, problems: Problems, origin: str) -> DateOrderSetting | None:
+    """`date_order: {value: day-first, source: ...}`: how the service's pasted dates read."""
+    if not isinstance(entry, dict) or sorted(entry) != ["source", "value"]:
+        problems.append((str(path), line, "setting `date_order` must be a mapping with value and source"))
+        return None
+    value, source = entry["value"], entry["source"]
+    if value not in DATE_ORDERS:
+        problems.append((str(path), line, f"setting `date_order`: {value!r} is not day-first or month-first"))
+        return None
+    if not isinstance(source, str) or not source.strip():
+        problems.append((str(path), line, "setting `date_order`: source must say why (the laboratory's printouts)"))
+        return None
+    return DateOrderSetting(value=value, source=source.strip(), origin=origin)
+
+
 def _check_order(settings: dict[str, Setting], problems: Problems) -> None:
     for low, high in _ORDERED:
         if settings[low].value >= settings[high].value:
@@ -245,6 +277,11 @@ def load_acid_base_settings(extra_dirs: Sequence[Path] = ()) -> AcidBaseSettings
     problems: Problems = []
     shipped_path = rules_dir() / SETTINGS_FILE
     data, lines = _read(shipped_path, problems)
+    date_order = None
+    if DATE_ORDER_KEY in data:
+        date_order = _date_order(shipped_path, data[DATE_ORDER_KEY], lines.get(DATE_ORDER_KEY), problems,
+                                 SHIPPED_ORIGIN)
+        data = {key: entry for key, entry in data.items() if key != DATE_ORDER_KEY}
     merged = _parse_entries(shipped_path, data, lines, None, problems, SHIPPED_ORIGIN)
     if not problems:
         missing = [key for key in SETTING_NAMES if key not in merged]
@@ -261,10 +298,13 @@ def load_acid_base_settings(extra_dirs: Sequence[Path] = ()) -> AcidBaseSettings
         if not path.is_file():
             continue
         data, lines = _read(path, problems)
+        if DATE_ORDER_KEY in data:  # a later folder's order wins, as its thresholds do
+            date_order = _date_order(path, data[DATE_ORDER_KEY], lines.get(DATE_ORDER_KEY), problems, str(path))
+            data = {key: entry for key, entry in data.items() if key != DATE_ORDER_KEY}
         merged.update(_parse_entries(path, data, lines, merged, problems, str(path)))
     if not problems:
         _check_order(merged, problems)
     if problems:
         raise RulePackError(problems)
-    return AcidBaseSettings(**merged)
+    return AcidBaseSettings(**merged, date_order=date_order)
 

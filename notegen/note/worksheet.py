@@ -15,6 +15,7 @@ from notegen._format import (
     format_hours,
     format_number,
     format_range,
+    format_result_time,
     format_value,
     join_words,
     ph_text,
@@ -66,8 +67,9 @@ _SOURCE_WORDS = {"--set": "entered by hand"}
 _UNVERIFIED = " (from memory)"
 
 
-def trend_row(series: TrendSeries) -> dict[str, str]:
-    """One analyte as "7.48 (06:00) -> 7.53 (14:00)": value, then time of day, date when it changes."""
+def trend_row(series: TrendSeries, date_as_written: str | None = None) -> dict[str, str]:
+    """One analyte as "7.48 (06:00) -> 7.53 (14:00)": value, then time of day, date when it changes
+    (as written, when the case's date reads both ways: `Case.date_as_written`)."""
     parts: list[str] = []
     last_day = None
     # times from different UTC offsets are shown with their offsets, so the order shown is the true order
@@ -78,7 +80,8 @@ def trend_row(series: TrendSeries) -> dict[str, str]:
             parts.append(value)
             continue
         day = point.taken_at.date()
-        when = point.taken_at.strftime("%H:%M") if day == last_day else point.taken_at.strftime("%Y-%m-%d %H:%M")
+        when = (point.taken_at.strftime("%H:%M") if day == last_day
+                else format_result_time(point.taken_at.replace(tzinfo=None), date_as_written))
         last_day = day
         if mixed:
             offset = point.taken_at.isoformat()[-6:] if point.taken_at.utcoffset() is not None else "no zone"
@@ -133,7 +136,7 @@ def value_row(measurement: Measurement, case: Case) -> dict[str, str]:
         converted = (
             "unchanged" if same else f"{qualifier}{_three_figures(measurement.value)} {measurement.unit}".strip()
         )
-    taken = measurement.taken_at.isoformat(sep=" ", timespec="minutes") if measurement.taken_at else ""
+    taken = format_result_time(measurement.taken_at, case.date_as_written) if measurement.taken_at else ""
     return {
         "field": field,
         "label": field_label(field, case, measurement),

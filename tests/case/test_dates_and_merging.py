@@ -48,8 +48,8 @@ def test_a_timed_paste_and_an_untimed_file_section_are_refused(tmp_path: Path) -
 
 
 def test_an_ambiguous_date_names_the_way_to_say_the_order() -> None:
-    with pytest.raises(PasteError, match="or --set dates=day-first"):
-        parse_paste("ABG 12/01/2026 06:20\npH 7.5\n")
+    with pytest.raises(PasteError, match=r"--date-order day-first \(or month-first\), or `dates: day-first`"):
+        parse_paste("ABG 12/01/2026 06:20\npH 7.5\nABG 01/12/2026 07:20\npH 7.4\n")
 
 
 @pytest.mark.parametrize(("order", "month"), [("day-first", 1), ("month-first", 12)])

@@ -155,7 +155,7 @@ def test_a_single_case_is_not_a_batch() -> None:
 def test_paste_does_not_apply_to_a_batch(tmp_path: Path) -> None:
     result = runner.invoke(app, ["draft", str(GASTRIC), str(THIAZIDE), "--paste", "-"], input="K 3.1")
     assert result.exit_code == 2
-    assert result.stderr == "notegen: --paste and --set apply to a single case, not to a batch\n"
+    assert result.stderr == "notegen: --paste, --set and --date-order apply to a single case, not to a batch\n"
 
 
 class _Terminal(io.StringIO):

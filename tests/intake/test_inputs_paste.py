@@ -164,7 +164,7 @@ def test_empty_paste() -> None:
 @pytest.mark.parametrize(
     ("text", "message", "line"),
     [
-        ("03/04/2024 08:00\nBMP\nK 2.9", "could be day/month or month/day", 1),
+        ("03/04/2024 08:00\nBMP\nK 2.9\nBMP 04/03/2024 09:00\nK 3.0", "could be day/month or month/day", 1),
         ("BMP 03/04 08:00\nK 2.9", "date without a year", 1),
         ("BMP\nK 2.9\n08:00\nK 3.0", "time without a date", 3),
         ("2024-02-30 08:00\nBMP\nK 2.9", "not a valid date", 1),
