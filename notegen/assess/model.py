@@ -6,7 +6,7 @@ note renderers read only this model, and the JSON output is this model dumped.
 
 from __future__ import annotations
 
-from pydantic import SerializationInfo, SerializerFunctionWrapHandler, model_serializer
+from pydantic import SerializerFunctionWrapHandler, field_serializer
 
 from notegen._model import FrozenModel
 from notegen.acidbase.alert import Alert
@@ -60,12 +60,16 @@ class Assessment(FrozenModel):
     disclaimer: str = ""  # the draft's one-line disclaimer, as every note format prints it
     cautions: tuple[str, ...] = ()  # the cautions every note carries (reference ranges used, adults only...)
 
-    @model_serializer(mode="wrap")
-    # no return type: with one, pydantic would take it as the JSON schema of the whole model
-    def _trend_dates_as_written(self, handler: SerializerFunctionWrapHandler, info: SerializationInfo):  # type: ignore[no-untyped-def]
-        """The trend's times with the case's date as written, as the case's own times (`Case.date_as_written`)."""
-        data = handler(self)
-        if self.case.date_as_written is not None and info.mode_is_json() and isinstance(data, dict):
-            times_as_written([point for series in data.get("trend") or () for point in series.get("points", ())],
-                             self.case.date_as_written)
+    @field_serializer("trend", mode="wrap", when_used="json")
+    # no return type: with one, pydantic would take it as the JSON schema of the trend
+    def _trend_dates_as_written(self, trend: tuple[TrendSeries, ...], handler: SerializerFunctionWrapHandler):  # type: ignore[no-untyped-def]
+        """The trend's times with the case's date as written, as the case's own times (`Case.date_as_written`).
+
+        On the trend alone: a serializer wrapped round the whole assessment made every JSON dump
+        go through Python objects (about 0.09 ms a note in a batch).
+        """
+        data = handler(trend)
+        written = self.case.date_as_written
+        if written is not None and isinstance(data, list):
+            times_as_written([point for series in data for point in series.get("points", ())], written)
         return data
