@@ -12,7 +12,7 @@ from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
-_STRICT = ConfigDict(frozen=True, extra="forbid")
+_STRICT = ConfigDict(frozen=True, extra="forbid", defer_build=True)  # unpickled from the wheel, its validator is built only if used
 SectionName = Literal["gas", "chem", "urine"]
 SampleName = Literal["arterial", "venous"]
 MarkerName = Literal["urine", "blood", "arterial", "venous"]
