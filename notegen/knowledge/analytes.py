@@ -12,7 +12,8 @@ from notegen.errors import RulePackError
 from notegen.knowledge.rules_yaml import read_rules_file
 from notegen.resources import rules_dir
 
-_STRICT = ConfigDict(frozen=True, extra="forbid", defer_build=True)  # unpickled from the wheel, its validator is built only if used
+# Unpickled from the wheel, never validated there: the validator is built on first use.
+_STRICT = ConfigDict(frozen=True, extra="forbid", defer_build=True)
 SectionName = Literal["gas", "chem", "urine"]
 SampleName = Literal["arterial", "venous"]
 MarkerName = Literal["urine", "blood", "arterial", "venous"]

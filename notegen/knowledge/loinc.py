@@ -13,7 +13,8 @@ from notegen.resources import rules_dir
 
 __all__ = ["BpComponent", "LoincCode", "LoincTable", "loinc_table_path", "read_loinc_table"]
 
-_STRICT = ConfigDict(frozen=True, extra="forbid", defer_build=True)  # unpickled from the wheel, its validator is built only if used
+# Unpickled from the wheel, never validated there: the validator is built on first use.
+_STRICT = ConfigDict(frozen=True, extra="forbid", defer_build=True)
 
 
 class LoincCode(BaseModel):

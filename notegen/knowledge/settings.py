@@ -24,7 +24,8 @@ SETTINGS_FILE = "acid_base.yaml"
 # Shipped values say where they came from without a machine-specific path, so output is reproducible.
 SHIPPED_ORIGIN = "rules/acid_base.yaml"
 
-_FROZEN = ConfigDict(frozen=True, extra="forbid", defer_build=True)  # unpickled from the wheel, its validator is built only if used
+# Unpickled from the wheel, never validated there: the validator is built on first use.
+_FROZEN = ConfigDict(frozen=True, extra="forbid", defer_build=True)
 
 DateOrder = Literal["day-first", "month-first"]
 DATE_ORDERS: tuple[DateOrder, ...] = ("day-first", "month-first")
