@@ -23,6 +23,7 @@ from notegen.acidbase.model import AcidBaseReading
 from notegen.acidbase.reading import read_acid_base
 from notegen.assess.model import Assessment
 from notegen.assess.warnings import collect_warnings
+from notegen.case.bounds import bound_notices
 from notegen.case.model import Case
 from notegen.case.trend import build_trend
 from notegen.errors import NothingToAssessError
@@ -119,6 +120,7 @@ class Drafter:
             next_tests=rules.next_tests if rules is not None else (),
             trace=rules.trace if rules is not None else (),
             warnings=collect_warnings(case, reading, calculations),
+            reported_bounds=tuple(f"{text}." for text in bound_notices(case)),
             trend=build_trend(case),
             acidosis=acidosis,
         )

@@ -32,7 +32,7 @@ from notegen.acidbase.formulas import (
 )
 from notegen.acidbase.kidney_calculations import kidney_calculations
 from notegen.acidbase.kidney_calculations import urine_gap_calculations as urine_gap_calculations
-from notegen.case.bounds import exact_only
+from notegen.case.bounds import current_bounds, exact_only
 from notegen.case.model import Case
 from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.settings import AcidBaseSettings, Setting
@@ -232,12 +232,33 @@ def _expected_pco2(case: Case, s: AcidBaseSettings, out: dict[str, Calculation])
 def compute_calculations(case: Case, settings: AcidBaseSettings | None = None) -> dict[str, Calculation]:
     """Every calculation whose inputs the case holds, keyed by stable name, in a fixed order."""
     s = settings or shipped_knowledge().settings
-    case = exact_only(case)  # a reported bound ("<10") is never used as if it were exact
+    return _computed(exact_only(case), s)  # a reported bound ("<10") is never used as if it were exact
+
+
+def _computed(case: Case, s: AcidBaseSettings) -> dict[str, Calculation]:
     out: dict[str, Calculation] = {}
     _gas_calculations(case, s, out)
     _gap_calculations(case, s, out)
     kidney_calculations(case, s, out)
     return out
+
+
+def blocked_by_bounds(
+    case: Case, settings: AcidBaseSettings | None = None, *, done: Mapping[str, Calculation]
+) -> dict[str, tuple[str, ...]]:
+    """For each reported bound of the case's latest set, the calculations it alone keeps from being computed.
+
+    Worked out by computing with that one bound as if exact and the others still left out; the
+    results are thrown away. `done` is the case's `compute_calculations` result.
+    """
+    s = settings or shipped_knowledge().settings
+    blocked: dict[str, tuple[str, ...]] = {}
+    for measurement in current_bounds(case):
+        would = _computed(exact_only(case, keep=measurement.field), s)
+        names = tuple(name for name in would if name not in done)
+        if names:
+            blocked[measurement.field] = names
+    return blocked
 
 
 def missing_calculations(

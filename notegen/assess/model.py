@@ -51,6 +51,9 @@ class Assessment(FrozenModel):
     management: tuple[str, ...] = ()
     management_withheld: tuple[WithheldConsideration, ...] = ()  # kept out by a contraindication
     warnings: tuple[str, ...] = ()  # missing data and input notices, in words
+    # Values reported as bounds ("<10"), in words: shown as reported, compared only where the bound
+    # decides, never used in arithmetic (the worksheet lists them; the chart only when one blocks a result).
+    reported_bounds: tuple[str, ...] = ()
     trend: tuple[TrendSeries, ...] = ()  # serial results, oldest first, for analytes measured twice or more
     trace: tuple[TraceEntry, ...] = ()
     paragraph: str = ""  # the assessment paragraph as drafted

@@ -4,10 +4,49 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from notegen.acidbase.calculations import Calculation, impossible_osmolal_gap, missing_calculations
+from notegen._format import format_value, join_words
+from notegen.acidbase.calculations import (
+    Calculation,
+    blocked_by_bounds,
+    impossible_osmolal_gap,
+    missing_calculations,
+)
 from notegen.acidbase.model import AcidBaseReading
-from notegen.case.bounds import bound_notices
+from notegen.case.bounds import current_bounds
 from notegen.case.model import Case
+from notegen.knowledge import shipped_knowledge
+
+# The calculations the chart note reads (its paragraph and flags); a bound that keeps one of them
+# from being computed is said in the chart. The rest (fractional excretions, the urine ratios,
+# the chloride deficit) belong to the worksheet, which shows every bound as reported.
+CHART_CALCULATIONS = {
+    "calculated_ph": "the consistency check of the gas",
+    "anion_gap": "the anion gap",
+    "delta_ratio": "the delta ratio",
+    "expected_pco2": "the expected PaCO2",
+    "egfr": "the eGFR",
+    "osmolal_gap": "the osmolal gap",
+    "corrected_calcium": "the corrected calcium",
+}
+
+
+def _blocking_bounds(case: Case, calculations: Mapping[str, Calculation]) -> list[str]:
+    """A sentence for each reported bound that keeps a calculation the chart reads from being computed."""
+    blocked = blocked_by_bounds(case, done=calculations)
+    if not blocked:
+        return []
+    labels = shipped_knowledge().fields
+    sentences = []
+    for measurement in current_bounds(case):
+        names = [CHART_CALCULATIONS[name] for name in blocked.get(measurement.field, ()) if name in CHART_CALCULATIONS]
+        if names:
+            value = f"{measurement.qualifier}{format_value(measurement.reported_value, measurement.reported_unit)}"
+            label = labels[measurement.field].label.capitalize()
+            verb = "is" if len(names) == 1 else "are"
+            sentences.append(
+                f"{label} was reported as {value}, a bound, not a value, so {join_words(names)} {verb} not computed."
+            )
+    return sentences
 
 
 def collect_warnings(case: Case, reading: AcidBaseReading, calculations: Mapping[str, Calculation]) -> tuple[str, ...]:
@@ -22,7 +61,7 @@ def collect_warnings(case: Case, reading: AcidBaseReading, calculations: Mapping
     impossible = impossible_osmolal_gap(case)
     if impossible is not None:
         extra.append(f"Osmolal gap {impossible}.")
-    extra.extend(f"{text}." for text in bound_notices(case))
+    extra.extend(_blocking_bounds(case, calculations))
     for text in (*reading.missing, *extra, *case.notices):
         if text not in seen:
             seen.append(text)

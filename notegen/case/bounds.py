@@ -29,9 +29,13 @@ def current_bounds(case: Case) -> list[Measurement]:
     return found
 
 
-def exact_only(case: Case) -> Case:
-    """`case` with every bounded value of its latest set left out, for arithmetic."""
-    bounds = current_bounds(case)
+def exact_only(case: Case, *, keep: str | None = None) -> Case:
+    """`case` with every bounded value of its latest set left out, for arithmetic.
+
+    `keep` names one field (`chem.cl`) whose bound stays in as if exact: only to find out what that
+    bound keeps from being computed (`notegen.acidbase.calculations.blocked_by_bounds`), never to compute.
+    """
+    bounds = [m for m in current_bounds(case) if m.field != keep]
     if not bounds:
         return case
     cleared: dict[str, dict[str, None]] = {}

@@ -180,6 +180,7 @@ def note_context(
         "other_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level != "critical"],
         "values": [value_row(m, assessment.case) for m in assessment.case.measurements],
         "values_have_times": any(m.taken_at is not None for m in assessment.case.measurements),
+        "reported_bounds": list(assessment.reported_bounds),
         "trend": [trend_row(t, assessment.case.date_as_written) for t in assessment.trend],
         "context_items": context_items(assessment.case),
         # what is missing (the reading's gaps); what was given but not used is `input_notices`

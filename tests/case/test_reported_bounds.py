@@ -10,7 +10,7 @@ from typing import Any
 import pytest
 from typer.testing import CliRunner
 
-from notegen.acidbase.calculations import compute_calculations
+from notegen.acidbase.calculations import blocked_by_bounds, compute_calculations
 from notegen.acidbase.reading import read_acid_base
 from notegen.assess.warnings import collect_warnings
 from notegen.case.bounds import bound_notices, exact_only
@@ -53,7 +53,28 @@ def test_a_bounded_chloride_gives_no_anion_gap_rather_than_a_false_one() -> None
     assert reading.anion_gap is None
     assert "anion_gap" not in compute_calculations(case)
     warnings = collect_warnings(case, reading, compute_calculations(case))
-    assert any(text.startswith("Chloride was reported as >110 mmol/L, a bound") for text in warnings)
+    assert "Chloride was reported as >110 mmol/L, a bound, not a value, so the anion gap is not computed." in warnings
+
+
+def test_a_bound_that_blocks_nothing_the_chart_reads_stays_out_of_the_chart_note() -> None:
+    # Before: every chart note with a urine chloride "<10" listed, under "Missing", that it was a bound
+    # no calculation uses: a line the clinician would strike, since the paragraph already reads it
+    # ("Urine chloride <10 mmol/L, below 20 mmol/L, makes the alkalosis chloride-responsive").
+    case = validate_case(_ALKALOSIS)
+    calculations = compute_calculations(case)
+    assert not any("bound" in text for text in collect_warnings(case, read_acid_base(case), calculations))
+    assert blocked_by_bounds(case, done=calculations) == {"urine.cl": ("fe_cl",)}  # the worksheet's FE-Cl only
+    from notegen.pipeline import Drafter, DraftOptions
+
+    chart = Drafter().draft(case)
+    assert "Urine chloride <10 mmol/L" in chart
+    assert "a bound, not a value" not in chart
+    worksheet = Drafter().draft(case, DraftOptions(worksheet=True))
+    assert "- Urine chloride was reported as <10 mmol/L, a bound, not a value: no calculation uses it" in worksheet
+    assert Drafter().assess(case).reported_bounds == (
+        "Urine chloride was reported as <10 mmol/L, a bound, not a value: no calculation uses it, "
+        "and it is compared only where the bound decides.",
+    )
 
 
 def test_the_bound_is_kept_for_the_comparisons_that_it_decides() -> None:
