@@ -166,11 +166,17 @@ def format_hours(hours: float) -> str:
 
 
 def format_result_time(when: datetime, date_as_written: str | None = None) -> str:
-    """A result's time as every output shows it: "2026-03-14 06:30" (with its UTC offset when it has one).
+    """A result's time as every output shows it: "2026-03-14 06:30", with its zone when it has one
+    ("2026-03-14 06:30 UTC", "2026-03-14 06:30 +01:00"), as the trend writes it.
 
     `date_as_written` ("12/01/2026"): the case's one date, read neither day first nor month first; the
     calendar date held in `when` is then one reading kept for ordering only and is never shown:
     "12/01/2026 06:30".
     """
-    text = when.isoformat(sep=" ", timespec="minutes")
-    return text if date_as_written is None else date_as_written + text[len("YYYY-MM-DD"):]
+    text = when.replace(tzinfo=None).isoformat(sep=" ", timespec="minutes")
+    if date_as_written is not None:
+        text = date_as_written + text[len("YYYY-MM-DD"):]
+    offset = when.utcoffset()
+    if offset is None:
+        return text
+    return f"{text} UTC" if not offset else f"{text} {when.isoformat()[-6:]}"

@@ -4,7 +4,7 @@ written, never as a chosen calendar date. Any other date beside it is refused. I
 from __future__ import annotations
 
 import json
-from datetime import datetime
+from datetime import datetime, timezone
 from pathlib import Path
 
 import jsonschema
@@ -140,5 +140,6 @@ def test_the_one_formatter_of_result_times() -> None:
     assert format_result_time(when) == "2026-12-01 06:20"
     assert format_result_time(when, "12/01/2026") == "12/01/2026 06:20"
     aware = datetime.fromisoformat("2026-12-01T06:20:00+01:00")
-    assert format_result_time(aware) == "2026-12-01 06:20+01:00"
-    assert format_result_time(aware, "12/01/26") == "12/01/26 06:20+01:00"
+    assert format_result_time(aware) == "2026-12-01 06:20 +01:00"
+    assert format_result_time(aware, "12/01/26") == "12/01/26 06:20 +01:00"
+    assert format_result_time(aware.replace(tzinfo=timezone.utc)) == "2026-12-01 06:20 UTC"
