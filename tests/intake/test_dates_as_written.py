@@ -4,7 +4,7 @@ written, never as a chosen calendar date. Any other date beside it is refused. I
 from __future__ import annotations
 
 import json
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
 import jsonschema
@@ -142,4 +142,4 @@ def test_the_one_formatter_of_result_times() -> None:
     aware = datetime.fromisoformat("2026-12-01T06:20:00+01:00")
     assert format_result_time(aware) == "2026-12-01 06:20 +01:00"
     assert format_result_time(aware, "12/01/26") == "12/01/26 06:20 +01:00"
-    assert format_result_time(aware.replace(tzinfo=timezone.utc)) == "2026-12-01 06:20 UTC"
+    assert format_result_time(aware.replace(tzinfo=UTC)) == "2026-12-01 06:20 UTC"
