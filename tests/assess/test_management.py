@@ -151,6 +151,18 @@ EXAMPLES = [
         "covert_gastric_loss",
         lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
     ),
+    # Another cause on the list accounts for the low urine chloride: asking a 71-year-old after
+    # extubation about an eating disorder is a sentence the clinician would strike.
+    kept_out(
+        "covert_gastric_loss",
+        lambda: assess(BASE, differential=(cause("gastric_loss", "possible"), cause("post_hypercapnia"))),
+        0,
+    ),
+    kept_out(
+        "covert_gastric_loss",
+        lambda: assess(BASE, differential=(cause("gastric_loss", "possible"), cause("diuretic"))),
+        0,
+    ),
     # Acid suppression during gastric drainage only when none is listed.
     printed(
         "acid_suppression_during_drainage",
