@@ -132,6 +132,23 @@ EXAMPLES = [
     kept_out("chloride_resistant", lambda: assess(case(context={"volume": "low"}), chloride_class="resistant"), 0),
     printed("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="indeterminate"), "repeat sample"),
     kept_out("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="responsive")),
+    # Held open by a high calcium (or a calcium salt with no calcium measured), not by a diuretic or a
+    # middle-range value: "repeat once any diuretic has worn off" would be struck for that patient.
+    kept_out(
+        "chloride_class_indeterminate",
+        lambda: assess(case(chem={"ca": 12.8}), chloride_class="indeterminate"),
+        0,
+    ),
+    kept_out(
+        "chloride_class_indeterminate",
+        lambda: assess(case(context={"meds": ["calcium carbonate"]}), chloride_class="indeterminate"),
+        1,
+    ),
+    printed(
+        "chloride_class_indeterminate",
+        lambda: assess(case(chem={"ca": 9.4}), chloride_class="indeterminate"),
+        "repeat sample",
+    ),
     printed("chloride_class_unknown", lambda: assess(BASE, chloride_class="unknown"), "need not delay"),
     kept_out("chloride_class_unknown", lambda: assess(BASE, chloride_class="responsive")),
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "low"}), chloride_class="unknown"), 0),
