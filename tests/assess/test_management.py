@@ -152,6 +152,16 @@ EXAMPLES = [
     printed("chloride_class_unknown", lambda: assess(BASE, chloride_class="unknown"), "need not delay"),
     kept_out("chloride_class_unknown", lambda: assess(BASE, chloride_class="responsive")),
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "low"}), chloride_class="unknown"), 0),
+    # An overloaded patient on a diuretic: "bedside volume status guides any saline" would be struck.
+    kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "high"}), chloride_class="unknown"), 1),
+    kept_out(
+        "chloride_class_unknown", lambda: assess(case(context={"findings": ["edema"]}), chloride_class="unknown"), 1
+    ),
+    printed(
+        "chloride_class_unknown",
+        lambda: assess(case(context={"volume": "normal"}), chloride_class="unknown"),
+        "bedside volume status",
+    ),
     printed(
         "gastric_loss",
         lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
