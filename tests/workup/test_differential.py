@@ -476,3 +476,22 @@ def test_a_positive_urine_diuretic_screen_counts_for_a_diuretic() -> None:
     cause = next(c for c in Drafter().assess(validate_case(data)).differential if c.cause == "diuretic")
     assert "screen_positive" in [e.id for e in cause.supporting]
     assert cause.tier == "likely"
+
+
+def test_hypertension_with_hypokalemia_on_a_thiazide_keeps_primary_aldosteronism_in_view() -> None:
+    # Funder et al., J Clin Endocrinol Metab 2016;101:1889 (Endocrine Society): hypertension with hypokalemia,
+    # spontaneous or diuretic-induced (the latter from memory), is a reason to screen for primary
+    # aldosteronism. Before: a listed thiazide took the low potassium, mineralocorticoid excess was not
+    # named at all, and renin and aldosterone were not suggested for a patient at 168/98 with K 2.9.
+    case = alkalosis_case(
+        urine_cl=105, k=2.9, bp=(168, 98), meds=(med("hydrochlorothiazide", 8),), volume="normal"
+    )
+    result = evaluate(case)
+    assert tier(result, "diuretic") == "likely"
+    assert tier(result, "mineralocorticoid_excess") == "possible"
+    entry = next(c for c in result.differential if c.cause == "mineralocorticoid_excess")
+    assert any("reason to screen for primary aldosteronism" in e.text for e in entry.supporting)
+    assert "renin_aldosterone" in suggested_tests(result)
+    # With a normal blood pressure the thiazide alone explains the potassium: no screening reason.
+    calm = evaluate(alkalosis_case(urine_cl=105, k=2.9, bp=(122, 78), meds=(med("hydrochlorothiazide", 8),)))
+    assert "mineralocorticoid_excess" not in [c.cause for c in calm.differential if c.tier in ("likely", "possible")]
