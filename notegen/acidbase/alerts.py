@@ -9,7 +9,7 @@ from __future__ import annotations
 from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words, ph_text
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
-from notegen.acidbase.critical_values import calcium_alerts, sodium_glucose_alerts
+from notegen.acidbase.critical_values import calcium_alerts, lactate_salicylate_alerts, sodium_glucose_alerts
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
@@ -164,12 +164,13 @@ def severity_alerts(
 ) -> list[Alert]:
     """Alerts for dangerous values, in a fixed order.
 
-    pH, potassium, sodium and glucose, calcium, magnesium, ventilation.
+    pH, potassium, sodium and glucose, lactate and salicylate, calcium, magnesium, ventilation.
     """
     alerts: list[Alert] = []
     alerts += _ph_alerts(ph, ph_calculated, s, venous)
     alerts += _potassium_alerts(case.chem.k, s, magnesium_measured=usable(case.chem.mg))
     alerts += sodium_glucose_alerts(case, s)
+    alerts += lactate_salicylate_alerts(case, s)
     alerts += _calcium_alerts(case.chem.ionized_ca, alkalemic, s)
     alerts += calcium_alerts(case, s)
     alerts += _magnesium_alerts(case.chem.mg, s)

@@ -1,4 +1,4 @@
-"""Calcium, sodium and glucose read against their thresholds, so none is missed in an acid-base note.
+"""Calcium, sodium, glucose, lactate and salicylate read against their thresholds, so none is missed.
 
 Calcium is read as ionized calcium when measured, else as total calcium corrected for albumin
 (Payne et al., BMJ 1973), else as total calcium. Thresholds live in `rules/acid_base.yaml`; each
@@ -167,6 +167,45 @@ def sodium_glucose_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
                     message=(
                         f"Glucose {shown} is above {format_value(s.glucose_high_critical.value, 'mg/dL')}: severe "
                         "hyperglycemia; consider urgent review for ketoacidosis or a hyperosmolar state."
+                    ),
+                )
+            )
+    return alerts
+
+
+def lactate_salicylate_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
+    """A lactate or a salicylate at a level to act on now: each a critical value of its own.
+
+    The acidosis work-up may name lactic acidosis or salicylate poisoning as the cause; these
+    alerts stand at the top of the note whatever the work-up says.
+    """
+    alerts: list[Alert] = []
+    lactate, salicylate = case.chem.lactate, case.chem.salicylate
+    if usable(lactate):
+        assert lactate is not None
+        if lactate >= s.lactate_critical.value:
+            alerts.append(
+                Alert(
+                    code="high_lactate",
+                    level="critical",
+                    message=(
+                        f"Lactate {format_value(lactate, 'mmol/L')} is at or above "
+                        f"{format_value(s.lactate_critical.value, 'mmol/L')}: consider urgent review for "
+                        "hypoperfusion, and for the other causes of a high lactate."
+                    ),
+                )
+            )
+    if usable(salicylate):
+        assert salicylate is not None
+        if salicylate >= s.salicylate_critical.value:
+            alerts.append(
+                Alert(
+                    code="toxic_salicylate",
+                    level="critical",
+                    message=(
+                        f"Salicylate {format_value(salicylate, 'mg/dL')} is at or above "
+                        f"{format_value(s.salicylate_critical.value, 'mg/dL')}, a toxic level: consider urgent "
+                        "discussion with poison control or toxicology, per local protocol."
                     ),
                 )
             )

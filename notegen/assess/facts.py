@@ -56,6 +56,8 @@ ALERT_CODES = (
     "severe_hypernatremia",
     "hypoglycemia",
     "severe_hyperglycemia",
+    "high_lactate",
+    "toxic_salicylate",
 )
 ALERT_LEVELS = ("none", "info", "warning", "critical")
 CHLORIDE_TREE = "chloride_class"

@@ -96,6 +96,8 @@ class AcidBaseSettings(BaseModel):
     resp_hco3_tolerance: Setting
     venous_pco2_screen: Setting
     venous_pco2_offset: Setting
+    lactate_critical: Setting
+    salicylate_critical: Setting
     alkalemia_warning: Setting
     alkalemia_critical: Setting
     acidemia_warning: Setting

@@ -67,7 +67,8 @@ RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
 EXAMPLES = [
     # The acidosis work-up (rules/acidosis): an emergency to discuss, and the bicarbonate cautions.
     printed("poisoning_emergency", sample("toxic_alcohol_osmolal_gap"), "poison control or toxicology"),
-    printed("poisoning_emergency", sample("salicylate_triple_disorder"), "emergency"),
+    # A toxic salicylate level is a critical value at the top of the note, with the same call to act.
+    kept_out("poisoning_emergency", sample("salicylate_triple_disorder"), 0),
     kept_out("poisoning_emergency", sample("ileostomy_normal_gap")),
     printed("bicarbonate_cautions", sample("toxic_alcohol_osmolal_gap"), "weighed decision"),
     kept_out("bicarbonate_cautions", sample("ileostomy_normal_gap")),

@@ -11,6 +11,7 @@ from typing import Any
 from notegen.assess.considerations import load_considerations, select_considerations
 from notegen.assess.model import Assessment
 from notegen.case.validation import validate_case
+from notegen.knowledge import shipped_knowledge
 from notegen.pipeline import Drafter
 
 DRAFTER = Drafter()
@@ -211,6 +212,9 @@ def test_an_inconsistent_gas_gets_no_firm_mixed_disorder() -> None:
 # glucose below 54 or above 500 mg/dL, potassium at both ends; thresholds in rules/acid_base.yaml.
 
 
+BASE_CHEM_CASE: dict[str, Any] = {"case": "invented: critical values", "units": "conventional", "patient": {"age": 50}}
+
+
 def _alerts_for(chem: dict[str, float]) -> set[str]:
     return alert_codes(assess({"case": "invented: critical values", "patient": {"age": 50}, "chem": chem}))
 
@@ -225,6 +229,27 @@ def test_critical_sodium_glucose_and_potassium_are_flagged_at_both_ends() -> Non
     assert "severe_hyperglycemia" in _alerts_for({"glucose": 620})
     assert "severe_hypokalemia" in _alerts_for({"k": 2.4})
     assert "severe_hyperkalemia" in _alerts_for({"k": 6.6})
+
+
+def test_a_high_lactate_and_a_toxic_salicylate_stand_out_as_critical_values() -> None:
+    # Evans et al., Crit Care Med 2021;49:e1063 (Surviving Sepsis Campaign; from memory): a lactate of
+    # 4 mmol/L or more marks hypoperfusion to act on. A salicylate of 30 mg/dL or more is above the
+    # anti-inflammatory range (common practice; from memory), the acidosis pack's own threshold for
+    # poisoning. Before: a salicylate of 58 mg/dL and a lactate of 7.5 mmol/L raised no flag at all.
+    assert "high_lactate" in _alerts_for({"lactate": 7.5})
+    assert "high_lactate" in _alerts_for({"lactate": 4.0})
+    assert "high_lactate" not in _alerts_for({"lactate": 3.9})
+    assert "toxic_salicylate" in _alerts_for({"salicylate": 58})
+    assert "toxic_salicylate" in _alerts_for({"salicylate": 30})
+    assert "toxic_salicylate" not in _alerts_for({"salicylate": 25})
+    note = Drafter().draft(validate_case({**BASE_CHEM_CASE, "chem": {"salicylate": 58, "lactate": 7.5}}))
+    assert note.index("Critical values") < note.index("Salicylate 58 mg/dL is at or above 30 mg/dL")
+    assert "Lactate 7.5 mmol/L is at or above 4 mmol/L" in note
+
+
+def test_the_salicylate_alert_and_the_acidosis_pack_share_one_threshold() -> None:
+    pack = shipped_knowledge().acidosis_pack
+    assert shipped_knowledge().settings.salicylate_critical.value == pack.settings["salicylate_toxic_from"][0]
 
 
 # --- Citrate ------------------------------------------------------------------------------------------------
