@@ -72,6 +72,18 @@ EXAMPLES = [
     kept_out("poisoning_emergency", sample("ileostomy_normal_gap")),
     printed("bicarbonate_cautions", sample("toxic_alcohol_osmolal_gap"), "weighed decision"),
     kept_out("bicarbonate_cautions", sample("ileostomy_normal_gap")),
+    # A hyperkalemic (type 4) picture on drugs that raise potassium: the drugs are named.
+    printed(
+        "hyperkalemic_acidosis_drugs",
+        lambda: assess(
+            case(ACIDOSIS, chem={"k": 5.9}, context={"findings": [], "meds": ["lisinopril", "spironolactone"]})
+        ),
+        "lisinopril and spironolactone can raise potassium",
+    ),
+    kept_out(
+        "hyperkalemic_acidosis_drugs",
+        lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
+    ),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
     # Volume repletion stays whenever volume is recorded low, even with edema or heart failure.
     printed("volume_repletion", lambda: assess(case(context={"volume": "low"})), "isotonic sodium chloride"),
