@@ -322,7 +322,18 @@ EXAMPLES = [
         lambda: assess(case(context={"volume": "high"}), differential=(cause("calcium_alkali"),)),
         0,
     ),
-    printed("reduced_kidney_function", lambda: assess(case(chem=LOW_EGFR)), "cannot clear a bicarbonate load"),
+    # "Alkali sources matter more" only where an alkali is taken (before: said to every patient).
+    printed(
+        "reduced_kidney_function",
+        lambda: assess(case(chem=LOW_EGFR)),
+        "cannot clear a bicarbonate load",
+        lacks=("alkali",),
+    ),
+    printed(
+        "reduced_kidney_function",
+        lambda: assess(case(chem=LOW_EGFR, context={"meds": ["sodium bicarbonate"]})),
+        "the alkali taken (sodium bicarbonate) matters more",
+    ),
     kept_out("reduced_kidney_function", lambda: assess(BASE)),
     printed("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia"),)), "PaCO2"),
     kept_out("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia", "unlikely"),))),
