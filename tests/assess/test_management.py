@@ -332,7 +332,7 @@ EXAMPLES = [
     printed(
         "reduced_kidney_function",
         lambda: assess(case(chem=LOW_EGFR, context={"meds": ["sodium bicarbonate"]})),
-        "the alkali taken (sodium bicarbonate) matters more",
+        "The alkali taken (sodium bicarbonate) matters more for the same reason.",
     ),
     kept_out("reduced_kidney_function", lambda: assess(BASE)),
     printed("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia"),)), "PaCO2"),
