@@ -20,9 +20,10 @@ from __future__ import annotations
 
 import functools
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
+from notegen._format import format_value
 from notegen.assess.facts import MedicationGroup, consideration_facts
 from notegen.assess.management_file import (
     PREPARED_NAME,
@@ -75,6 +76,7 @@ class Considerations:
     groups: tuple[MedicationGroup, ...]
     catalogue: Mapping[str, FactSpec]
     acidosis_causes: tuple[str, ...] = ()  # the acidosis pack's cause ids: `cause_<id>` facts
+    setting_text: Mapping[str, str] = field(default_factory=dict)  # "{k_before_insulin_from}" -> "3.3 mmol/L"
 
     @property
     def specs(self) -> tuple[ConsiderationSpec, ...]:
@@ -98,7 +100,9 @@ def _compile(merged: ManagementFile, pack: RulePack) -> tuple[_Compiled, ...]:
 
 def _assemble(checked: Checked, pack: RulePack) -> Considerations:
     compiled = _compile(checked.merged, pack)
-    return Considerations(compiled, pack, checked.groups, checked.catalogue, checked.acidosis_causes)
+    settings = setting_specs(pack, checked.merged.settings)
+    text = {s.id: format_value(s.value, s.unit) for s in settings}
+    return Considerations(compiled, pack, checked.groups, checked.catalogue, checked.acidosis_causes, text)
 
 
 def _pack(service_folders: tuple[Path, ...]) -> RulePack:
@@ -170,6 +174,9 @@ class Chosen:
 def _fill(template: Template, facts: Mapping[str, Fact], loaded: Considerations) -> str | None:
     values: dict[str, str] = {}
     for name in template.names:
+        if name not in facts and name in loaded.setting_text:  # a setting the check allowed by name
+            values[name] = loaded.setting_text[name]
+            continue
         fact = facts.get(name, MissingFact())
         if isinstance(fact, MissingFact):
             return None  # never print "not given" where a name or value belongs

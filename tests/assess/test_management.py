@@ -33,6 +33,14 @@ def sample(name: str) -> Callable[[], Assessment]:
     return lambda: Drafter().assess(read_case(str(SAMPLES / f"{name}.yaml")))
 
 
+def sample_data(name: str, **sections: dict[str, object]) -> dict[str, object]:
+    """An invented sample's case data with sections changed key by key, declared in conventional units."""
+    import yaml
+
+    data = yaml.safe_load((SAMPLES / f"{name}.yaml").read_text(encoding="utf-8"))
+    return case({"units": "conventional", **data}, **sections)
+
+
 def chosen(assessment: Assessment) -> dict[str, str]:
     return {item.id: item.text for item in select_considerations(assessment, load_considerations())}
 
@@ -393,6 +401,18 @@ EXAMPLES = [
     kept_out("potassium_repletion", lambda: assess(ACIDOSIS), 0),
     printed("potassium_before_alkali", lambda: assess(ACIDOSIS), "before any alkali"),
     kept_out("potassium_before_alkali", lambda: assess(case(ACIDOSIS, chem={"k": 4.1}))),
+    # Kitabchi et al., Diabetes Care 2009 (from memory): in ketoacidosis insulin waits for a potassium of 3.3.
+    printed(
+        "potassium_before_alkali",
+        lambda: assess(sample_data("diabetic_ketoacidosis", chem={"k": 3.1})),
+        "with potassium 3.1 mmol/L, below 3.3 mmol/L, consensus guidance for ketoacidosis holds insulin",
+    ),
+    printed(
+        "potassium_before_alkali",
+        lambda: assess(sample_data("diabetic_ketoacidosis", chem={"k": 3.4})),
+        "before any alkali",
+        lacks=("insulin",),
+    ),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),
     printed("severe_hypokalemia", lambda: assess(case(ACIDOSIS, chem={"k": 2.3})), "an ECG and cardiac monitoring"),
     kept_out("severe_hypokalemia", lambda: assess(case(chem={"k": 2.7}))),
