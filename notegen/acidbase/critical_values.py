@@ -179,34 +179,15 @@ def lactate_salicylate_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
     The acidosis work-up may name lactic acidosis or salicylate poisoning as the cause; these
     alerts stand at the top of the note whatever the work-up says.
     """
+    checks = (
+        ("high_lactate", "Lactate", case.chem.lactate, s.lactate_critical, "mmol/L",
+         ": consider urgent review for hypoperfusion, and for the other causes of a high lactate."),
+        ("toxic_salicylate", "Salicylate", case.chem.salicylate, s.salicylate_critical, "mg/dL",
+         ", a toxic level: consider urgent discussion with poison control or toxicology, per local protocol."),
+    )  # fmt: skip
     alerts: list[Alert] = []
-    lactate, salicylate = case.chem.lactate, case.chem.salicylate
-    if usable(lactate):
-        assert lactate is not None
-        if lactate >= s.lactate_critical.value:
-            alerts.append(
-                Alert(
-                    code="high_lactate",
-                    level="critical",
-                    message=(
-                        f"Lactate {format_value(lactate, 'mmol/L')} is at or above "
-                        f"{format_value(s.lactate_critical.value, 'mmol/L')}: consider urgent review for "
-                        "hypoperfusion, and for the other causes of a high lactate."
-                    ),
-                )
-            )
-    if usable(salicylate):
-        assert salicylate is not None
-        if salicylate >= s.salicylate_critical.value:
-            alerts.append(
-                Alert(
-                    code="toxic_salicylate",
-                    level="critical",
-                    message=(
-                        f"Salicylate {format_value(salicylate, 'mg/dL')} is at or above "
-                        f"{format_value(s.salicylate_critical.value, 'mg/dL')}, a toxic level: consider urgent "
-                        "discussion with poison control or toxicology, per local protocol."
-                    ),
-                )
-            )
+    for code, label, value, threshold, unit, advice in checks:
+        if value is not None and usable(value) and value >= threshold.value:
+            at = f"{label} {format_value(value, unit)} is at or above {format_value(threshold.value, unit)}"
+            alerts.append(Alert(code=code, level="critical", message=at + advice))
     return alerts

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from notegen._format import format_value, join_words
+from notegen._format import join_words
 from notegen.acidbase.calculations import (
     Calculation,
     blocked_by_bounds,
@@ -12,9 +12,8 @@ from notegen.acidbase.calculations import (
     missing_calculations,
 )
 from notegen.acidbase.model import AcidBaseReading
-from notegen.case.bounds import current_bounds
+from notegen.case.bounds import current_bounds, reported_as
 from notegen.case.model import Case
-from notegen.knowledge import shipped_knowledge
 
 # The calculations the chart note reads (its paragraph and flags); a bound that keeps one of them
 # from being computed is said in the chart. The rest (fractional excretions, the urine ratios,
@@ -33,19 +32,13 @@ CHART_CALCULATIONS = {
 def _blocking_bounds(case: Case, calculations: Mapping[str, Calculation]) -> list[str]:
     """A sentence for each reported bound that keeps a calculation the chart reads from being computed."""
     blocked = blocked_by_bounds(case, done=calculations)
-    if not blocked:
-        return []
-    labels = shipped_knowledge().fields
     sentences = []
-    for measurement in current_bounds(case):
+    for measurement in current_bounds(case) if blocked else ():
         names = [CHART_CALCULATIONS[name] for name in blocked.get(measurement.field, ()) if name in CHART_CALCULATIONS]
         if names:
-            value = f"{measurement.qualifier}{format_value(measurement.reported_value, measurement.reported_unit)}"
-            label = labels[measurement.field].label.capitalize()
             verb = "is" if len(names) == 1 else "are"
-            sentences.append(
-                f"{label} was reported as {value}, a bound, not a value, so {join_words(names)} {verb} not computed."
-            )
+            blocked_words = f"{join_words(names)} {verb} not computed"
+            sentences.append(f"{reported_as(measurement)}, a bound, not a value, so {blocked_words}.")
     return sentences
 
 

@@ -46,12 +46,17 @@ def exact_only(case: Case, *, keep: str | None = None) -> Case:
     return case.model_copy(update=update)
 
 
+def reported_as(measurement: Measurement) -> str:
+    """'Urine chloride was reported as <10 mmol/L': a bounded value, as reported."""
+    label = shipped_knowledge().fields[measurement.field].label.capitalize()
+    value = format_value(measurement.reported_value, measurement.reported_unit)
+    return f"{label} was reported as {measurement.qualifier}{value}"
+
+
 def bound_notices(case: Case) -> list[str]:
     """One line per bounded value: shown as reported, and not used in arithmetic."""
-    labels = shipped_knowledge().fields
     return [
-        f"{labels[m.field].label.capitalize()} was reported as {m.qualifier}"
-        f"{format_value(m.reported_value, m.reported_unit)}, a bound, not a value: no calculation uses it, "
+        f"{reported_as(m)}, a bound, not a value: no calculation uses it, "
         "and it is compared only where the bound decides"
         for m in current_bounds(case)
     ]
