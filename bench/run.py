@@ -37,6 +37,11 @@ FLOOR = "import pydantic, jinja2, yaml"
 # The same imports, then what any program that validates with pydantic pays before its own code: the
 # first model class (pydantic's `import pydantic` alone is lazy and loads almost nothing of it).
 FLOOR_WITH_MODEL = FLOOR + "\nfrom pydantic import BaseModel\nclass M(BaseModel):\n    x: int\nM(x=1)"
+# The floor, then reading and validating the sample case as `notegen draft` does and nothing after:
+# a lower bound of any note drafted from that file with the design as it is (issue 18).
+FLOOR_WITH_CASE = (
+    FLOOR + "\nfrom pathlib import Path\nfrom notegen.intake.read import read_case\nread_case(Path({sample!r}))"
+)
 
 
 def _child_environment(pycache: Path) -> dict[str, str]:
@@ -91,8 +96,9 @@ def cold_start(runs: int, env: dict[str, str]) -> dict[str, float]:
     """Medians of wall and CPU time, floor and note interleaved."""
     floor = [sys.executable, "-c", FLOOR]
     model = [sys.executable, "-c", FLOOR_WITH_MODEL]
+    case = [sys.executable, "-c", FLOOR_WITH_CASE.format(sample=str(SAMPLE.relative_to(ROOT)))]
     draft = [*_notegen_command(), "draft", str(SAMPLE.relative_to(ROOT)), "--format", "text"]
-    commands = (("floor", floor), ("model", model), ("draft", draft))
+    commands = (("floor", floor), ("model", model), ("case", case), ("draft", draft))
     for _ in range(2):  # compile bytecode, warm the file cache
         for _, command in commands:
             _run(command, env)
@@ -365,6 +371,10 @@ def main(argv: Sequence[str] | None = None) -> None:
         print(
             f"  the floor plus one pydantic model (BaseModel, one class, one validation): {cold['model'] * 1e3:.1f} ms,"
             f" ratio {cold['model'] / cold['floor']:.2f} before any notegen code"
+        )
+        print(
+            f"  the floor plus reading and validating that case file, nothing after: {cold['case'] * 1e3:.1f} ms,"
+            f" ratio {cold['case'] / cold['floor']:.2f} (a lower bound of the note)"
         )
         print(
             f"  CPU time (user + system), less sensitive to a busy machine: floor {cold['floor cpu'] * 1e3:.1f} ms, "
