@@ -6,7 +6,7 @@ module gives them:
 - every fact of the alkalosis pack's catalogue (`notegen.workup.facts.derive_facts`), for any case;
 - the reading: `metabolic_alkalosis`, `metabolic_acidosis` (established), `primary`, `ph_status`, `chronicity`,
   `anion_gap_status`, and `chloride_class` (the pack's tree outcome; missing without a work-up);
-- `na` (serum sodium), `ca` (total calcium) and `ionized_ca`;
+- `na` (serum sodium), `ca` (total calcium), `ionized_ca` and `glucose`;
 - `cause_<id>` (true when the cause is likely or possible), `factor_<id>` (true when present) and
   `test_<id>` (true when the test is suggested), one per id of the LOADED pack, so that a cause a
   service adds can be named at once;
@@ -98,6 +98,7 @@ def consideration_catalogue(
         _spec("na", "number", "sodium", unit="mmol/L"),
         _spec("ionized_ca", "number", "ionized calcium", unit="mmol/L"),
         _spec("ca", "number", "calcium", unit="mg/dL"),
+        _spec("glucose", "number", "glucose", unit="mg/dL"),
     ]
     trees = {tree.id: tree for tree in pack.trees}
     if CHLORIDE_TREE in trees:
@@ -150,6 +151,7 @@ def _reading_facts(assessment: Assessment) -> dict[str, Fact]:
         "na": NumberFact(chem.na, "mmol/L") if chem.na is not None else MissingFact(),
         "ionized_ca": NumberFact(chem.ionized_ca, "mmol/L") if chem.ionized_ca is not None else MissingFact(),
         "ca": NumberFact(chem.ca, "mg/dL") if chem.ca is not None else MissingFact(),
+        "glucose": NumberFact(chem.glucose, "mg/dL") if chem.glucose is not None else MissingFact(),
     }
 
 

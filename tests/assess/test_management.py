@@ -71,6 +71,12 @@ LOW_EGFR = {"creatinine": 3.0}  # eGFR about 22 at 60 years (CKD-EPI 2021)
 DIURETIC = {"differential": (cause("diuretic"),)}
 MINERALOCORTICOID = {"differential": (cause("mineralocorticoid_excess"),)}
 RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
+# Invented: binge drinking and three days of vomiting; ketoacidosis with a concurrent alkalosis, no diabetes.
+ALCOHOLIC_KETOACIDOSIS: dict[str, dict[str, object]] = {
+    "gas": {"ph": 7.39, "pco2": 31, "hco3": 18},
+    "chem": {"na": 136, "k": 3.1, "cl": 86, "tco2": 19, "glucose": 88, "bhb": 5.9, "lactate": 2.6},
+    "context": {"meds": [], "findings": ["heavy alcohol use", "vomiting"], "volume": "low"},
+}
 
 EXAMPLES = [
     # The acidosis work-up (rules/acidosis): an emergency to discuss, and the bicarbonate cautions.
@@ -413,6 +419,26 @@ EXAMPLES = [
         "before any alkali",
         lacks=("insulin",),
     ),
+    # Alcoholic ketoacidosis (invented: heavy drinking, vomiting, glucose 88 mg/dL, no diabetes): insulin is
+    # not its treatment, so nothing is said of holding it; a glucose in the range of diabetic
+    # ketoacidosis (above 250 mg/dL, Kitabchi et al., Diabetes Care 2009; from memory) brings it back.
+    printed(
+        "potassium_before_alkali",
+        lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)),
+        "before any alkali",
+        lacks=("insulin",),
+    ),
+    printed(
+        "potassium_before_alkali",
+        lambda: assess(
+            sample_data(
+                "diabetic_ketoacidosis", **{**ALCOHOLIC_KETOACIDOSIS, "chem": {**ALCOHOLIC_KETOACIDOSIS["chem"], "glucose": 420}}
+            )
+        ),
+        "consensus guidance for ketoacidosis holds insulin",
+    ),
+    # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
+    kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),
     printed("severe_hypokalemia", lambda: assess(case(ACIDOSIS, chem={"k": 2.3})), "an ECG and cardiac monitoring"),
     kept_out("severe_hypokalemia", lambda: assess(case(chem={"k": 2.7}))),
