@@ -71,6 +71,7 @@ LOW_EGFR = {"creatinine": 3.0}  # eGFR about 22 at 60 years (CKD-EPI 2021)
 DIURETIC = {"differential": (cause("diuretic"),)}
 MINERALOCORTICOID = {"differential": (cause("mineralocorticoid_excess"),)}
 RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
+CKD_ACIDOSIS = case(ACIDOSIS, chem={"k": 5.2, "creatinine": 3.6}, context={"findings": ["ckd"]})
 # Invented: binge drinking and three days of vomiting; ketoacidosis with a concurrent alkalosis, no diabetes.
 ALCOHOLIC_KETOACIDOSIS: dict[str, dict[str, object]] = {
     "gas": {"ph": 7.39, "pco2": 31, "hco3": 18},
@@ -430,12 +431,22 @@ EXAMPLES = [
     ),
     printed(
         "potassium_before_alkali",
-        lambda: assess(
-            sample_data(
-                "diabetic_ketoacidosis", **{**ALCOHOLIC_KETOACIDOSIS, "chem": {**ALCOHOLIC_KETOACIDOSIS["chem"], "glucose": 420}}
-            )
-        ),
+        lambda: assess(case(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS), chem={"glucose": 420})),
         "consensus guidance for ketoacidosis holds insulin",
+    ),
+    # The acidosis of chronic kidney disease (invented: creatinine 3.6 mg/dL at 60, eGFR near 18 by CKD-EPI
+    # 2021; bicarbonate 15): oral alkali below 22 mmol/L (KDIGO 2012, recommendation 3.2.2; from memory).
+    printed(
+        "alkali_in_kidney_disease",
+        lambda: assess(case(CKD_ACIDOSIS)),
+        "guidelines suggest oral alkali when the bicarbonate stays below 22 mmol/L (here 15 mmol/L)",
+    ),
+    kept_out("alkali_in_kidney_disease", lambda: assess(case(CKD_ACIDOSIS, context={"findings": []}))),
+    kept_out("alkali_in_kidney_disease", lambda: assess(case(CKD_ACIDOSIS, chem={"creatinine": 0.9}))),
+    kept_out(
+        "alkali_in_kidney_disease",
+        lambda: assess(case(CKD_ACIDOSIS, chem={"cl": 100, "lactate": 8.0}, context={"findings": ["ckd", "sepsis"]})),
+        0,
     ),
     # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
     kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),

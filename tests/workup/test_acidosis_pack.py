@@ -116,6 +116,10 @@ LEADS: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
     ),
     ("chloride_load", case_with(NORMAL_GAP, context={"findings": ["saline resuscitation"]}), None),
     ("carbonic_anhydrase_inhibitor", case_with(NORMAL_GAP, context={"meds": ["acetazolamide"]}), None),
+    # Chronic kidney disease with a normal gap: creatinine 3.0 mg/dL at 45 gives an eGFR near 25
+    # (CKD-EPI 2021, Inker et al., NEJM 2021), below 30, where the acidosis of kidney disease is
+    # usually still normal-gap (Kraut & Madias, Am J Kidney Dis 2016; from memory).
+    ("kidney_failure", case_with(NORMAL_GAP, chem={"creatinine": 3.0}, context={"findings": ["ckd"]}), None),
 ]
 
 AGAINST: list[tuple[str, str, dict[str, Any], dict[str, FactInput] | None]] = [
@@ -219,10 +223,12 @@ def test_high_gap_shows_only_high_gap_causes_and_normal_gap_only_normal_gap_ones
         "ketoacidosis", "lactic_acidosis", "toxic_alcohol", "salicylate", "kidney_failure",
         "pyroglutamic_acidosis", "d_lactic_acidosis",
     }  # fmt: skip
+    # Kidney disease is on both sides: its acidosis is normal-gap until the late stages.
     assert {c.cause for c in normal.differential} == {
         "gi_bicarbonate_loss", "distal_rta", "proximal_rta", "hyperkalemic_rta", "chloride_load",
-        "carbonic_anhydrase_inhibitor",
+        "carbonic_anhydrase_inhibitor", "kidney_failure",
     }  # fmt: skip
+    assert cause_of(normal, "kidney_failure").tier == "unlikely"  # eGFR about 100 at creatinine 1.0
     # A normal-gap value moves nothing on the high-gap side, so no urine test is suggested there.
     assert not {"urine_anion_gap", "urine_ph"} & {t.test for t in high.next_tests}
     assert not {"ketones", "lactate", "serum_osmolality"} & {t.test for t in normal.next_tests}
