@@ -10,6 +10,7 @@ import re
 from collections.abc import Mapping
 from typing import Any
 
+from notegen._format import join_words
 from notegen.case.checks import (
     MAX_TEXT,
     _Collector,
@@ -181,10 +182,18 @@ def _medication(raw: Any, path: str, col: _Collector) -> Medication | None:
             "(a misspelt diuretic would leave the reasoning)",
         )
         return None
-    if info is None:
-        col.notices.append(f"medication {name!r} is not recognised; it is listed but not reasoned with")
+    if info is None:  # named in one notice with the others (`_not_recognised`)
         return Medication(name=name, last_dose_hours=hours)
     return Medication(name=name, generic=info.generic, classes=info.classes, last_dose_hours=hours)
+
+
+def _not_recognised(kind: str, names: list[str], col: _Collector) -> None:
+    """One notice for every name of a kind not in the vocabulary: a line each would crowd the note."""
+    if len(names) == 1:
+        col.notices.append(f"{kind} {names[0]!r} is not recognised; it is listed but not reasoned with")
+    elif names:
+        quoted = join_words(repr(name) for name in dict.fromkeys(names))
+        col.notices.append(f"{kind}s {quoted} are not recognised; they are listed but not reasoned with")
 
 
 def _lookup_drug(name: str) -> vocab.DrugInfo | None:
@@ -244,12 +253,14 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                 continue
             meds = [_medication(m, f"{path}[{i}]", col) for i, m in enumerate(items)]
             values["meds"] = tuple(m for m in meds if m is not None)
+            _not_recognised("medication", [m.name for m in values["meds"] if m.generic is None], col)
         elif key == "findings":
             items = [f.strip() for f in item.split(",")] if isinstance(item, str) else item
             if not isinstance(items, list):
                 col.problem(path, "expected a list of findings")
                 continue
             found: list[str] = []
+            unknown: list[str] = []
             table = shipped_knowledge().findings
             for i, text in enumerate(items):
                 if not isinstance(text, str) or not text.strip() or len(text) > MAX_TEXT:
@@ -260,10 +271,9 @@ def validate_context(raw: Any, col: _Collector) -> Context:
                     continue
                 info = table.get(vocab.fold(text))
                 if info is None:
-                    col.notices.append(
-                        f"finding {text!r} is not recognised; it is listed but not reasoned with"
-                    )
+                    unknown.append(text)
                 elif info.id not in found:
                     found.append(info.id)
             values["findings"] = tuple(found)
+            _not_recognised("finding", unknown, col)
     return Context(**values)

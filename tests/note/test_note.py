@@ -281,6 +281,25 @@ def test_brief_keeps_what_was_given_but_not_used() -> None:
     assert "Given but not used" not in draft(plain, brief=True)
 
 
+def test_unrecognised_names_share_one_line_per_kind() -> None:
+    # an inpatient lists many drugs with no acid-base role: one line each would crowd the chart note
+    assessment = assess(
+        {
+            "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
+            "context": {
+                "meds": ["furosemide", "norepinephrine", "piperacillin-tazobactam", "norepinephrine"],
+                "findings": ["pneumonia", "vomiting", "delirium"],
+            },
+        }
+    )
+    lines = [line for line in draft(assessment).splitlines() if "not recognised" in line]
+    assert lines == [
+        "- Medications 'norepinephrine' and 'piperacillin-tazobactam' are not recognised; they are listed but not "
+        "reasoned with",
+        "- Findings 'pneumonia' and 'delirium' are not recognised; they are listed but not reasoned with",
+    ]
+
+
 def test_explain_adds_the_reasoning() -> None:
     assessment = worked_up(sample("thiazide_and_vomiting"))
     explained = draft(assessment, explain=True)
