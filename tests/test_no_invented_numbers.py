@@ -23,7 +23,8 @@ shown with d decimals matches a value within half a unit of its last decimal):
    `QUOTED_FIGURES` with where each comes from.
 8. INPUT TEXT: numbers inside text the user wrote (the case label, medication names such as
    "furosemide 40 mg") and inside the case's notices, which name what was given but not used
-   (a LOINC code of an unused FHIR result, the number of serial results, the window in hours).
+   (a LOINC code of an unused FHIR result, the number of serial results, the window in hours), and
+   in the input's resources outside the assessment (`Case.outside`, listed in the worksheet).
 
 Numbers inside words (PaCO2, HCO3, CKD-EPI's "m2") are names, not numbers, and are skipped.
 """
@@ -113,7 +114,8 @@ def allowed_numbers(assessment: Assessment) -> set[float]:
         elif isinstance(value, str) and path.endswith(".taken_at"):
             allowed |= {abs(n) for n in _numbers(value.replace("T", " "))}  # 1. MEASURED: dates and times of results
     case = assessment.case
-    for text in (case.label or "", *(med.name for med in case.context.meds), *case.notices):
+    outside = (resource.text for resource in case.outside)
+    for text in (case.label or "", *(med.name for med in case.context.meds), *case.notices, *outside):
         allowed |= {*_numbers(text), *(abs(n) for n in _numbers(text))}  # 8. INPUT TEXT
     return allowed
 

@@ -183,6 +183,18 @@ class Context(BaseModel):
     blood_product_units: int | None = None
 
 
+class OutsideResource(BaseModel):
+    """A resource of the input that an acid-base assessment does not read (a hemoglobin, a Condition).
+
+    The chart note counts them in one line by `resource_type`; the worksheet and JSON list each `text`.
+    """
+
+    model_config = _FROZEN
+
+    resource_type: str  # the FHIR resource type, e.g. "Observation"
+    text: str  # e.g. "FHIR Observation/obs-hgb: LOINC 718-7 (Hemoglobin) is not read for an acid-base assessment"
+
+
 class Case(BaseModel):
     """A validated case. Sections hold the latest complete set when results are serial."""
 
@@ -202,6 +214,8 @@ class Case(BaseModel):
     earlier_urine: tuple[Urine, ...] = ()
     # What was given but not used, and why (unrecognised medications or findings, stale values ...).
     notices: tuple[str, ...] = ()
+    # Resources outside an acid-base assessment (other laboratory tests, Conditions): set aside, not notices.
+    outside: tuple[OutsideResource, ...] = ()
     # Every result's one date as the paste wrote it ("12/01/2026"), when it reads both day first and
     # month first and no order was given: the times order the results, the calendar date is not known.
     # The times hold it in one reading for ordering only; every output shows it as written.

@@ -74,6 +74,7 @@ class _FhirReader:
         self.table = table
         self.source = source
         self.unused: list[str] = []
+        self.outside: list[tuple[str, str]] = []
         self.provenance: dict[str, str] = {}
         self.notices: list[str] = []
 
@@ -192,7 +193,7 @@ class _FhirReader:
                     if url_where == where:
                         medications[url] = resource
             else:
-                self.unused.append(f"FHIR {label}: a {kind} is not read for an acid-base assessment")
+                self.outside.append((kind, f"FHIR {label}: a {kind} is not read for an acid-base assessment"))
         if latest_bp is not None:
             extra["context"]["bp"] = latest_bp[1]
             self.provenance["context.bp"] = f"FHIR {latest_bp[2]}"
@@ -208,7 +209,9 @@ class _FhirReader:
         for section in ("patient", "context"):
             if extra[section]:
                 data[section] = extra[section]
-        return ParsedInput(data=data, provenance=self.provenance, unused=self.unused, notices=self.notices)
+        return ParsedInput(
+            data=data, provenance=self.provenance, unused=self.unused, notices=self.notices, outside=self.outside
+        )
 
     def _observation(
         self, resource: dict[str, Any], label: str
@@ -228,7 +231,8 @@ class _FhirReader:
             text = (resource.get("code") or {}).get("text") or next(
                 (c.get("display") for c in codings if c.get("display")), "")
             named = f" ({text})" if text else ""
-            self.unused.append(f"FHIR {label}: LOINC {', '.join(loinc)}{named} is not read for an acid-base assessment")
+            what = f"LOINC {', '.join(loinc)}{named}"
+            self.outside.append(("Observation", f"FHIR {label}: {what} is not read for an acid-base assessment"))
             return None
         if len({(entry.field, entry.sample) for entry in known.values()}) > 1:
             self.unused.append(f"FHIR {label}: its LOINC codes {', '.join(known)} mean different things; "

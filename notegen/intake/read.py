@@ -12,7 +12,7 @@ from collections.abc import Mapping, Sequence
 from typing import TYPE_CHECKING, Any
 
 from notegen.case.checks import DEFAULT_WINDOW_HOURS
-from notegen.case.model import Case
+from notegen.case.model import Case, OutsideResource
 from notegen.case.validation import LAB_SECTIONS, validate_case
 from notegen.errors import InputError
 from notegen.intake.files import decode, parse_text, read_source
@@ -138,6 +138,7 @@ def read_case(
     provenance: dict[str, str] = {}
     unused: list[str] = []
     notices: list[str] = []
+    outside: list[tuple[str, str]] = []
     filename = "--set"
     date_as_written: str | None = None  # a pasted date read neither way (PasteDates.unresolved)
     if source is not None:
@@ -148,7 +149,7 @@ def read_case(
 
             fhir = read_fhir(dict(parsed), source=filename)
             data, provenance, unused = dict(fhir.data), dict(fhir.provenance), list(fhir.unused)
-            notices = list(fhir.notices)
+            notices, outside = list(fhir.notices), list(fhir.outside)
         else:
             if not isinstance(parsed, Mapping):
                 return validate_case(parsed, filename=filename)  # raises the located "not a mapping" error
@@ -181,9 +182,17 @@ def read_case(
         raise InputError("no case given: name a case file, `-` for standard input, --paste or --set")
     case = validate_case(data, filename=filename, provenance=provenance, window_hours=window_hours,
                          date_as_written=date_as_written)
+    return _with_notices(case, notices, unused, outside)
+
+
+def _with_notices(case: Case, notices: list[str], unused: list[str], outside: list[tuple[str, str]]) -> Case:
+    """The case with what its source said of itself, what was set aside, and what lies outside the assessment."""
+    update: dict[str, Any] = {}
     if unused or notices:
-        case = case.model_copy(update={"notices": (*notices, *case.notices, *unused)})
-    return case
+        update["notices"] = (*notices, *case.notices, *unused)
+    if outside:
+        update["outside"] = tuple(OutsideResource(resource_type=kind, text=text) for kind, text in outside)
+    return case.model_copy(update=update) if update else case
 
 
 def read_case_data(data: Mapping[str, Any], *, name: str = "<case data>") -> Case:
@@ -195,9 +204,7 @@ def read_case_data(data: Mapping[str, Any], *, name: str = "<case data>") -> Cas
 
         fhir = read_fhir(dict(data), source=name)
         case = validate_case(dict(fhir.data), filename=name, provenance=dict(fhir.provenance))
-        if fhir.unused or fhir.notices:
-            case = case.model_copy(update={"notices": (*fhir.notices, *case.notices, *fhir.unused)})
-        return case
+        return _with_notices(case, fhir.notices, fhir.unused, fhir.outside)
     return validate_case(dict(data), filename=name)
 
 

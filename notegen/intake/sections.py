@@ -29,7 +29,9 @@ class ParsedInput:
     `provenance` maps a dotted field path (`chem.k`, `gas[1].ph`) to its origin
     ("paste line 4", "FHIR Observation/obs-k"); `unused` lists every line or resource
     that was not used, each with the reason; `notices` are sentences the note must carry
-    about the source as a whole. `date_as_written` is the one date of every result ("12/01/2026")
+    about the source as a whole; `outside` the resources an acid-base assessment does not read
+    (another test, a Condition), as (resource type, text). `date_as_written` is the one date of
+    every result ("12/01/2026")
     when it reads both ways and no order was given: the times in `data` hold it in one reading, for
     ordering only, and every time shown must show it as written.
     """
@@ -39,6 +41,8 @@ class ParsedInput:
     unused: list[str] = field(default_factory=list)
     notices: list[str] = field(default_factory=list)
     date_as_written: str | None = None
+    # (resource type, text) of each resource outside an acid-base assessment (`Case.outside`)
+    outside: list[tuple[str, str]] = field(default_factory=list)
 
 
 @dataclass(frozen=True)

@@ -322,3 +322,20 @@ def trace_row(entry: dict[str, Any]) -> dict[str, str]:
         "goes_to": entry["goes_to"] or "",
         "source": plain_source(entry["source"]),
     }
+
+
+def outside_summary(case: Case, *, listed_below: bool) -> str | None:
+    """One line for the chart note counting the input's resources outside an acid-base assessment.
+
+    A bundle from a record system carries a blood count, liver tests, problems: a line each would
+    bury the note. The worksheet (and JSON) list each one; None when there are none.
+    """
+    if not case.outside:
+        return None
+    counts: dict[str, int] = {}
+    for resource in case.outside:
+        counts[resource.resource_type] = counts.get(resource.resource_type, 0) + 1
+    kinds = join_words(f"{n} {kind}{'s' if n > 1 else ''}" for kind, n in counts.items())
+    where = " (listed in the worksheet below)" if listed_below else ""
+    return f"The FHIR input also held {kinds} that an acid-base assessment does not read{where}."
+

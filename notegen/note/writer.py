@@ -35,6 +35,7 @@ from notegen.note.worksheet import (
     context_items,
     differential_note,
     labelled,
+    outside_summary,
     split_calculations,
     test_row,
     trace_row,
@@ -187,6 +188,9 @@ def note_context(
         "warnings": [w for w in (sentence_case(text) for text in assessment.warnings) if w not in notices],
         # what was given but set aside or read only in part (pasted lines, unknown words, earlier results)
         "input_notices": notices,
+        # resources outside an acid-base assessment: one line in the note, each listed in the worksheet
+        "outside_summary": outside_summary(assessment.case, listed_below=options.worksheet),
+        "outside": [resource.text for resource in assessment.case.outside],
         "calculations": [calculation_row(c) for c in shown],
         "other_calculations": [calculation_row(c) for c in others],
         "alkalosis_worked_up": worked_up,

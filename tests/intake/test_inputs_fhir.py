@@ -78,11 +78,14 @@ def test_full_bundle_gives_the_hand_written_case() -> None:
     assert parsed.provenance["gas[1].ph"] == "FHIR Observation/obs-aph"
     assert "latest observation" in parsed.provenance["patient.age"]
     assert parsed.unused == [
-        "FHIR Observation/obs-hgb: LOINC 718-7 (Hemoglobin [Mass/volume] in Blood) is not read for an acid-base "
-        "assessment",
         "FHIR Observation/obs-k-old: status 'cancelled' is not a usable result",
-        "FHIR Condition/cond-1: a Condition is not read for an acid-base assessment",
         "FHIR MedicationRequest/mr-2: Furosemide is already listed from MedicationStatement/ms-1",
+    ]
+    # Outside an acid-base assessment: counted in one line of the note, listed in the worksheet.
+    assert parsed.outside == [
+        ("Observation", "FHIR Observation/obs-hgb: LOINC 718-7 (Hemoglobin [Mass/volume] in Blood) is not read for "
+         "an acid-base assessment"),
+        ("Condition", "FHIR Condition/cond-1: a Condition is not read for an acid-base assessment"),
     ]
 
 

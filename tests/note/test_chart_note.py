@@ -270,3 +270,35 @@ def test_the_library_offers_the_worksheet_as_the_command_does() -> None:
     chart, with_sheet = notegen.draft(path), notegen.draft(path, worksheet=True)
     assert "# Worksheet" not in chart.markdown and "# Worksheet" in with_sheet.markdown
     assert with_sheet.to_dict() == chart.to_dict()
+
+
+def _record_system_bundle() -> dict[str, Any]:
+    """The sample bundle as a record system would send it: with a blood count, liver tests and lipids
+    besides (invented values; LOINC codes of tests an acid-base assessment does not read)."""
+    bundle = json.loads(FHIR_BUNDLE.read_text(encoding="utf-8"))
+    others = {"6690-2": "Leukocytes", "777-3": "Platelets", "1742-6": "ALT", "1920-8": "AST",
+              "1975-2": "Bilirubin", "6768-6": "Alkaline phosphatase", "2093-3": "Cholesterol", "4548-4": "HbA1c"}
+    for code, name in others.items():
+        bundle["entry"].append({"resource": {
+            "resourceType": "Observation", "id": f"obs-{code}", "status": "final",
+            "subject": {"reference": "Patient/pt-1"}, "effectiveDateTime": "2024-03-01T06:00:00Z",
+            "code": {"coding": [{"system": "http://loinc.org", "code": code, "display": name}]},
+            "valueQuantity": {"value": 1, "unit": "1", "system": "http://unitsofmeasure.org", "code": "1"},
+        }})  # fmt: skip
+    return bundle
+
+
+def test_tests_outside_the_assessment_take_one_line_of_the_chart_note() -> None:
+    from notegen.intake.read import read_case_data
+
+    case = read_case_data(_record_system_bundle(), name="bundle")
+    assert len(case.outside) == 10  # the eight added, the sample's hemoglobin and its Condition
+    note = _note(case)
+    assert note.count("is not read for an acid-base assessment") == 0
+    summary = "- The FHIR input also held 9 Observations and 1 Condition that an acid-base assessment does not read.\n"
+    assert summary in note
+    assert len(_note(case, output_format="text").split()) <= CHART_WORDS
+    worksheet = _note(case, worksheet=True)
+    assert "(listed in the worksheet below)" in worksheet
+    assert worksheet.count("is not read for an acid-base assessment") == 10
+    assert "LOINC 4548-4 (HbA1c)" in worksheet.split("# Worksheet", 1)[1]
