@@ -9,6 +9,7 @@ from pydantic import BaseModel, ConfigDict
 from notegen.acidbase.alert import Alert
 
 PhStatus = Literal["acidemia", "alkalemia", "normal"]
+GapBelowRange = Literal["within_variation", "beyond_variation"]
 Disorder = Literal[
     "metabolic_alkalosis", "metabolic_acidosis", "respiratory_acidosis", "respiratory_alkalosis"
 ]
@@ -120,6 +121,8 @@ class AcidBaseReading(BaseModel):
     anion_gap_corrected: float | None
     anion_gap_status: GapStatus | None
     anion_gap_reference: tuple[float, float]
+    # A gap below the reference range: by less than `anion_gap_low_margin` ("within_variation") or more.
+    anion_gap_below_range: GapBelowRange | None = None
     anion_gap_bicarbonate: GapBicarbonate | None
     gas_panel_agreement: GasPanelAgreement = "not_checked"
     delta_gap: float | None

@@ -73,6 +73,7 @@ class AcidBaseSettings(BaseModel):
     consistency_tco2_tolerance: Setting
     anion_gap_low: Setting
     anion_gap_high: Setting
+    anion_gap_low_margin: Setting
     anion_gap_normal: Setting
     normal_albumin: Setting
     albumin_gap_factor: Setting

@@ -328,12 +328,20 @@ def _anion_gap(
             if reading.ph_status == "alkalemia" and used <= reading.anion_gap_reference[1] + 4:
                 text += ", though alkalemia itself raises the gap by a few mmol/L"
         sentences.append(text + ".")
-    elif reading.anion_gap_status == "normal" and used < reading.anion_gap_reference[0]:
+    elif reading.anion_gap_status == "normal" and reading.anion_gap_below_range == "beyond_variation":
         sentences.append(
             f"The {adjective}anion gap is below the reference range at {mmol(used)} ({reference}); "
             "unmeasured cations (a high calcium or magnesium, lithium, a paraprotein) or a laboratory error "
             "would explain it."
         )
+    elif reading.anion_gap_status == "normal" and reading.anion_gap_below_range == "within_variation":
+        text = (
+            f"The {adjective}anion gap of {mmol(used)} is just below the reference range ({reference}), "
+            "within the variation of a calculated gap"
+        )
+        if reading.primary == "metabolic_acidosis":
+            text += ", so this is a normal anion gap (hyperchloremic) acidosis"
+        sentences.append(text + ".")
     elif reading.anion_gap_status == "normal":
         if reading.primary == "metabolic_acidosis":
             sentences.append(

@@ -124,7 +124,7 @@ def test_no_metabolic_alkalosis_no_differential() -> None:
 CHLORIDE_CASES = [
     ("responsive", {"urine_cl": 12}, "below 20 mmol/L, makes the alkalosis chloride-responsive"),
     ("indeterminate", {"urine_cl": 30}, "lies between 20 mmol/L and"),
-    ("resistant", {"urine_cl": 60}, "with no loop or thiazide diuretic known to be acting, makes the alkalosis chloride-resistant"),
+    ("resistant", {"urine_cl": 60}, "diuretic known to be acting, makes the alkalosis chloride-resistant"),
     ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide", 2),)}, "uninterpretable"),
     ("indeterminate", {"urine_cl": 60, "meds": (med("furosemide"),)}, "listed without a last-dose time"),
     ("unknown", {}, "Without a urine chloride"),
