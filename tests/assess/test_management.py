@@ -71,6 +71,9 @@ LOW_EGFR = {"creatinine": 3.0}  # eGFR about 22 at 60 years (CKD-EPI 2021)
 DIURETIC = {"differential": (cause("diuretic"),)}
 MINERALOCORTICOID = {"differential": (cause("mineralocorticoid_excess"),)}
 RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
+OPIOID_HYPOVENTILATION = case(
+    BASE, gas={"ph": 7.17, "pco2": 78, "hco3": 27}, chem={"cl": 102}, context={"meds": ["oxycodone"]}
+)
 CKD_ACIDOSIS = case(ACIDOSIS, chem={"k": 5.2, "creatinine": 3.6}, context={"findings": ["ckd"]})
 # Invented: binge drinking and three days of vomiting; ketoacidosis with a concurrent alkalosis, no diabetes.
 ALCOHOLIC_KETOACIDOSIS: dict[str, dict[str, object]] = {
@@ -446,6 +449,19 @@ EXAMPLES = [
         lambda: assess(case(CKD_ACIDOSIS, chem={"cl": 100, "lactate": 8.0}, context={"findings": ["ckd", "sepsis"]})),
         0,
     ),
+    # An acute respiratory acidosis on an opioid (invented: pH 7.17, PaCO2 78 mmHg after extra oxycodone).
+    printed(
+        "ventilation_depressing_drugs",
+        lambda: assess(case(OPIOID_HYPOVENTILATION)),
+        "Among the drugs listed, oxycodone can depress ventilation",
+    ),
+    printed(
+        "ventilation_depressing_drugs",
+        lambda: assess(case(OPIOID_HYPOVENTILATION, context={"meds": ["morphine", "lorazepam", "amlodipine"]})),
+        "Among the drugs listed, morphine and lorazepam can depress ventilation",
+    ),
+    kept_out("ventilation_depressing_drugs", lambda: assess(case(OPIOID_HYPOVENTILATION, context={"meds": []}))),
+    kept_out("ventilation_depressing_drugs", lambda: assess(case(context={"meds": ["oxycodone"]}))),
     # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
     kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),
