@@ -123,6 +123,8 @@ class AcidBaseReading(BaseModel):
     anion_gap_reference: tuple[float, float]
     # A gap below the reference range: by less than `anion_gap_low_margin` ("within_variation") or more.
     anion_gap_below_range: GapBelowRange | None = None
+    # A high gap in alkalemia no higher than alkalemia itself can raise it (`alkalemia_gap_rise`).
+    anion_gap_within_alkalemia_rise: bool = False
     anion_gap_bicarbonate: GapBicarbonate | None
     gas_panel_agreement: GasPanelAgreement = "not_checked"
     delta_gap: float | None

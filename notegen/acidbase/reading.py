@@ -366,6 +366,7 @@ def read_acid_base(
         anion_gap_corrected=_r(gap.corrected, 2),
         anion_gap_status=gap.status,
         anion_gap_reference=(s.anion_gap_low.value, s.anion_gap_high.value),
+        anion_gap_within_alkalemia_rise=gap.within_alkalemia_rise,
         anion_gap_below_range=_below_range(gap.corrected if gap.corrected is not None else gap.value, s),
         anion_gap_bicarbonate=_gap_label(gap.bicarbonate),
         delta_gap=_r(gap.delta_gap, 2),

@@ -315,6 +315,7 @@ class GapResult:
     bicarbonate_fall: float | None = None
     allows_compensation: bool = False
     normal_gap_acidosis: bool = False
+    within_alkalemia_rise: bool = False
 
 
 # long: the gap, its albumin correction, the delta ratio and its interpretation read as one sequence
@@ -357,6 +358,23 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     w.findings.append(text)
     if out.status != "high":
         return out
+    rise = s.alkalemia_gap_rise.value
+    # a measured lactate or ketone above normal keeps the acidosis established, whatever the pH
+    measured_acid = any(
+        value is not None and usable(value) and value >= limit - EPS
+        for value, limit in ((chem.lactate, s.lactate_normal_below.value), (chem.bhb, s.bhb_normal_below.value))
+    )
+    if ph_status == "alkalemia" and used <= high + rise + EPS and not measured_acid:
+        # Madias, Ayus & Adrogue, NEJM 1979 (from memory): alkalemia itself raises the gap a few mmol/L.
+        out.within_alkalemia_rise = True
+        w.findings.append(
+            f"Alkalemia itself raises the anion gap by up to about {mmol(rise)}, so a rise no larger than "
+            "this is a possible, not an established, added acidosis, and no delta ratio is read from it; "
+            "a lactate would help."
+        )
+        w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}, within alkalemia's own rise",
+              "possible")
+        return out
     if w.gas_panel_disagree:
         # Kraut & Madias, CJASN 2007;2:162: a gap is only as good as its bicarbonate; with the gas and
         # the panel apart, the gap alone does not carry a diagnosis.
@@ -367,11 +385,6 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
         w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}", "possible")
     else:
         w.add("metabolic_acidosis", f"anion gap {mmol(used)} is above {mmol(high)}")
-    if ph_status == "alkalemia" and used <= high + 4:
-        w.findings.append(
-            "Alkalemia itself raises the anion gap by a few mmol/L, so a modest rise like this "
-            "may not mean a separate acidosis; a lactate would help."
-        )
     n_gap, n_hco3 = s.anion_gap_normal.value, s.hco3_normal.value
     done_delta = w.calcs.get("delta_gap")
     out.delta_gap = done_delta.value if done_delta is not None else delta_gap(used, n_gap)

@@ -74,6 +74,9 @@ class AcidBaseSettings(BaseModel):
     anion_gap_low: Setting
     anion_gap_high: Setting
     anion_gap_low_margin: Setting
+    alkalemia_gap_rise: Setting
+    lactate_normal_below: Setting
+    bhb_normal_below: Setting
     anion_gap_normal: Setting
     normal_albumin: Setting
     albumin_gap_factor: Setting

@@ -322,11 +322,15 @@ def _anion_gap(
                 ", which would add a high anion gap metabolic acidosis, but the gas and the panel disagree "
                 "about the bicarbonate, so both are worth repeating together before relying on it"
             )
+        elif reading.anion_gap_within_alkalemia_rise:
+            said.add("metabolic_acidosis")
+            text += (
+                ", a rise alkalemia itself can cause, so an added high anion gap acidosis is possible, not "
+                "established; a lactate would help"
+            )
         else:
             said.add("metabolic_acidosis")
             text += ", which adds a high anion gap metabolic acidosis"
-            if reading.ph_status == "alkalemia" and used <= reading.anion_gap_reference[1] + 4:
-                text += ", though alkalemia itself raises the gap by a few mmol/L"
         sentences.append(text + ".")
     elif reading.anion_gap_status == "normal" and reading.anion_gap_below_range == "beyond_variation":
         sentences.append(
