@@ -74,6 +74,12 @@ RENIN_TEST = {"next_tests": (suggested("renin_aldosterone"),)}
 OPIOID_HYPOVENTILATION = case(
     BASE, gas={"ph": 7.17, "pco2": 78, "hco3": 27}, chem={"cl": 102}, context={"meds": ["oxycodone"]}
 )
+METFORMIN_LACTIC = case(
+    ACIDOSIS,
+    gas={"ph": 7.15, "pco2": 22, "hco3": 8},
+    chem={"k": 5.1, "cl": 100, "lactate": 9.0, "creatinine": 3.6},
+    context={"meds": ["metformin"], "findings": ["diabetes"]},
+)
 CKD_ACIDOSIS = case(ACIDOSIS, chem={"k": 5.2, "creatinine": 3.6}, context={"findings": ["ckd"]})
 # Invented: binge drinking and three days of vomiting; ketoacidosis with a concurrent alkalosis, no diabetes.
 ALCOHOLIC_KETOACIDOSIS: dict[str, dict[str, object]] = {
@@ -462,6 +468,15 @@ EXAMPLES = [
     ),
     kept_out("ventilation_depressing_drugs", lambda: assess(case(OPIOID_HYPOVENTILATION, context={"meds": []}))),
     kept_out("ventilation_depressing_drugs", lambda: assess(case(context={"meds": ["oxycodone"]}))),
+    # Metformin with a lactic acidosis (invented: lactate 9 mmol/L, creatinine 3.6 mg/dL): stop it, and
+    # extracorporeal removal where severe (Calello et al., Crit Care Med 2015; from memory).
+    printed(
+        "metformin_lactic_acidosis",
+        lambda: assess(case(METFORMIN_LACTIC)),
+        "With a lactic acidosis on metformin, stopping it is worth weighing",
+    ),
+    kept_out("metformin_lactic_acidosis", lambda: assess(case(METFORMIN_LACTIC, context={"meds": []}))),
+    kept_out("metformin_lactic_acidosis", lambda: assess(case(METFORMIN_LACTIC, chem={"lactate": 1.0}))),
     # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
     kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),

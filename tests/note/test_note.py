@@ -151,7 +151,7 @@ def test_the_work_up_sections_carry_the_findings() -> None:
     assert "Not settled" not in note
     assert "- **Hypokalemia:** Potassium 2.8 mmol/L. Source: common practice." in note
     # the test's reason is the one clinical sentence of rules/vocabulary/next_tests.yaml, not the walk's words
-    assert "- **Repeat serum magnesium:** A low magnesium keeps potassium losses going and repletion falling short" in note
+    assert "- **Repeat serum magnesium:** A low magnesium keeps potassium losses going and repletion" in note
 
 
 def test_an_undetermined_factor_says_only_what_is_missing() -> None:

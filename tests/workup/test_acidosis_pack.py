@@ -344,3 +344,22 @@ def test_the_sample_service_overlay_reads_a_lower_urine_osmolal_gap_as_adequate(
     ours = Drafter(rules_dirs=(service,)).assess(read_case_data({"units": "conventional", **data})).acidosis
     assert shipped is not None and ours is not None
     assert (shipped.ammonium, ours.ammonium) == ("low", "adequate")
+
+
+# --- Metformin and kidney function; a moderately raised ketone ------------------------------------------
+def test_metformin_weighs_more_where_kidney_function_lets_it_accumulate() -> None:
+    # Creatinine 4.0 mg/dL at 45 gives an eGFR near 18 (CKD-EPI 2021, Inker et al., NEJM 2021), below 30,
+    # where metformin is contraindicated (FDA drug safety communication 2016; from memory).
+    low = workup(case_with(HIGH_GAP, chem={"lactate": 6.0, "creatinine": 4.0}, context={"meds": ["metformin"]}))
+    kept = workup(case_with(HIGH_GAP, chem={"lactate": 6.0}, context={"meds": ["metformin"]}))
+    assert {e.id for e in cause_of(low, "lactic_acidosis").supporting} == {"lactate_high", "metformin_low_gfr"}
+    assert {e.id for e in cause_of(kept, "lactic_acidosis").supporting} == {"lactate_high", "metformin"}
+
+
+def test_a_moderately_raised_ketone_with_starvation_makes_ketoacidosis_likely() -> None:
+    # Beta-hydroxybutyrate 2.1 mmol/L: above 0.6 (common practice) but below 3 (Umpierrez et al., 2024).
+    alone = workup(case_with(HIGH_GAP, chem={"bhb": 2.1}))
+    fasting = workup(case_with(HIGH_GAP, chem={"bhb": 2.1}, context={"findings": ["poor oral intake"]}))
+    assert {e.id for e in cause_of(alone, "ketoacidosis").supporting} == {"bhb_moderately_raised"}
+    assert cause_of(alone, "ketoacidosis").tier == "possible"
+    assert cause_of(fasting, "ketoacidosis").tier == "likely"
