@@ -140,6 +140,9 @@ EXAMPLES = [
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem={"na": 129}, context=OVERLOAD)), 3),
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem=LOW_EGFR, context=OVERLOAD)), 4),
     kept_out("acetazolamide_in_overload", lambda: assess(case(context={**OVERLOAD, "meds": ["acetazolamide"]})), 5),
+    kept_out(
+        "acetazolamide_in_overload", lambda: assess(case(context={"volume": "high", "findings": ["ascites"]})), 7
+    ),
     kept_out(  # a ketoacidosis with a vomiting alkalosis and edema (invented)
         "acetazolamide_in_overload",
         lambda: assess(case(gas={"ph": 7.35, "pco2": 40, "hco3": 22}, chem={"cl": 88}, context=OVERLOAD)),
@@ -178,6 +181,19 @@ EXAMPLES = [
     kept_out(
         "chloride_class_unknown", lambda: assess(case(context={"findings": ["edema"]}), chloride_class="unknown"), 1
     ),
+    kept_out(
+        "chloride_class_unknown", lambda: assess(case(context={"findings": ["ascites"]}), chloride_class="unknown"), 1
+    ),
+    kept_out(
+        "chloride_responsive_replacement",
+        lambda: assess(case(context={"findings": ["tense ascites"]}), chloride_class="responsive"),
+        0,
+    ),
+    printed(
+        "chloride_with_overload",
+        lambda: assess(case(chem=LOW_K, context={"findings": ["ascites"]}), chloride_class="responsive"),
+        "potassium chloride",
+    ),
     printed(
         "chloride_class_unknown",
         lambda: assess(case(context={"volume": "normal"}), chloride_class="unknown"),
@@ -187,6 +203,45 @@ EXAMPLES = [
         "gastric_loss",
         lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
         "nausea",
+    ),
+    # Vomiting with overload recorded (invented cirrhosis with ascites): "replacing ... volume" is struck.
+    kept_out(
+        "gastric_loss",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["vomiting", "ascites"]}), differential=(cause("gastric_loss"),)
+        ),
+        0,
+    ),
+    kept_out(
+        "gastric_loss",
+        lambda: assess(case(context={"findings": ["vomiting", "cirrhosis"]}), differential=(cause("gastric_loss"),)),
+        0,
+    ),
+    printed(
+        "gastric_loss",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["vomiting", "cirrhosis"]}),
+            differential=(cause("gastric_loss"),),
+        ),
+        "replacing chloride and volume",
+    ),
+    printed(
+        "gastric_loss_in_overload",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["vomiting", "ascites"]}), differential=(cause("gastric_loss"),)
+        ),
+        "without adding to the overload",
+        lacks=("volume",),
+    ),
+    kept_out(
+        "gastric_loss_in_overload",
+        lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
+    ),
+    kept_out(
+        "gastric_loss_in_overload",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["vomiting", "edema"]}), differential=(cause("gastric_loss"),)
+        ),
     ),
     kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "unlikely"),))),
     kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "possible"),))),

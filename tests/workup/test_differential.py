@@ -367,6 +367,30 @@ def test_volume_contraction_needs_evidence() -> None:
     assert "volume_contraction" in factors(urine_cl=12, volume="normal")
 
 
+@pytest.mark.parametrize(
+    ("values", "factor"),
+    [
+        ({"volume": "high"}, "effective_volume_depletion"),
+        ({"findings": ("cirrhosis", "ascites")}, "effective_volume_depletion"),
+        ({"volume": "normal", "findings": ("heart_failure",)}, "effective_volume_depletion"),
+        ({"findings": ("ascites",)}, "effective_volume_depletion"),
+        ({"volume": "low", "findings": ("cirrhosis", "edema")}, "volume_contraction"),
+        ({"volume": "unknown"}, "volume_contraction"),
+        ({"volume": "normal"}, "volume_contraction"),
+    ],
+    ids=["volume-high", "cirrhosis-ascites", "heart-failure", "ascites", "low-with-cirrhosis", "unknown", "normal"],
+)
+def test_chloride_responsive_maintenance_fits_the_recorded_volume(values: dict[str, Any], factor: str) -> None:
+    # With overload recorded a clinician strikes "volume depletion": the kidney holds bicarbonate for a low
+    # effective arterial volume and chloride depletion (Luke & Galla, JASN 2012;23:204; Galla, JASN 2000).
+    maintenance = {f.factor: f for f in evaluate(alkalosis_case(urine_cl=8, **values)).maintenance}
+    assert factor in maintenance and maintenance[factor].status == "present"
+    other = ({"volume_contraction", "effective_volume_depletion"} - {factor}).pop()
+    assert other not in maintenance
+    if factor == "effective_volume_depletion":
+        assert "volume depletion" not in maintenance[factor].label
+
+
 SAMPLES = Path(__file__).resolve().parents[2] / "samples"
 # The causes a nephrologist would name first for each invented sample; None: no alkalosis differential.
 SAMPLE_LEADS: dict[str, set[str] | None] = {
