@@ -360,6 +360,26 @@ EXAMPLES = [
         3,
     ),
     printed("licorice", lambda: assess(case(context={"meds": ["black licorice"]})), "stopping it"),
+    # Licorice explains the mineralocorticoid excess: the hormone and cortisol tests wait until it is stopped.
+    printed(
+        "licorice",
+        lambda: assess(case(context={"meds": ["black licorice"]}), **MINERALOCORTICOID),
+        "stopping it is the usual first step",
+        "Renin, aldosterone and a cortisol evaluation are premature while it acts",
+    ),
+    printed(
+        "licorice",
+        lambda: assess(
+            case(context={"meds": ["black licorice"], "renin": "low", "aldosterone": "low"}), **MINERALOCORTICOID
+        ),
+        "stopping it",
+        lacks=("premature",),
+    ),
+    kept_out(
+        "mineralocorticoid_excess",
+        lambda: assess(case(chem=LOW_K, context={"meds": ["black licorice"]}), **MINERALOCORTICOID),
+        4,
+    ),
     kept_out("licorice", lambda: assess(BASE)),
     # With alkali and hypercalcemia the calcium-alkali consideration names the syndrome; not twice.
     printed(

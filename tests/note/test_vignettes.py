@@ -30,6 +30,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("maintained by chloride depletion and a low effective arterial volume",),
         ("volume depletion", "chloride and volume", "not recognised", "isotonic sodium chloride"),
     ),
+    # Licorice with hypertension, potassium 2.7, urine chloride 85: stop the licorice and recheck; renin,
+    # aldosterone and cortisol tests are premature while it acts (Farese et al., NEJM 1991; from memory).
+    "licorice_hypertension": (
+        ("stopping it is the usual first step", "premature while it acts"),
+        ("Tests that would help", "renin and aldosterone read best", "while its source is evaluated"),
+    ),
 }
 
 

@@ -172,6 +172,15 @@ PATTERN_CASES: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
         {"renin": "low", "aldosterone": "low", "cortisol_excess": False},
     ),
     ("hypertensive_open", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "normal", "aldosterone": "normal"}),
+    # A listed agent explains the hypertensive pattern (Farese et al., NEJM 1991, from memory): renin waits.
+    ("listed_agent_pattern", {"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)}, None),
+    (
+        "listed_agent_pattern",
+        {"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)},
+        {"renin": "low", "aldosterone": "low"},
+    ),
+    ("listed_agent_pattern", {"urine_cl": 60, "bp": (160, 95), "meds": (med("fludrocortisone"),)}, None),
+    ("tubular_open", {"urine_cl": 60, "meds": (med("licorice"),)}, None),
     ("diuretic_effect", {"urine_cl": 60, "meds": (med("furosemide", 30),)}, None),
     ("thiazide_or_gitelman_pattern", {"urine_cl": 60, "urine_calcium": 2, "urine_creatinine": 100}, None),
     ("loop_or_bartter_pattern", {"urine_cl": 60, "urine_calcium": 20, "urine_creatinine": 100}, None),
@@ -210,6 +219,11 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
             [],
         ),
         ({"urine_cl": 60, "bp": None}, None, None, ["renin_aldosterone"]),
+        # Licorice listed: the hormones read low while it acts, so neither pair nor cortisol is asked for.
+        ({"urine_cl": 60, "bp": (160, 95), "k": 2.8, "meds": (med("licorice"),)}, None, None,
+         ["renin_aldosterone", "cortisol_evaluation"]),
+        ({"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)}, {"renin": "low", "aldosterone": "low"}, None,
+         ["renin_aldosterone", "cortisol_evaluation"]),
     ],
     ids=[
         "no-urine-cl",
@@ -220,6 +234,8 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
         "hypokalemia",
         "venous-after-hypercapnia",
         "no-blood-pressure",
+        "licorice",
+        "licorice-low-renin-low-aldo",
     ],  # fmt: skip
 )
 def test_next_tests_follow_the_tree(
