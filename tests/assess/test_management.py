@@ -93,6 +93,44 @@ EXAMPLES = [
         lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
     ),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
+    # Diarrhea with a normal-gap acidosis and volume recorded low: volume, with the chloride of saline in mind
+    # (Semler et al., NEJM 2018; from memory). Before: no fluid consideration at all.
+    printed(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low"})),
+        "volume repletion is indicated",
+        "balanced crystalloid may be preferred",
+    ),
+    printed(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "kidney_disease"]})),
+        "volume repletion is indicated",
+    ),
+    kept_out("gut_loss_volume_repletion", lambda: assess(ACIDOSIS)),
+    kept_out("gut_loss_volume_repletion", lambda: assess(case(ACIDOSIS, context={"volume": "normal"}))),
+    kept_out("gut_loss_volume_repletion", lambda: assess(case(ACIDOSIS, context={"volume": "high"}))),
+    kept_out(  # a ketoacidosis with a vomiting alkalosis and diarrhea, volume low (invented)
+        "gut_loss_volume_repletion",
+        lambda: assess(
+            case(
+                gas={"ph": 7.35, "pco2": 40, "hco3": 22},
+                chem={"cl": 88},
+                context={"volume": "low", "findings": ["diarrhea", "vomiting"]},
+            ),
+            acidosis=assess(case(ACIDOSIS, context={"volume": "low"})).acidosis,
+        ),
+        0,
+    ),
+    kept_out(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "heart_failure"]})),
+        1,
+    ),
+    kept_out(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "ascites"]})),
+        1,
+    ),
     # Volume repletion stays whenever volume is recorded low, even with edema or heart failure.
     printed("volume_repletion", lambda: assess(case(context={"volume": "low"})), "isotonic sodium chloride"),
     printed(
@@ -140,9 +178,7 @@ EXAMPLES = [
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem={"na": 129}, context=OVERLOAD)), 3),
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem=LOW_EGFR, context=OVERLOAD)), 4),
     kept_out("acetazolamide_in_overload", lambda: assess(case(context={**OVERLOAD, "meds": ["acetazolamide"]})), 5),
-    kept_out(
-        "acetazolamide_in_overload", lambda: assess(case(context={"volume": "high", "findings": ["ascites"]})), 7
-    ),
+    kept_out("acetazolamide_in_overload", lambda: assess(case(context={"volume": "high", "findings": ["ascites"]})), 7),
     kept_out(  # a ketoacidosis with a vomiting alkalosis and edema (invented)
         "acetazolamide_in_overload",
         lambda: assess(case(gas={"ph": 7.35, "pco2": 40, "hco3": 22}, chem={"cl": 88}, context=OVERLOAD)),

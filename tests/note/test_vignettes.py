@@ -36,6 +36,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("stopping it is the usual first step", "premature while it acts"),
         ("Tests that would help", "renin and aldosterone read best", "while its source is evaluated"),
     ),
+    # Watery diarrhea, normal-gap acidosis, volume recorded low, blood pressure 96/58: volume repletion, with
+    # the chloride of large saline volumes in mind (Semler et al., NEJM 2018; from memory).
+    "diarrhea_volume_low": (
+        ("volume repletion is indicated", "a balanced crystalloid may be preferred"),
+        ("not recognised",),
+    ),
 }
 
 
