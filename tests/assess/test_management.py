@@ -214,6 +214,46 @@ EXAMPLES = [
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "low"}), chloride_class="unknown"), 0),
     # An overloaded patient on a diuretic: "bedside volume status guides any saline" would be struck.
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "high"}), chloride_class="unknown"), 1),
+    # Bicarbonate tablets with kidney disease and volume recorded normal (invented): "bedside volume status
+    # guides any saline" would be struck; the alkali is the question.
+    kept_out(
+        "chloride_class_unknown",
+        lambda: assess(
+            case(context={"volume": "normal"}), chloride_class="unknown", differential=(cause("alkali_load"),)
+        ),
+        2,
+    ),
+    printed(
+        "chloride_class_unknown",
+        lambda: assess(
+            case(context={"volume": "unknown"}), chloride_class="unknown", differential=(cause("alkali_load"),)
+        ),
+        "bedside volume status",
+    ),
+    # A diuretic acting when the urine was taken: the paragraph already says to repeat it once worn off.
+    kept_out(
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(urine={"cl": 60}, context={"meds": [{"name": "furosemide", "last_dose_hours": 2}]}),
+            chloride_class="indeterminate",
+        ),
+        2,
+    ),
+    printed(  # a middle-range value with the diuretic acting: the paragraph says nothing of a repeat
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(urine={"cl": 30}, context={"meds": [{"name": "furosemide", "last_dose_hours": 2}]}),
+            chloride_class="indeterminate",
+        ),
+        "repeat sample",
+    ),
+    printed(
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(context={"meds": [{"name": "furosemide", "last_dose_hours": 30}]}), chloride_class="indeterminate"
+        ),
+        "repeat sample",
+    ),
     kept_out(
         "chloride_class_unknown", lambda: assess(case(context={"findings": ["edema"]}), chloride_class="unknown"), 1
     ),
@@ -431,6 +471,28 @@ EXAMPLES = [
         lacks=("milk-alkali",),
     ),
     kept_out("alkali_sources", lambda: assess(BASE)),
+    printed(  # a prescribed alkali in kidney disease is reduced more often than stopped
+        "alkali_sources",
+        lambda: assess(case(chem=LOW_EGFR, context={"meds": ["sodium bicarbonate"]})),
+        "with a view to reducing or stopping those not needed",
+    ),
+    # A thiazide with hypertension: the pairing with a potassium-sparing agent already names the agents.
+    kept_out(
+        "mineralocorticoid_excess",
+        lambda: assess(
+            case(chem=LOW_K, context={"meds": ["chlorthalidone"]}),
+            differential=(cause("diuretic"), cause("mineralocorticoid_excess", "possible")),
+        ),
+        5,
+    ),
+    printed(
+        "potassium_sparing_with_diuretic",
+        lambda: assess(
+            case(chem=LOW_K, context={"meds": ["chlorthalidone"]}),
+            differential=(cause("diuretic"), cause("mineralocorticoid_excess", "possible")),
+        ),
+        "Pairing chlorthalidone with a potassium-sparing agent",
+    ),
     # Calcium-alkali syndrome (Patel & Goldfarb, JASN 2010; from memory): volume repletion and stopping
     # the calcium and alkali, even with a high urine chloride; not when volume is recorded as high.
     printed("calcium_alkali", sample("alkali_kidney_disease"), "first-line even with a high urine chloride"),
@@ -456,6 +518,59 @@ EXAMPLES = [
     kept_out("reduced_kidney_function", lambda: assess(BASE)),
     printed("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia"),)), "PaCO2"),
     kept_out("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia", "unlikely"),))),
+    # Extubated after hypercapnia, overloaded on furosemide (invented): "volume replete" would be struck.
+    kept_out(
+        "post_hypercapnia",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        0,
+    ),
+    printed(
+        "post_hypercapnia_in_overload",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        "only when chloride is replete, here without adding to the overload",
+        lacks=("volume",),
+    ),
+    kept_out(
+        "post_hypercapnia_in_overload",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+    ),
+    printed(
+        "post_hypercapnia",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        "chloride and volume are replete",
+    ),
+    # Ketoacidosis with volume recorded low: fluid first (Kitabchi et al., Diabetes Care 2009; from memory);
+    # insulin only where diabetes is recorded (not for an alcoholic or starvation ketoacidosis).
+    printed(
+        "ketoacidosis_volume_repletion",
+        sample("diabetic_ketoacidosis"),
+        "fluid repletion is a first step",
+        "alongside insulin and potassium",
+    ),
+    printed(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"findings": ["alcohol use"]})),
+        "fluid repletion is a first step",
+        lacks=("insulin",),
+    ),
+    kept_out(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"volume": "normal"})),
+    ),
+    kept_out("ketoacidosis_volume_repletion", sample("ketoacidosis_with_vomiting"), 0),
+    kept_out(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"findings": ["diabetes", "heart failure"]})),
+        1,
+    ),
     printed(
         "salt_wasting_tubulopathy", lambda: assess(BASE, differential=(cause("salt_wasting_tubulopathy"),)), "covert"
     ),
@@ -531,7 +646,7 @@ EXAMPLES = [
         "magnesium_low",
         lambda: assess(case(chem={"mg": 1.3}, context={"meds": ["omeprazole"]})),
         "Magnesium 1.3 mg/dL is low",
-        "Long-term omeprazole is a probable cause of the low magnesium",
+        "Taken long-term, omeprazole can lower magnesium",
     ),
     printed("magnesium_low", lambda: assess(case(chem={"mg": 1.3})), "Magnesium 1.3 mg/dL", lacks=("probable",)),
     kept_out("magnesium_low", lambda: assess(case(context={"meds": ["omeprazole"]}))),

@@ -42,6 +42,34 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("volume repletion is indicated", "a balanced crystalloid may be preferred"),
         ("not recognised",),
     ),
+    # Vomiting, volume low, omeprazole of unknown duration, magnesium 1.6: the drug may lower magnesium if
+    # taken long-term; the note does not claim that it has been.
+    "ppi_post_vomiting": (
+        ("Taken long-term, omeprazole can lower magnesium", "chloride and volume depletion"),
+        ("Long-term omeprazole is a probable cause",),
+    ),
+    # Chlorthalidone with hypertension and potassium 2.9: the potassium-sparing agents are named once, and the
+    # repeat urine chloride once (in the paragraph), so the chart stays within its length.
+    "thiazide_chronic": (
+        ("Pairing chlorthalidone with a potassium-sparing agent", "a repeat once it has worn off"),
+        ("If mineralocorticoid excess is confirmed", "While the class is indeterminate"),
+    ),
+    # Kidney disease stage 4 on bicarbonate tablets, volume normal: reduce the alkali; no saline talk.
+    "ckd4_bicarbonate": (
+        ("with a view to reducing or stopping those not needed", "The alkali taken (sodium bicarbonate)"),
+        ("bedside volume status guides any saline",),
+    ),
+    # Diabetic ketoacidosis with vomiting, volume low: fluid first, beside insulin and potassium
+    # (Kitabchi et al., Diabetes Care 2009; from memory).
+    "dka_vomiting": (
+        ("fluid repletion is a first step", "alongside insulin and potassium"),
+        (),
+    ),
+    # Extubated after hypercapnia, overloaded on furosemide: chloride, not volume.
+    "post_hypercapnia_furosemide": (
+        ("only when chloride is replete, here without adding to the overload",),
+        ("chloride and volume are replete",),
+    ),
 }
 
 
