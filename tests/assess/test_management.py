@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
-from management_cases import ACIDOSIS, BASE, assess, case, cause, suggested
+from management_cases import ACIDOSIS, BASE, LACTIC, assess, case, cause, suggested
 
 from notegen.assess.considerations import (
     load_considerations,
@@ -93,6 +93,32 @@ EXAMPLES = [
         lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
     ),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
+    # Septic shock with a lactic acidosis and volume recorded low (invented): perfusion first (Evans et al.,
+    # Crit Care Med 2021; from memory). Before: only the bicarbonate cautions.
+    printed(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(case(LACTIC, context={"volume": "low", "findings": ["septic shock"]})),
+        "restoring perfusion",
+    ),
+    kept_out("hypoperfusion_volume_repletion", lambda: assess(case(LACTIC, context={"findings": ["sepsis"]}))),
+    kept_out("hypoperfusion_volume_repletion", lambda: assess(case(LACTIC, context={"volume": "low", "findings": []}))),
+    kept_out(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(
+            case(
+                LACTIC,
+                gas={"ph": 7.35, "pco2": 40, "hco3": 22},
+                chem={"cl": 88},
+                context={"volume": "low", "findings": ["sepsis", "vomiting"]},
+            )
+        ),
+        0,
+    ),
+    kept_out(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(case(LACTIC, context={"volume": "low", "findings": ["sepsis", "heart failure"]})),
+        1,
+    ),
     # Diarrhea with a normal-gap acidosis and volume recorded low: volume, with the chloride of saline in mind
     # (Semler et al., NEJM 2018; from memory). Before: no fluid consideration at all.
     printed(

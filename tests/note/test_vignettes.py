@@ -70,6 +70,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("only when chloride is replete, here without adding to the overload",),
         ("chloride and volume are replete",),
     ),
+    # Septic shock, lactate 6.2, volume low: the critical lactate stands out, and perfusion comes before any
+    # talk of bicarbonate (Evans et al., Crit Care Med 2021; from memory).
+    "septic_lactate": (
+        ("Critical values:** Lactate 6.2 mmol/L", "restoring perfusion"),
+        (),
+    ),
 }
 
 
