@@ -76,6 +76,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("Critical values:** Lactate 6.2 mmol/L", "restoring perfusion"),
         (),
     ),
+    # The same with blood pressure 122/76: licorice still leads, and neither the tubular work-up nor
+    # "hypertension persists" is offered.
+    "licorice_normotensive": (
+        ("The likely cause is mineralocorticoid excess (taking licorice", "stopping it is the usual first step"),
+        ("Tests that would help", "salt-wasting tubulopathy", "or hypertension persists"),
+    ),
 }
 
 

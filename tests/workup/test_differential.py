@@ -180,7 +180,8 @@ PATTERN_CASES: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
         {"renin": "low", "aldosterone": "low"},
     ),
     ("listed_agent_pattern", {"urine_cl": 60, "bp": (160, 95), "meds": (med("fludrocortisone"),)}, None),
-    ("tubular_open", {"urine_cl": 60, "meds": (med("licorice"),)}, None),
+    # Licorice can leave the pressure normal; the agent still comes before the tubular work-up.
+    ("listed_agent_pattern", {"urine_cl": 60, "meds": (med("licorice"),)}, None),
     ("diuretic_effect", {"urine_cl": 60, "meds": (med("furosemide", 30),)}, None),
     ("thiazide_or_gitelman_pattern", {"urine_cl": 60, "urine_calcium": 2, "urine_creatinine": 100}, None),
     ("loop_or_bartter_pattern", {"urine_cl": 60, "urine_calcium": 20, "urine_creatinine": 100}, None),
@@ -224,6 +225,8 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
          ["renin_aldosterone", "cortisol_evaluation"]),
         ({"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)}, {"renin": "low", "aldosterone": "low"}, None,
          ["renin_aldosterone", "cortisol_evaluation"]),
+        ({"urine_cl": 60, "k": 2.8, "meds": (med("licorice"),)}, None, None,
+         ["renin_aldosterone", "cortisol_evaluation", "urine_calcium_creatinine", "urine_diuretic_screen"]),
     ],
     ids=[
         "no-urine-cl",
@@ -236,6 +239,7 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
         "no-blood-pressure",
         "licorice",
         "licorice-low-renin-low-aldo",
+        "licorice-normotensive",
     ],  # fmt: skip
 )
 def test_next_tests_follow_the_tree(
@@ -370,6 +374,15 @@ def test_mineralocorticoid_activity_only_with_its_source_in_view() -> None:
     # An aldosterone that was never measured is not, by itself, something to report as open.
     plain = {f.factor for f in evaluate(alkalosis_case(urine_cl=30, volume="normal")).maintenance}
     assert not plain & {"mineralocorticoid_activity", "secondary_aldosteronism"}
+
+
+def test_licorice_leads_whatever_the_pressure() -> None:
+    # A normal pressure is not counted against a listed agent: licorice can leave it normal (common practice).
+    for bp in ((160, 95), (118, 76)):
+        result = evaluate(alkalosis_case(urine_cl=60, k=2.8, bp=bp, meds=(med("licorice"),)))
+        assert ranked(result)[0] == "mineralocorticoid_excess" and tier(result, "mineralocorticoid_excess") == "likely"
+    plain = evaluate(alkalosis_case(urine_cl=60, k=2.8, bp=(118, 76)))
+    assert "not_hypertensive" in {e.id for c in plain.differential for e in c.opposing}
 
 
 def test_volume_contraction_needs_evidence() -> None:
