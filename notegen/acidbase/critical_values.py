@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Literal
 
-from notegen._format import format_value, round_half_up
+from notegen._format import format_value, ph_text, round_half_up
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.calculations import usable
 from notegen.acidbase.formulas import corrected_calcium
@@ -259,7 +259,7 @@ def _hypercapnic_acidemia(pco2: float, ph: float | None, s: AcidBaseSettings, ve
             code="hypercapnic_acidemia",
             level="critical" if critical else "warning",
             message=(
-                f"{name} {format_value(pco2, 'mmHg')} with pH {format_value(ph)}: hypercapnia with acidemia, an "
+                f"{name} {format_value(pco2, 'mmHg')} with pH {ph_text(ph)}: hypercapnia with acidemia, an "
                 f"acute or acute-on-chronic respiratory acidosis{sample}; consider {urgency} review of ventilation "
                 "and whether ventilatory support is needed."
             ),

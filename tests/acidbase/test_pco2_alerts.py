@@ -87,6 +87,12 @@ def test_a_venous_pco2_alert_says_it_is_venous_and_asks_for_an_arterial_gas() ->
     assert "respiratory acidosis if an arterial gas confirms it; consider prompt review" in acidemic
 
 
+def test_the_ph_reads_as_analysers_print_it() -> None:
+    # pH 7.30 stays 7.30 (two decimals), as the paragraph prints it; before the fix it read "pH 7.3".
+    message = next(a.message for a in _read(55, 26.5).alerts if a.code == "hypercapnic_acidemia")
+    assert message.startswith("PaCO2 55 mmHg with pH 7.30: hypercapnia with acidemia")
+
+
 def test_the_acute_hypercapnia_stands_at_the_top_of_the_note() -> None:
     case = validate_case(
         {
