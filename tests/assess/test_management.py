@@ -216,7 +216,12 @@ EXAMPLES = [
         "saline will not correct",
     ),
     kept_out("chloride_resistant", lambda: assess(case(context={"volume": "low"}), chloride_class="resistant"), 0),
-    printed("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="indeterminate"), "repeat sample"),
+    printed(  # no diuretic listed (a refeeding patient, invented): no word of one
+        "chloride_class_indeterminate",
+        lambda: assess(BASE, chloride_class="indeterminate"),
+        "repeat sample",
+        lacks=("diuretic",),
+    ),
     kept_out("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="responsive")),
     # Held open by a high calcium (or a calcium salt with no calcium measured), not by a diuretic or a
     # middle-range value: "repeat once any diuretic has worn off" would be struck for that patient.
@@ -272,6 +277,7 @@ EXAMPLES = [
             chloride_class="indeterminate",
         ),
         "repeat sample",
+        "It reads truest once any diuretic has worn off.",
     ),
     printed(
         "chloride_class_indeterminate",

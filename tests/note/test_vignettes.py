@@ -82,6 +82,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("The likely cause is mineralocorticoid excess (taking licorice", "stopping it is the usual first step"),
         ("Tests that would help", "salt-wasting tubulopathy", "or hypertension persists"),
     ),
+    # Refeeding with potassium 2.4 and magnesium 1.1, no diuretic listed: the severe potassium stands out,
+    # and the repeat urine chloride is asked for without a word about a diuretic she does not take.
+    "refeeding_hypokalemia": (
+        ("Critical values:** Potassium 2.4 mmol/L", "While the class is indeterminate, a repeat sample"),
+        ("diuretic",),
+    ),
 }
 
 
