@@ -93,6 +93,12 @@ EXAMPLES = [
         lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
     ),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
+    # A ketoacidosis hiding a vomiting alkalosis at pH 7.35: the mixed-disorder consideration already
+    # cautions against alkali; a second caution about bicarbonate would be struck.
+    kept_out("bicarbonate_cautions", sample("ketoacidosis_with_vomiting"), 0),
+    printed(
+        "acidosis_and_alkalosis_together", sample("ketoacidosis_with_vomiting"), "alkali calls for particular caution"
+    ),
     # Septic shock with a lactic acidosis and volume recorded low (invented): perfusion first (Evans et al.,
     # Crit Care Med 2021; from memory). Before: only the bicarbonate cautions.
     printed(
