@@ -454,6 +454,14 @@ EXAMPLES = [
         lambda: assess(case(chem=LOW_K, context={"meds": ["losartan"]}), **MINERALOCORTICOID),
         "mineralocorticoid-receptor antagonist",
         "With losartan also taken",
+        lacks=("Sampling renin",),
+    ),
+    # With renin and aldosterone still to be sent, an antagonist started first would blur the screen
+    # (Funder et al., JCEM 2016; from memory).
+    printed(
+        "mineralocorticoid_excess",
+        lambda: assess(case(chem=LOW_K), **MINERALOCORTICOID, **RENIN_TEST),
+        "Sampling renin and aldosterone before starting either keeps that screen readable.",
     ),
     kept_out(
         "mineralocorticoid_excess",
