@@ -685,6 +685,22 @@ EXAMPLES = [
         "before any alkali",
         lacks=("insulin",),
     ),
+    # An ACE inhibitor or ARB with volume recorded low (common practice, sick-day guidance; from memory).
+    printed(
+        "raas_blocker_with_low_volume",
+        lambda: assess(case(context={"volume": "low", "meds": ["lisinopril", "amlodipine"]})),
+        "pausing lisinopril until volume is restored",
+    ),
+    printed(
+        "raas_blocker_with_low_volume",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "meds": ["losartan"]})),
+        "pausing losartan",
+    ),
+    kept_out(
+        "raas_blocker_with_low_volume", lambda: assess(case(context={"volume": "normal", "meds": ["lisinopril"]}))
+    ),
+    kept_out("raas_blocker_with_low_volume", lambda: assess(case(context={"meds": ["lisinopril"]}))),
+    kept_out("raas_blocker_with_low_volume", lambda: assess(case(context={"volume": "low", "meds": ["amlodipine"]}))),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),
     printed("severe_hypokalemia", lambda: assess(case(ACIDOSIS, chem={"k": 2.3})), "an ECG and cardiac monitoring"),
     kept_out("severe_hypokalemia", lambda: assess(case(chem={"k": 2.7}))),

@@ -88,6 +88,12 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("Critical values:** Potassium 2.4 mmol/L", "While the class is indeterminate, a repeat sample"),
         ("diuretic",),
     ),
+    # Acute kidney injury with potassium 6.8 on lisinopril and ibuprofen, volume low: the potassium stands out,
+    # the ACE inhibitor is paused while volume is short (common practice), and the unknown drug is named.
+    "aki_hyperk": (
+        ("Critical values:** Potassium 6.8 mmol/L", "pausing lisinopril until volume is restored", "'ibuprofen'"),
+        (),
+    ),
 }
 
 
