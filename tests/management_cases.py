@@ -27,6 +27,13 @@ ACIDOSIS: dict[str, Any] = {
     "chem": {"na": 138, "k": 2.9, "cl": 115, "creatinine": 0.9, "albumin": 4.0, "mg": 2.0},
     "context": {"findings": ["diarrhea"]},
 }
+# An invented high-gap lactic acidosis (lactate 6.0 mmol/L), findings and volume set by each test.
+LACTIC: dict[str, Any] = {
+    "units": "conventional",
+    "patient": {"age": 66, "sex": "male", "weight_kg": 80},
+    "gas": {"sample": "arterial", "ph": 7.22, "pco2": 28, "hco3": 11},
+    "chem": {"na": 138, "k": 4.6, "cl": 102, "creatinine": 1.2, "albumin": 4.0, "mg": 2.0, "lactate": 6.0},
+}
 
 
 def case(base: dict[str, Any] = BASE, **sections: dict[str, Any]) -> dict[str, Any]:

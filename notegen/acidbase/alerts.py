@@ -9,7 +9,12 @@ from __future__ import annotations
 from notegen._format import decimals_beside, format_number, format_value, format_value_beside, join_words, ph_text
 from notegen.acidbase.alert import Alert, AlertLevel
 from notegen.acidbase.calculations import usable
-from notegen.acidbase.critical_values import calcium_alerts, lactate_salicylate_alerts, sodium_glucose_alerts
+from notegen.acidbase.critical_values import (
+    calcium_alerts,
+    lactate_salicylate_alerts,
+    pco2_alerts,
+    sodium_glucose_alerts,
+)
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
@@ -161,13 +166,16 @@ def severity_alerts(
     hco3: float | None,
     alkalemic: bool,
     venous: bool,
+    compensating_low_pco2: bool = False,
+    chronic_hypercapnia: bool = False,
 ) -> list[Alert]:
     """Alerts for dangerous values, in a fixed order.
 
-    pH, potassium, sodium and glucose, lactate and salicylate, calcium, magnesium, ventilation.
+    pH, PCO2, potassium, sodium and glucose, lactate and salicylate, calcium, magnesium, ventilation.
     """
     alerts: list[Alert] = []
     alerts += _ph_alerts(ph, ph_calculated, s, venous)
+    alerts += pco2_alerts(pco2, venous, s, ph, compensating=compensating_low_pco2, chronic=chronic_hypercapnia)
     alerts += _potassium_alerts(case.chem.k, s, magnesium_measured=usable(case.chem.mg))
     alerts += sodium_glucose_alerts(case, s)
     alerts += lactate_salicylate_alerts(case, s)

@@ -1,4 +1,4 @@
-"""Calcium, sodium, glucose, lactate and salicylate read against their thresholds, so none is missed.
+"""Calcium, sodium, glucose, lactate, salicylate and PCO2 read against their thresholds, so none is missed.
 
 Calcium is read as ionized calcium when measured, else as total calcium corrected for albumin
 (Payne et al., BMJ 1973), else as total calcium. Thresholds live in `rules/acid_base.yaml`; each
@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import Literal
 
-from notegen._format import format_value, round_half_up
+from notegen._format import format_value, ph_text, round_half_up
 from notegen.acidbase.alert import Alert
 from notegen.acidbase.calculations import usable
 from notegen.acidbase.formulas import corrected_calcium
@@ -191,3 +191,77 @@ def lactate_salicylate_alerts(case: Case, s: AcidBaseSettings) -> list[Alert]:
             at = f"{label} {format_value(value, unit)} is at or above {format_value(threshold.value, unit)}"
             alerts.append(Alert(code=code, level="critical", message=at + advice))
     return alerts
+
+
+def pco2_alerts(
+    pco2: float | None,
+    venous: bool,
+    s: AcidBaseSettings,
+    ph: float | None = None,
+    *,
+    compensating: bool = False,
+    chronic: bool = False,
+) -> list[Alert]:
+    """A PCO2 beyond its critical limits (common practice: about <20 and >70 mmHg on laboratory lists).
+
+    `compensating`: the reading finds a metabolic acidosis and no respiratory alkalosis, so a low PCO2 is
+    its expected compensation, already named in the paragraph, and not flagged again as a danger of its
+    own. `chronic`: the respiratory acidosis fits a chronic process, so an acidemia within the critical
+    limits is its usual, incompletely compensated pH rather than an acute failure.
+
+    A venous PCO2 is never converted: it is read against the limits moved up by the mean
+    venous-arterial difference (`venous_pco2_offset`, Bloom et al. 2014), as the reading reads it
+    against the reference range, and the alert says it is venous and that an arterial gas would
+    confirm it, since the two differ by as much as about 20 mmHg either way.
+    """
+    if pco2 is None or not usable(pco2):
+        return []
+    shift = s.venous_pco2_offset.value if venous else 0.0
+    low, high = s.pco2_low_critical.value + shift, s.pco2_high_critical.value + shift
+    name = "Venous PCO2" if venous else "PaCO2"
+    if pco2 > high:
+        code, words, limit = "severe_hypercapnia", "above", high
+        advice = "severe hypercapnia; consider urgent review of ventilation and whether ventilatory support is needed."
+    elif pco2 < low and not compensating:
+        code, words, limit = "severe_hypocapnia", "below", low
+        advice = "severe hypocapnia; consider urgent review of its cause, and of ventilator settings if ventilated."
+    elif pco2 < low or chronic:
+        return []
+    else:
+        return _hypercapnic_acidemia(pco2, ph, s, venous)
+    text = f"{name} {format_value(pco2, 'mmHg')} is {words} {format_value(limit, 'mmHg')}"
+    if venous:
+        # 70 + 4.4 is shown as its two settings, not as a figure of its own
+        arterial, offset = format_value(limit - shift, "mmHg"), format_value(shift, "mmHg")
+        text = (
+            f"{name} {format_value(pco2, 'mmHg')} is {words} the arterial limit of {arterial} plus the mean "
+            f"venous-arterial difference of {offset}"
+        )
+        advice = advice.replace("; consider ", "; consider an arterial gas to confirm it, and ", 1)
+    return [Alert(code=code, level="critical", message=f"{text}: {advice}")]
+
+
+def _hypercapnic_acidemia(pco2: float, ph: float | None, s: AcidBaseSettings, venous: bool) -> list[Alert]:
+    """A PCO2 above the range with an acidemic pH: an acute or acute-on-chronic respiratory acidosis.
+
+    A high PCO2 beside acidemia is never compensation. A venous PCO2 is read against the range moved
+    up by `venous_pco2_offset` and is only a warning, which an arterial gas would confirm: the two
+    differ by as much as about 20 mmHg either way (Bloom et al. 2014).
+    """
+    shift = s.venous_pco2_offset.value if venous else 0.0
+    if ph is None or not usable(ph) or pco2 <= s.pco2_high.value + shift or ph >= s.ph_low.value:
+        return []
+    critical = not venous and ph < s.hypercapnic_acidemia_critical.value
+    urgency = "urgent" if critical else "prompt"
+    name, sample = ("Venous PCO2", " if an arterial gas confirms it") if venous else ("PaCO2", "")
+    return [
+        Alert(
+            code="hypercapnic_acidemia",
+            level="critical" if critical else "warning",
+            message=(
+                f"{name} {format_value(pco2, 'mmHg')} with pH {ph_text(ph)}: hypercapnia with acidemia, an "
+                f"acute or acute-on-chronic respiratory acidosis{sample}; consider {urgency} review of ventilation "
+                "and whether ventilatory support is needed."
+            ),
+        )
+    ]

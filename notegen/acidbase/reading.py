@@ -336,6 +336,9 @@ def read_acid_base(
         hco3=g.hco3,
         alkalemic=ph_status == "alkalemia",
         venous=w.venous,
+        compensating_low_pco2=w.has("metabolic_acidosis")
+        and not any(b.disorder == "respiratory_alkalosis" for b in w.bases),
+        chronic_hypercapnia=primary == "respiratory_acidosis" and chronicity == "chronic",
     )
     if consistency == "inconsistent":
         _provisional(w, primary)

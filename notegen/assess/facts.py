@@ -58,6 +58,9 @@ ALERT_CODES = (
     "severe_hyperglycemia",
     "high_lactate",
     "toxic_salicylate",
+    "severe_hypercapnia",
+    "severe_hypocapnia",
+    "hypercapnic_acidemia",
 )
 ALERT_LEVELS = ("none", "info", "warning", "critical")
 CHLORIDE_TREE = "chloride_class"

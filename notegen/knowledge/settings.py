@@ -102,6 +102,9 @@ class AcidBaseSettings(BaseModel):
     venous_pco2_offset: Setting
     lactate_critical: Setting
     salicylate_critical: Setting
+    pco2_low_critical: Setting
+    pco2_high_critical: Setting
+    hypercapnic_acidemia_critical: Setting
     alkalemia_warning: Setting
     alkalemia_critical: Setting
     acidemia_warning: Setting

@@ -41,6 +41,7 @@ FINDINGS = (
     "hypertension",
     "heart_failure",
     "cirrhosis",
+    "ascites",
     "laxative_use",
 )
 DIURETIC_WINDOWS = {

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
-from management_cases import ACIDOSIS, BASE, assess, case, cause, suggested
+from management_cases import ACIDOSIS, BASE, LACTIC, assess, case, cause, suggested
 
 from notegen.assess.considerations import (
     load_considerations,
@@ -109,6 +109,76 @@ EXAMPLES = [
         lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
     ),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
+    # A ketoacidosis hiding a vomiting alkalosis at pH 7.35: the mixed-disorder consideration already
+    # cautions against alkali; a second caution about bicarbonate would be struck.
+    kept_out("bicarbonate_cautions", sample("ketoacidosis_with_vomiting"), 0),
+    printed(
+        "acidosis_and_alkalosis_together", sample("ketoacidosis_with_vomiting"), "alkali calls for particular caution"
+    ),
+    # Septic shock with a lactic acidosis and volume recorded low (invented): perfusion first (Evans et al.,
+    # Crit Care Med 2021; from memory). Before: only the bicarbonate cautions.
+    printed(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(case(LACTIC, context={"volume": "low", "findings": ["septic shock"]})),
+        "restoring perfusion",
+    ),
+    kept_out("hypoperfusion_volume_repletion", lambda: assess(case(LACTIC, context={"findings": ["sepsis"]}))),
+    kept_out("hypoperfusion_volume_repletion", lambda: assess(case(LACTIC, context={"volume": "low", "findings": []}))),
+    kept_out(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(
+            case(
+                LACTIC,
+                gas={"ph": 7.35, "pco2": 40, "hco3": 22},
+                chem={"cl": 88},
+                context={"volume": "low", "findings": ["sepsis", "vomiting"]},
+            )
+        ),
+        0,
+    ),
+    kept_out(
+        "hypoperfusion_volume_repletion",
+        lambda: assess(case(LACTIC, context={"volume": "low", "findings": ["sepsis", "heart failure"]})),
+        1,
+    ),
+    # Diarrhea with a normal-gap acidosis and volume recorded low: volume, with the chloride of saline in mind
+    # (Semler et al., NEJM 2018; from memory). Before: no fluid consideration at all.
+    printed(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low"})),
+        "volume repletion is indicated",
+        "balanced crystalloid may be preferred",
+    ),
+    printed(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "kidney_disease"]})),
+        "volume repletion is indicated",
+    ),
+    kept_out("gut_loss_volume_repletion", lambda: assess(ACIDOSIS)),
+    kept_out("gut_loss_volume_repletion", lambda: assess(case(ACIDOSIS, context={"volume": "normal"}))),
+    kept_out("gut_loss_volume_repletion", lambda: assess(case(ACIDOSIS, context={"volume": "high"}))),
+    kept_out(  # a ketoacidosis with a vomiting alkalosis and diarrhea, volume low (invented)
+        "gut_loss_volume_repletion",
+        lambda: assess(
+            case(
+                gas={"ph": 7.35, "pco2": 40, "hco3": 22},
+                chem={"cl": 88},
+                context={"volume": "low", "findings": ["diarrhea", "vomiting"]},
+            ),
+            acidosis=assess(case(ACIDOSIS, context={"volume": "low"})).acidosis,
+        ),
+        0,
+    ),
+    kept_out(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "heart_failure"]})),
+        1,
+    ),
+    kept_out(
+        "gut_loss_volume_repletion",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "findings": ["diarrhea", "ascites"]})),
+        1,
+    ),
     # Volume repletion stays whenever volume is recorded low, even with edema or heart failure.
     printed("volume_repletion", lambda: assess(case(context={"volume": "low"})), "isotonic sodium chloride"),
     printed(
@@ -156,6 +226,7 @@ EXAMPLES = [
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem={"na": 129}, context=OVERLOAD)), 3),
     kept_out("acetazolamide_in_overload", lambda: assess(case(chem=LOW_EGFR, context=OVERLOAD)), 4),
     kept_out("acetazolamide_in_overload", lambda: assess(case(context={**OVERLOAD, "meds": ["acetazolamide"]})), 5),
+    kept_out("acetazolamide_in_overload", lambda: assess(case(context={"volume": "high", "findings": ["ascites"]})), 7),
     kept_out(  # a ketoacidosis with a vomiting alkalosis and edema (invented)
         "acetazolamide_in_overload",
         lambda: assess(case(gas={"ph": 7.35, "pco2": 40, "hco3": 22}, chem={"cl": 88}, context=OVERLOAD)),
@@ -167,7 +238,12 @@ EXAMPLES = [
         "saline will not correct",
     ),
     kept_out("chloride_resistant", lambda: assess(case(context={"volume": "low"}), chloride_class="resistant"), 0),
-    printed("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="indeterminate"), "repeat sample"),
+    printed(  # no diuretic listed (a refeeding patient, invented): no word of one
+        "chloride_class_indeterminate",
+        lambda: assess(BASE, chloride_class="indeterminate"),
+        "repeat sample",
+        lacks=("diuretic",),
+    ),
     kept_out("chloride_class_indeterminate", lambda: assess(BASE, chloride_class="responsive")),
     # Held open by a high calcium (or a calcium salt with no calcium measured), not by a diuretic or a
     # middle-range value: "repeat once any diuretic has worn off" would be struck for that patient.
@@ -191,8 +267,62 @@ EXAMPLES = [
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "low"}), chloride_class="unknown"), 0),
     # An overloaded patient on a diuretic: "bedside volume status guides any saline" would be struck.
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "high"}), chloride_class="unknown"), 2),
+    # Bicarbonate tablets with kidney disease and volume recorded normal (invented): "bedside volume status
+    # guides any saline" would be struck; the alkali is the question.
+    kept_out(
+        "chloride_class_unknown",
+        lambda: assess(
+            case(context={"volume": "normal"}), chloride_class="unknown", differential=(cause("alkali_load"),)
+        ),
+        1,
+    ),
+    printed(
+        "chloride_class_unknown",
+        lambda: assess(
+            case(context={"volume": "unknown"}), chloride_class="unknown", differential=(cause("alkali_load"),)
+        ),
+        "bedside volume status",
+    ),
+    # A diuretic acting when the urine was taken: the paragraph already says to repeat it once worn off.
+    kept_out(
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(urine={"cl": 60}, context={"meds": [{"name": "furosemide", "last_dose_hours": 2}]}),
+            chloride_class="indeterminate",
+        ),
+        2,
+    ),
+    printed(  # a middle-range value with the diuretic acting: the paragraph says nothing of a repeat
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(urine={"cl": 30}, context={"meds": [{"name": "furosemide", "last_dose_hours": 2}]}),
+            chloride_class="indeterminate",
+        ),
+        "repeat sample",
+        "It reads truest once any diuretic has worn off.",
+    ),
+    printed(
+        "chloride_class_indeterminate",
+        lambda: assess(
+            case(context={"meds": [{"name": "furosemide", "last_dose_hours": 30}]}), chloride_class="indeterminate"
+        ),
+        "repeat sample",
+    ),
     kept_out(
         "chloride_class_unknown", lambda: assess(case(context={"findings": ["edema"]}), chloride_class="unknown"), 2
+    ),
+    kept_out(
+        "chloride_class_unknown", lambda: assess(case(context={"findings": ["ascites"]}), chloride_class="unknown"), 2
+    ),
+    kept_out(
+        "chloride_responsive_replacement",
+        lambda: assess(case(context={"findings": ["tense ascites"]}), chloride_class="responsive"),
+        0,
+    ),
+    printed(
+        "chloride_with_overload",
+        lambda: assess(case(chem=LOW_K, context={"findings": ["ascites"]}), chloride_class="responsive"),
+        "potassium chloride",
     ),
     # Volume recorded as normal (invented: ventilated after a CO2-retaining exacerbation): "need not delay
     # repletion of a low volume" would be struck; the suggested urine chloride says whether chloride is short.
@@ -201,6 +331,45 @@ EXAMPLES = [
         "gastric_loss",
         lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
         "nausea",
+    ),
+    # Vomiting with overload recorded (invented cirrhosis with ascites): "replacing ... volume" is struck.
+    kept_out(
+        "gastric_loss",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["vomiting", "ascites"]}), differential=(cause("gastric_loss"),)
+        ),
+        0,
+    ),
+    kept_out(
+        "gastric_loss",
+        lambda: assess(case(context={"findings": ["vomiting", "cirrhosis"]}), differential=(cause("gastric_loss"),)),
+        0,
+    ),
+    printed(
+        "gastric_loss",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["vomiting", "cirrhosis"]}),
+            differential=(cause("gastric_loss"),),
+        ),
+        "replacing chloride and volume",
+    ),
+    printed(
+        "gastric_loss_in_overload",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["vomiting", "ascites"]}), differential=(cause("gastric_loss"),)
+        ),
+        "without adding to the overload",
+        lacks=("volume",),
+    ),
+    kept_out(
+        "gastric_loss_in_overload",
+        lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),
+    ),
+    kept_out(
+        "gastric_loss_in_overload",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["vomiting", "edema"]}), differential=(cause("gastric_loss"),)
+        ),
     ),
     kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "unlikely"),))),
     kept_out("gastric_loss", lambda: assess(BASE, differential=(cause("gastric_loss", "possible"),))),
@@ -299,6 +468,14 @@ EXAMPLES = [
         lambda: assess(case(chem=LOW_K, context={"meds": ["losartan"]}), **MINERALOCORTICOID),
         "mineralocorticoid-receptor antagonist",
         "With losartan also taken",
+        lacks=("Sampling renin",),
+    ),
+    # With renin and aldosterone still to be sent, an antagonist started first would blur the screen
+    # (Funder et al., JCEM 2016; from memory).
+    printed(
+        "mineralocorticoid_excess",
+        lambda: assess(case(chem=LOW_K), **MINERALOCORTICOID, **RENIN_TEST),
+        "Sampling renin and aldosterone before starting either keeps that screen readable.",
     ),
     kept_out(
         "mineralocorticoid_excess",
@@ -319,6 +496,26 @@ EXAMPLES = [
         3,
     ),
     printed("licorice", lambda: assess(case(context={"meds": ["black licorice"]})), "stopping it"),
+    # Licorice explains the mineralocorticoid excess: the hormone and cortisol tests wait until it is stopped.
+    printed(
+        "licorice",
+        lambda: assess(case(context={"meds": ["black licorice"]}), **MINERALOCORTICOID),
+        "stopping it is the usual first step",
+        "Renin, aldosterone and a cortisol evaluation are premature while it acts",
+    ),
+    printed(
+        "licorice",
+        lambda: assess(
+            case(context={"meds": ["black licorice"], "renin": "low", "aldosterone": "low"}), **MINERALOCORTICOID
+        ),
+        "stopping it",
+        lacks=("premature",),
+    ),
+    kept_out(
+        "mineralocorticoid_excess",
+        lambda: assess(case(chem=LOW_K, context={"meds": ["black licorice"]}), **MINERALOCORTICOID),
+        4,
+    ),
     kept_out("licorice", lambda: assess(BASE)),
     # With alkali and hypercalcemia the calcium-alkali consideration names the syndrome; not twice.
     printed(
@@ -334,6 +531,28 @@ EXAMPLES = [
         lacks=("milk-alkali",),
     ),
     kept_out("alkali_sources", lambda: assess(BASE)),
+    printed(  # a prescribed alkali in kidney disease is reduced more often than stopped
+        "alkali_sources",
+        lambda: assess(case(chem=LOW_EGFR, context={"meds": ["sodium bicarbonate"]})),
+        "with a view to reducing or stopping those not needed",
+    ),
+    # A thiazide with hypertension: the pairing with a potassium-sparing agent already names the agents.
+    kept_out(
+        "mineralocorticoid_excess",
+        lambda: assess(
+            case(chem=LOW_K, context={"meds": ["chlorthalidone"]}),
+            differential=(cause("diuretic"), cause("mineralocorticoid_excess", "possible")),
+        ),
+        5,
+    ),
+    printed(
+        "potassium_sparing_with_diuretic",
+        lambda: assess(
+            case(chem=LOW_K, context={"meds": ["chlorthalidone"]}),
+            differential=(cause("diuretic"), cause("mineralocorticoid_excess", "possible")),
+        ),
+        "Pairing chlorthalidone with a potassium-sparing agent",
+    ),
     # Calcium-alkali syndrome (Patel & Goldfarb, JASN 2010; from memory): volume repletion and stopping
     # the calcium and alkali, even with a high urine chloride; not when volume is recorded as high.
     printed("calcium_alkali", sample("alkali_kidney_disease"), "first-line even with a high urine chloride"),
@@ -359,6 +578,59 @@ EXAMPLES = [
     kept_out("reduced_kidney_function", lambda: assess(BASE)),
     printed("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia"),)), "PaCO2"),
     kept_out("post_hypercapnia", lambda: assess(BASE, differential=(cause("post_hypercapnia", "unlikely"),))),
+    # Extubated after hypercapnia, overloaded on furosemide (invented): "volume replete" would be struck.
+    kept_out(
+        "post_hypercapnia",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        0,
+    ),
+    printed(
+        "post_hypercapnia_in_overload",
+        lambda: assess(
+            case(context={"volume": "high", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        "only when chloride is replete, here without adding to the overload",
+        lacks=("volume",),
+    ),
+    kept_out(
+        "post_hypercapnia_in_overload",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+    ),
+    printed(
+        "post_hypercapnia",
+        lambda: assess(
+            case(context={"volume": "low", "findings": ["edema"]}), differential=(cause("post_hypercapnia"),)
+        ),
+        "chloride and volume are replete",
+    ),
+    # Ketoacidosis with volume recorded low: fluid first (Kitabchi et al., Diabetes Care 2009; from memory);
+    # insulin only where diabetes is recorded (not for an alcoholic or starvation ketoacidosis).
+    printed(
+        "ketoacidosis_volume_repletion",
+        sample("diabetic_ketoacidosis"),
+        "fluid repletion is a first step",
+        "alongside insulin and potassium",
+    ),
+    printed(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"findings": ["alcohol use"]})),
+        "fluid repletion is a first step",
+        lacks=("insulin",),
+    ),
+    kept_out(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"volume": "normal"})),
+    ),
+    kept_out("ketoacidosis_volume_repletion", sample("ketoacidosis_with_vomiting"), 0),
+    kept_out(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(sample_data("diabetic_ketoacidosis", context={"findings": ["diabetes", "heart failure"]})),
+        1,
+    ),
     printed(
         "salt_wasting_tubulopathy", lambda: assess(BASE, differential=(cause("salt_wasting_tubulopathy"),)), "covert"
     ),
@@ -477,8 +749,35 @@ EXAMPLES = [
     ),
     kept_out("metformin_lactic_acidosis", lambda: assess(case(METFORMIN_LACTIC, context={"meds": []}))),
     kept_out("metformin_lactic_acidosis", lambda: assess(case(METFORMIN_LACTIC, chem={"lactate": 1.0}))),
+    # Ketoacidosis with an added respiratory alkalosis holding the pH at 7.40 (invented; 6.1 + log(12 / (0.03 x 20))
+    # = 7.40 by Henderson-Hasselbalch): bicarbonate is not in question (common practice).
+    kept_out(
+        "bicarbonate_cautions",
+        lambda: assess(
+            sample_data(
+                "diabetic_ketoacidosis", gas={"ph": 7.40, "pco2": 20, "hco3": 12}, chem={"tco2": 13, "k": 4.4}
+            )
+        ),
+        1,
+    ),
     # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
     kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),
+    # An ACE inhibitor or ARB with volume recorded low (common practice, sick-day guidance; from memory).
+    printed(
+        "raas_blocker_with_low_volume",
+        lambda: assess(case(context={"volume": "low", "meds": ["lisinopril", "amlodipine"]})),
+        "pausing lisinopril until volume is restored",
+    ),
+    printed(
+        "raas_blocker_with_low_volume",
+        lambda: assess(case(ACIDOSIS, context={"volume": "low", "meds": ["losartan"]})),
+        "pausing losartan",
+    ),
+    kept_out(
+        "raas_blocker_with_low_volume", lambda: assess(case(context={"volume": "normal", "meds": ["lisinopril"]}))
+    ),
+    kept_out("raas_blocker_with_low_volume", lambda: assess(case(context={"meds": ["lisinopril"]}))),
+    kept_out("raas_blocker_with_low_volume", lambda: assess(case(context={"volume": "low", "meds": ["amlodipine"]}))),
     printed("severe_hypokalemia", lambda: assess(case(chem={"k": 2.2})), "With potassium 2.2 mmol/L, an ECG"),
     printed("severe_hypokalemia", lambda: assess(case(ACIDOSIS, chem={"k": 2.3})), "an ECG and cardiac monitoring"),
     kept_out("severe_hypokalemia", lambda: assess(case(chem={"k": 2.7}))),
@@ -486,7 +785,7 @@ EXAMPLES = [
         "magnesium_low",
         lambda: assess(case(chem={"mg": 1.3}, context={"meds": ["omeprazole"]})),
         "Magnesium 1.3 mg/dL is low",
-        "Long-term omeprazole is a probable cause of the low magnesium",
+        "Taken long-term, omeprazole can lower magnesium",
     ),
     printed("magnesium_low", lambda: assess(case(chem={"mg": 1.3})), "Magnesium 1.3 mg/dL", lacks=("probable",)),
     kept_out("magnesium_low", lambda: assess(case(context={"meds": ["omeprazole"]}))),

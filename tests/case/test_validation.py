@@ -108,6 +108,13 @@ def test_finding_synonyms_map_to_ids() -> None:
     assert any("itchy" in notice for notice in case.notices)
 
 
+def test_ascites_is_a_known_finding_not_a_notice() -> None:
+    # Before: "Finding 'ascites' is not recognised", and an overloaded cirrhotic read as volume-depleted.
+    case = validate_case({"context": {"findings": ["Ascites", "tense ascites", "cirrhosis"]}})
+    assert case.context.findings == ("ascites", "cirrhosis")
+    assert not any("ascites" in notice for notice in case.notices)
+
+
 def test_serial_results_read_the_latest_complete_gas() -> None:
     case = validate_case(
         {

@@ -172,6 +172,16 @@ PATTERN_CASES: list[tuple[str, dict[str, Any], dict[str, FactInput] | None]] = [
         {"renin": "low", "aldosterone": "low", "cortisol_excess": False},
     ),
     ("hypertensive_open", {"urine_cl": 60, "bp": (160, 95)}, {"renin": "normal", "aldosterone": "normal"}),
+    # A listed agent explains the hypertensive pattern (Farese et al., NEJM 1991, from memory): renin waits.
+    ("listed_agent_pattern", {"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)}, None),
+    (
+        "listed_agent_pattern",
+        {"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)},
+        {"renin": "low", "aldosterone": "low"},
+    ),
+    ("listed_agent_pattern", {"urine_cl": 60, "bp": (160, 95), "meds": (med("fludrocortisone"),)}, None),
+    # Licorice can leave the pressure normal; the agent still comes before the tubular work-up.
+    ("listed_agent_pattern", {"urine_cl": 60, "meds": (med("licorice"),)}, None),
     ("diuretic_effect", {"urine_cl": 60, "meds": (med("furosemide", 30),)}, None),
     ("thiazide_or_gitelman_pattern", {"urine_cl": 60, "urine_calcium": 2, "urine_creatinine": 100}, None),
     ("loop_or_bartter_pattern", {"urine_cl": 60, "urine_calcium": 20, "urine_creatinine": 100}, None),
@@ -210,6 +220,13 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
             [],
         ),
         ({"urine_cl": 60, "bp": None}, None, None, ["renin_aldosterone"]),
+        # Licorice listed: the hormones read low while it acts, so neither pair nor cortisol is asked for.
+        ({"urine_cl": 60, "bp": (160, 95), "k": 2.8, "meds": (med("licorice"),)}, None, None,
+         ["renin_aldosterone", "cortisol_evaluation"]),
+        ({"urine_cl": 60, "bp": (160, 95), "meds": (med("licorice"),)}, {"renin": "low", "aldosterone": "low"}, None,
+         ["renin_aldosterone", "cortisol_evaluation"]),
+        ({"urine_cl": 60, "k": 2.8, "meds": (med("licorice"),)}, None, None,
+         ["renin_aldosterone", "cortisol_evaluation", "urine_calcium_creatinine", "urine_diuretic_screen"]),
     ],
     ids=[
         "no-urine-cl",
@@ -220,6 +237,9 @@ def test_resistant_split(pattern: str, values: dict[str, Any], extra: dict[str, 
         "hypokalemia",
         "venous-after-hypercapnia",
         "no-blood-pressure",
+        "licorice",
+        "licorice-low-renin-low-aldo",
+        "licorice-normotensive",
     ],  # fmt: skip
 )
 def test_next_tests_follow_the_tree(
@@ -356,6 +376,15 @@ def test_mineralocorticoid_activity_only_with_its_source_in_view() -> None:
     assert not plain & {"mineralocorticoid_activity", "secondary_aldosteronism"}
 
 
+def test_licorice_leads_whatever_the_pressure() -> None:
+    # A normal pressure is not counted against a listed agent: licorice can leave it normal (common practice).
+    for bp in ((160, 95), (118, 76)):
+        result = evaluate(alkalosis_case(urine_cl=60, k=2.8, bp=bp, meds=(med("licorice"),)))
+        assert ranked(result)[0] == "mineralocorticoid_excess" and tier(result, "mineralocorticoid_excess") == "likely"
+    plain = evaluate(alkalosis_case(urine_cl=60, k=2.8, bp=(118, 76)))
+    assert "not_hypertensive" in {e.id for c in plain.differential for e in c.opposing}
+
+
 def test_volume_contraction_needs_evidence() -> None:
     # Listed only with a low volume or a low urine chloride (Luke & Galla, JASN 2012;23:204).
     def factors(**values: Any) -> set[str]:
@@ -365,6 +394,30 @@ def test_volume_contraction_needs_evidence() -> None:
     assert "volume_contraction" not in factors(urine_cl=60, volume="high", meds=(med("furosemide", 2),))
     assert "volume_contraction" in factors(urine_cl=60, volume="low")
     assert "volume_contraction" in factors(urine_cl=12, volume="normal")
+
+
+@pytest.mark.parametrize(
+    ("values", "factor"),
+    [
+        ({"volume": "high"}, "effective_volume_depletion"),
+        ({"findings": ("cirrhosis", "ascites")}, "effective_volume_depletion"),
+        ({"volume": "normal", "findings": ("heart_failure",)}, "effective_volume_depletion"),
+        ({"findings": ("ascites",)}, "effective_volume_depletion"),
+        ({"volume": "low", "findings": ("cirrhosis", "edema")}, "volume_contraction"),
+        ({"volume": "unknown"}, "volume_contraction"),
+        ({"volume": "normal"}, "volume_contraction"),
+    ],
+    ids=["volume-high", "cirrhosis-ascites", "heart-failure", "ascites", "low-with-cirrhosis", "unknown", "normal"],
+)
+def test_chloride_responsive_maintenance_fits_the_recorded_volume(values: dict[str, Any], factor: str) -> None:
+    # With overload recorded a clinician strikes "volume depletion": the kidney holds bicarbonate for a low
+    # effective arterial volume and chloride depletion (Luke & Galla, JASN 2012;23:204; Galla, JASN 2000).
+    maintenance = {f.factor: f for f in evaluate(alkalosis_case(urine_cl=8, **values)).maintenance}
+    assert factor in maintenance and maintenance[factor].status == "present"
+    other = ({"volume_contraction", "effective_volume_depletion"} - {factor}).pop()
+    assert other not in maintenance
+    if factor == "effective_volume_depletion":
+        assert "volume depletion" not in maintenance[factor].label
 
 
 SAMPLES = Path(__file__).resolve().parents[2] / "samples"
