@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Literal
 
-from pydantic import BaseModel, ConfigDict
+from pydantic import BaseModel, ConfigDict, Field
 
 AlertLevel = Literal["critical", "warning", "info"]
 
@@ -17,3 +17,7 @@ class Alert(BaseModel):
     code: str
     level: AlertLevel
     message: str
+    # The message without its advice ("Potassium 2.9 mmol/L is below 3 mmol/L: hypokalemia."), for a note
+    # whose management section carries that advice (a consideration's `answers_alerts`); None: no advice.
+    # Not in the JSON, whose alerts stay {code, level, message}.
+    finding: str | None = Field(default=None, exclude=True)

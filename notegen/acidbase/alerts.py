@@ -19,8 +19,9 @@ from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
 
-def _alert(code: str, level: AlertLevel, *parts: str) -> list[Alert]:
-    return [Alert(code=code, level=level, message=" ".join(parts))]
+def _alert(code: str, level: AlertLevel, *parts: str, finding: str | None = None) -> list[Alert]:
+    """One alert; `finding` is its message without the advice, for a note whose management carries it."""
+    return [Alert(code=code, level=level, message=" ".join(parts), finding=finding)]
 
 
 def _ph_alerts(ph: float | None, calculated: bool, s: AcidBaseSettings, venous: bool = False) -> list[Alert]:
@@ -83,6 +84,7 @@ def _potassium_alerts(k: float | None, s: AcidBaseSettings, *, magnesium_measure
             f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:",
             # magnesium is named once, by the considerations or the suggested tests, not here as well
             "hypokalemia; consider repletion.",
+            finding=f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}: hypokalemia.",
         )  # fmt: skip
     if k >= s.potassium_high_critical.value:
         return _alert(
@@ -130,12 +132,15 @@ def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
             "hypomagnesemia", "warning",
             f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}:",
             "severe hypomagnesemia; potassium is hard to replete until magnesium is restored.",
+            finding=f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}: "
+            "severe hypomagnesemia.",
         )  # fmt: skip
     if mg < s.magnesium_low.value:
         return _alert(
             "hypomagnesemia", "info",
             f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')};",
             "low magnesium hinders potassium repletion.",
+            finding=f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')}: hypomagnesemia.",
         )  # fmt: skip
     return []
 

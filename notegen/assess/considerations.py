@@ -50,6 +50,7 @@ __all__ = [
     "Verdict",
     "check_considerations",
     "consider",
+    "consider_all",
     "load_considerations",
     "prepare_considerations",
     "management_considerations",
@@ -169,6 +170,7 @@ class Chosen:
 
     id: str
     text: str
+    answers_alerts: tuple[str, ...] = ()  # alert codes whose advice this text carries
 
 
 def _fill(template: Template, facts: Mapping[str, Fact], loaded: Considerations) -> str | None:
@@ -238,7 +240,7 @@ def _chosen(
         if text is None:
             continue
         extra = [_fill(says, facts, loaded) for test, says in item.also if test(env) == TRUE]
-        chosen.append(Chosen(item.spec.id, " ".join([text, *(e for e in extra if e)])))
+        chosen.append(Chosen(item.spec.id, " ".join([text, *(e for e in extra if e)]), item.spec.answers_alerts))
     return tuple(chosen)
 
 
@@ -269,14 +271,22 @@ def select_considerations(assessment: Assessment, loaded: Considerations) -> tup
     return _chosen(loaded, _weigh(loaded, env), facts, env)
 
 
+def consider_all(
+    assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
+) -> tuple[tuple[Chosen, ...], tuple[WithheldConsideration, ...]]:
+    """The considerations to print, with the alerts each answers, and those a contraindication keeps out."""
+    loaded = load_considerations(rules_dirs)
+    facts, env = _env(assessment, loaded)
+    verdicts = _weigh(loaded, env)
+    return _chosen(loaded, verdicts, facts, env), _withheld(loaded, verdicts)
+
+
 def consider(
     assessment: Assessment, *, rules_dirs: Sequence[Path] = ()
 ) -> tuple[tuple[str, ...], tuple[WithheldConsideration, ...]]:
     """The considerations to print, and those that apply but a contraindication keeps out (with why)."""
-    loaded = load_considerations(rules_dirs)
-    facts, env = _env(assessment, loaded)
-    verdicts = _weigh(loaded, env)
-    return tuple(item.text for item in _chosen(loaded, verdicts, facts, env)), _withheld(loaded, verdicts)
+    chosen, withheld = consider_all(assessment, rules_dirs=rules_dirs)
+    return tuple(item.text for item in chosen), withheld
 
 
 def withheld_considerations(

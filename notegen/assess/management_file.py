@@ -17,7 +17,7 @@ from typing import Annotated, Any
 
 from pydantic import Field, ValidationError
 
-from notegen.assess.facts import MedicationGroup, consideration_catalogue
+from notegen.assess.facts import ALERT_CODES, MedicationGroup, consideration_catalogue
 from notegen.engine import RulePack
 from notegen.engine.checks import check_conditions
 from notegen.engine.conditions import ConditionSyntaxError
@@ -70,6 +70,10 @@ class ConsiderationSpec(PackModel):
     says: Text
     also: tuple[Addition, ...] = ()
     source: Text
+    # Alert codes whose advice this sentence carries: while it is printed, the chart note states those
+    # alerts without their own advice ("hypokalemia; consider repletion" beside "Potassium repletion is
+    # indicated" says it twice).
+    answers_alerts: tuple[Id, ...] = ()
 
 
 class GroupSpec(PackModel):
@@ -167,6 +171,10 @@ def _check(merged: ManagementFile, pack: RulePack, catalogue: Mapping[str, FactS
     names = set(catalogue) | {s.id for s in settings}
     for item in merged.considerations:
         conditions += [item.when, *(c.if_ for c in item.never_when), *(a.if_ for a in item.also)]
+        for code in item.answers_alerts:
+            if code not in ALERT_CODES:
+                where = item.where_of("answers_alerts")
+                problems.append((where[0], where[1], f"alert code `{code}` is not an alert notegen raises"))
         for text, where in ((item.says, item.where_of("says")), *((a.says, a.where_of("says")) for a in item.also)):
             for name in parse_template(text).names:
                 if name not in names:

@@ -6,7 +6,7 @@ note renderers read only this model, and the JSON output is this model dumped.
 
 from __future__ import annotations
 
-from pydantic import SerializerFunctionWrapHandler, field_serializer
+from pydantic import Field, SerializerFunctionWrapHandler, field_serializer
 
 from notegen._model import FrozenModel
 from notegen.acidbase.alert import Alert
@@ -50,6 +50,8 @@ class Assessment(FrozenModel):
     next_tests: tuple[SuggestedTest, ...] = ()
     management: tuple[str, ...] = ()
     management_withheld: tuple[WithheldConsideration, ...] = ()  # kept out by a contraindication
+    # alert codes whose advice a printed consideration carries (the note states them without it; not in JSON)
+    answered_alerts: tuple[str, ...] = Field(default=(), exclude=True)
     warnings: tuple[str, ...] = ()  # missing data and input notices, in words
     # Values reported as bounds ("<10"), in words: shown as reported, compared only where the bound
     # decides, never used in arithmetic (the worksheet lists them; the chart only when one blocks a result).

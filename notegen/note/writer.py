@@ -20,7 +20,7 @@ from pathlib import Path
 from typing import Any
 
 from notegen._format import format_range, sentence_case
-from notegen.assess.considerations import consider
+from notegen.assess.considerations import consider_all
 from notegen.assess.model import Assessment
 from notegen.case.model import Case
 from notegen.errors import TemplateError, UsageError
@@ -61,12 +61,13 @@ def complete_assessment(assessment: Assessment, *, rules_dirs: Sequence[Path] = 
 
     `rules_dirs` are a service's rule folders, whose `management.yaml` is laid over the shipped one.
     """
-    management, withheld = consider(assessment, rules_dirs=rules_dirs)
+    chosen, withheld = consider_all(assessment, rules_dirs=rules_dirs)
     return assessment.model_copy(
         update={
             "paragraph": draft_paragraph(assessment),
-            "management": management,
+            "management": tuple(item.text for item in chosen),
             "management_withheld": withheld,
+            "answered_alerts": tuple(dict.fromkeys(code for item in chosen for code in item.answers_alerts)),
             "disclaimer": DISCLAIMER,
             "cautions": note_cautions(assessment.acid_base),
         }
@@ -178,7 +179,14 @@ def note_context(
         "disclaimer": assessment.disclaimer or DISCLAIMER,
         "cautions": list(cautions),
         "critical_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level == "critical"],
-        "other_alerts": [a.model_dump(mode="json") for a in assessment.alerts if a.level != "critical"],
+        # an alert whose advice a printed consideration carries is stated without it
+        "other_alerts": [
+            {**a.model_dump(mode="json"), "message": a.finding}
+            if a.finding is not None and a.code in assessment.answered_alerts
+            else a.model_dump(mode="json")
+            for a in assessment.alerts
+            if a.level != "critical"
+        ],
         "values": [value_row(m, assessment.case) for m in assessment.case.measurements],
         "values_have_times": any(m.taken_at is not None for m in assessment.case.measurements),
         "reported_bounds": list(assessment.reported_bounds),

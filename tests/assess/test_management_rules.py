@@ -124,6 +124,7 @@ def test_check_pack_and_draft_agree_on_a_cause_the_folder_does_not_define(tmp_pa
         (ONE + "    unless:\n      - {fact: edema, is: true}\n", 6, "unless"),
         ("medication_groups:\n  - {id: x, classes: [statin], label: x}\n", 2, "medication class `statin`"),
         ("settings:\n  - {id: k_low_below, value: 3, unit: mmol/L, source: x}\n", 2, "name of a pack setting"),
+        (ONE + "    answers_alerts: [hypokalemya]\n", 6, "alert code `hypokalemya`"),
     ],
     ids=[
         "unknown fact",
@@ -141,6 +142,7 @@ def test_check_pack_and_draft_agree_on_a_cause_the_folder_does_not_define(tmp_pa
         "old unless",
         "unknown class",
         "setting clash",
+        "unknown alert code",
     ],
 )
 def test_broken_files_are_refused_with_file_and_line(tmp_path: Path, text: str, line: int, message: str) -> None:
@@ -210,3 +212,25 @@ def test_an_undecided_contraindication_is_named_as_such() -> None:
     data = case(chem={"k": None}, context={"volume": "high", "findings": ["edema"]})
     withheld = {item.id: item.reasons for item in complete_assessment(assess(data)).management_withheld}
     assert withheld["acetazolamide_in_overload"][0].startswith("cannot be ruled out from the values given: potassium")
+
+
+def test_an_alert_is_stated_without_the_advice_a_printed_consideration_carries(tmp_path: Path) -> None:
+    # Potassium 2.8 mmol/L (invented): "consider repletion" beside "Potassium repletion is indicated" said it twice.
+    case_data = case(chem={"k": 2.8})
+    note = Drafter().draft(validate_case(case_data))
+    assert "- Potassium 2.8 mmol/L is below 3 mmol/L: hypokalemia.\n" in note
+    assert "Potassium repletion is indicated" in note
+    # A service whose potassium sentence does not answer the alert: the alert keeps its own advice.
+    folder = write(
+        tmp_path,
+        "management.yaml",
+        "considerations:\n  - id: potassium_repletion\n    when: {fact: k, below: k_low_below}\n"
+        "    says: Our ward potassium protocol applies.\n    source: local protocol\n",
+    )
+    ours = Drafter(rules_dirs=(folder,)).draft(validate_case(case_data))
+    assert "- Potassium 2.8 mmol/L is below 3 mmol/L: hypokalemia; consider repletion.\n" in ours
+    # The JSON keeps the whole message.
+    assessment = Drafter().assess(validate_case(case_data))
+    assert [a["message"] for a in assessment.model_dump(mode="json")["alerts"] if a["code"] == "hypokalemia"] == [
+        "Potassium 2.8 mmol/L is below 3 mmol/L: hypokalemia; consider repletion."
+    ]
