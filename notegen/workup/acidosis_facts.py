@@ -39,17 +39,21 @@ ACIDOSIS_FINDINGS = (
 )
 # Findings named together in the gut-loss sentence, in this order.
 GUT_LOSSES = ("diarrhea", "ostomy", "fistula", "urinary_diversion")
+# Drugs that lower aldosterone or block its effect (Kraut & Madias, Nat Rev Nephrol 2010; from memory).
+POTASSIUM_RETAINING = (
+    "ace_inhibitor", "angiotensin_receptor_blocker", "potassium_sparing_diuretic", "nsaid", "trimethoprim",
+)  # fmt: skip
 # Listed-class facts and the medication classes (rules/vocabulary/medications.yaml) behind them.
 ACIDOSIS_CLASS_FACTS = {
     "metformin_listed": ("biguanide",),
     "acetaminophen_listed": ("acetaminophen",),
     "salicylate_listed": ("salicylate",),
     "ca_inhibitor_listed": ("carbonic_anhydrase_inhibitor",),
-    "potassium_retaining_listed": ("ace_inhibitor", "angiotensin_receptor_blocker", "potassium_sparing_diuretic"),
+    "potassium_retaining_listed": POTASSIUM_RETAINING,
 }
 ACIDOSIS_NAME_FACTS = {
     "ca_inhibitor_names": ("carbonic_anhydrase_inhibitor",),
-    "potassium_retaining_names": ("ace_inhibitor", "angiotensin_receptor_blocker", "potassium_sparing_diuretic"),
+    "potassium_retaining_names": POTASSIUM_RETAINING,
 }
 # Case values: fact id -> (case field, canonical unit).
 _CASE_NUMBERS = {

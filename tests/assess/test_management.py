@@ -108,6 +108,14 @@ EXAMPLES = [
         "hyperkalemic_acidosis_drugs",
         lambda: assess(case(ACIDOSIS, chem={"k": 5.9}, context={"findings": ["diabetes"]})),
     ),
+    # A high potassium without a hyperkalemic tubular acidosis (invented: an alkalosis with potassium 6.1 on
+    # naproxen and losartan) still names the drugs; a normal potassium does not.
+    printed(
+        "hyperkalemic_acidosis_drugs",
+        lambda: assess(case(chem={"k": 6.1}, context={"meds": ["naproxen", "losartan"]})),
+        "naproxen and losartan can raise potassium",
+    ),
+    kept_out("hyperkalemic_acidosis_drugs", lambda: assess(case(context={"meds": ["naproxen", "losartan"]}))),
     kept_out("bicarbonate_cautions", sample("salicylate_triple_disorder")),
     # A ketoacidosis hiding a vomiting alkalosis at pH 7.35: the mixed-disorder consideration already
     # cautions against alkali; a second caution about bicarbonate would be struck.

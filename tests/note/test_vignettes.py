@@ -89,10 +89,15 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("diuretic",),
     ),
     # Acute kidney injury with potassium 6.8 on lisinopril and ibuprofen, volume low: the potassium stands out,
-    # the ACE inhibitor is paused while volume is short (common practice), and the unknown drug is named.
+    # the ACE inhibitor is paused while volume is short (common practice), and both drugs are named as raising
+    # potassium (Kraut & Madias, Nat Rev Nephrol 2010; from memory).
     "aki_hyperk": (
-        ("Critical values:** Potassium 6.8 mmol/L", "pausing lisinopril until volume is restored", "'ibuprofen'"),
-        (),
+        (
+            "Critical values:** Potassium 6.8 mmol/L",
+            "pausing lisinopril until volume is restored",
+            "lisinopril and ibuprofen can raise potassium",
+        ),
+        ("not recognised",),
     ),
 }
 

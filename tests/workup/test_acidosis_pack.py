@@ -363,3 +363,11 @@ def test_a_moderately_raised_ketone_with_starvation_makes_ketoacidosis_likely() 
     assert {e.id for e in cause_of(alone, "ketoacidosis").supporting} == {"bhb_moderately_raised"}
     assert cause_of(alone, "ketoacidosis").tier == "possible"
     assert cause_of(fasting, "ketoacidosis").tier == "likely"
+
+
+@pytest.mark.parametrize("drug", ["ibuprofen", "naproxen", "trimethoprim-sulfamethoxazole"])
+def test_nsaids_and_trimethoprim_count_as_drugs_that_raise_potassium(drug: str) -> None:
+    # NSAIDs lower renin and aldosterone; trimethoprim blocks the sodium channel as amiloride does
+    # (Kraut & Madias, Nat Rev Nephrol 2010; from memory).
+    result = workup(case_with(NORMAL_GAP, chem={"k": 6.0}, context={"meds": [drug]}))
+    assert "potassium_raising_drug" in {e.id for e in cause_of(result, "hyperkalemic_rta").supporting}
