@@ -15,6 +15,7 @@ from notegen.acidbase.critical_values import (
     pco2_alerts,
     sodium_glucose_alerts,
 )
+from notegen.acidbase.kidney_alerts import creatinine_alerts
 from notegen.case.model import Case
 from notegen.knowledge.settings import AcidBaseSettings
 
@@ -176,7 +177,8 @@ def severity_alerts(
 ) -> list[Alert]:
     """Alerts for dangerous values, in a fixed order.
 
-    pH, PCO2, potassium, sodium and glucose, lactate and salicylate, calcium, magnesium, ventilation.
+    pH, PCO2, potassium, sodium and glucose, lactate and salicylate, calcium, magnesium, ventilation,
+    a creatinine that is not steady.
     """
     alerts: list[Alert] = []
     alerts += _ph_alerts(ph, ph_calculated, s, venous)
@@ -188,4 +190,5 @@ def severity_alerts(
     alerts += calcium_alerts(case, s)
     alerts += _magnesium_alerts(case.chem.mg, s)
     alerts += _hypoventilation_alert(hco3, pco2, venous, s)
+    alerts += creatinine_alerts(case, s)
     return alerts

@@ -61,6 +61,7 @@ ALERT_CODES = (
     "severe_hypercapnia",
     "severe_hypocapnia",
     "hypercapnic_acidemia",
+    "unsteady_creatinine",
 )
 ALERT_LEVELS = ("none", "info", "warning", "critical")
 CHLORIDE_TREE = "chloride_class"

@@ -77,6 +77,10 @@ class AcidBaseSettings(BaseModel):
     alkalemia_gap_rise: Setting
     lactate_normal_below: Setting
     bhb_normal_below: Setting
+    creatinine_rise_aki: Setting
+    creatinine_rise_hours: Setting
+    creatinine_ratio_aki: Setting
+    creatinine_ratio_hours: Setting
     anion_gap_normal: Setting
     normal_albumin: Setting
     albumin_gap_factor: Setting

@@ -456,6 +456,15 @@ EXAMPLES = [
         lambda: assess(case(chem={**LOW_K, **LOW_EGFR}, context={"meds": ["furosemide"]}), **DIURETIC),
         1,
     ),
+    # Acute kidney injury reported (invented): an eGFR of about 85 from creatinine 0.9 mg/dL overstates kidney
+    # function while the creatinine rises (CKD-EPI assumes a steady state; KDIGO 2012, from memory).
+    kept_out(
+        "potassium_sparing_with_diuretic",
+        lambda: assess(
+            case(chem=LOW_K, context={"meds": ["furosemide"], "findings": ["aki"], "volume": "normal"}), **DIURETIC
+        ),
+        1,
+    ),
     kept_out(
         "potassium_sparing_with_diuretic",
         lambda: assess(case(chem=LOW_K, context={"meds": ["furosemide", "spironolactone"]}), **DIURETIC),
