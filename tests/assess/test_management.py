@@ -719,14 +719,19 @@ EXAMPLES = [
     # Alcoholic ketoacidosis (invented: heavy drinking, vomiting, glucose 88 mg/dL, no diabetes): insulin is
     # not its treatment, so nothing is said of holding it; a glucose in the range of diabetic
     # ketoacidosis (above 250 mg/dL, Kitabchi et al., Diabetes Care 2009; from memory) brings it back.
+    # Its alkalosis (vomiting) puts the potassium sentence on potassium chloride, not "before any alkali".
     printed(
-        "potassium_before_alkali",
+        "potassium_repletion",
         lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)),
-        "before any alkali",
+        "Potassium repletion is indicated",
+        "potassium chloride is the usual salt",
         lacks=("insulin",),
     ),
+    kept_out(
+        "potassium_before_alkali", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0
+    ),
     printed(
-        "potassium_before_alkali",
+        "potassium_repletion",
         lambda: assess(case(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS), chem={"glucose": 420})),
         "consensus guidance for ketoacidosis holds insulin",
     ),

@@ -122,7 +122,7 @@ def test_check_pack_and_draft_agree_on_a_cause_the_folder_does_not_define(tmp_pa
         ("advice: []\n", 1, "unknown section `advice`"),
         (ONE.replace("{fact: metabolic_alkalosis, is: true}", "{alkalosis: true}"), 3, "needs `fact:`"),
         (ONE + "    unless:\n      - {fact: edema, is: true}\n", 6, "unless"),
-        ("medication_groups:\n  - {id: x, classes: [statin], label: x}\n", 2, "medication class `statin`"),
+        ("medication_groups:\n  - {id: x, classes: [antifungal], label: x}\n", 2, "medication class `antifungal`"),
         ("settings:\n  - {id: k_low_below, value: 3, unit: mmol/L, source: x}\n", 2, "name of a pack setting"),
         (ONE + "    answers_alerts: [hypokalemya]\n", 6, "alert code `hypokalemya`"),
     ],

@@ -287,14 +287,14 @@ def test_unrecognised_names_share_one_line_per_kind() -> None:
         {
             "gas": {"sample": "arterial", "ph": 7.49, "pco2": 48, "hco3": 36},
             "context": {
-                "meds": ["furosemide", "norepinephrine", "piperacillin-tazobactam", "norepinephrine"],
+                "meds": ["furosemide", "meropenem", "hydroxychloroquine", "meropenem"],
                 "findings": ["pneumonia", "vomiting", "delirium"],
             },
         }
     )
     lines = [line for line in draft(assessment).splitlines() if "not recognised" in line]
     assert lines == [
-        "- Medications 'norepinephrine' and 'piperacillin-tazobactam' are not recognised; they are listed but not "
+        "- Medications 'meropenem' and 'hydroxychloroquine' are not recognised; they are listed but not "
         "reasoned with",
         "- Findings 'pneumonia' and 'delirium' are not recognised; they are listed but not reasoned with",
     ]
