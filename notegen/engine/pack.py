@@ -194,6 +194,9 @@ class NextTest(PackModel):
     provides: tuple[Id, ...] = Field(min_length=1)
     purpose: str = ""
     source: Text
+    # Optional: the test is held back only where this condition is FALSE. True or undecided (a value
+    # it reads is missing) leaves the test to the usual rule, so a missing value never hides a test.
+    suggest_when: ConditionField | None = None
 
 
 class PackSpec(PackModel):
