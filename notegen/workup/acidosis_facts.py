@@ -131,7 +131,8 @@ def ketonuria_fact(case: Case, pack: RulePack) -> Fact:
 def gap_unexplained_fact(case: Case, calcs: Mapping[str, Calculation], pack: RulePack) -> Fact:
     """Whether the measured lactate, beta-hydroxybutyrate or uremia leave the gap excess unexplained.
 
-    False (explained) as soon as what is measured accounts for the excess, even if a value is missing;
+    False (explained) as soon as what is measured accounts for the excess, even if a value is missing,
+    or a salicylate level is in the toxic range;
     true only when lactate and beta-hydroxybutyrate are both measured and fall short; otherwise missing,
     so that a test gated on it is kept (see `suggest_when` in notegen/engine/pack.py).
     """
@@ -150,6 +151,9 @@ def gap_unexplained_fact(case: Case, calcs: Mapping[str, Calculation], pack: Rul
     )
     if uremic and left <= _setting(pack, "uremic_gap_excess_up_to", "mmol/L"):
         return BooleanFact(False)
+    salicylate = case.chem.salicylate
+    if salicylate is not None and salicylate >= _setting(pack, "salicylate_toxic_from", "mg/dL"):
+        return BooleanFact(False)  # a toxic level accounts for the gap (the acids it drives with its own anion)
     if lactate is None or bhb is None:
         return MissingFact("lactate or beta-hydroxybutyrate not measured")
     return BooleanFact(True)

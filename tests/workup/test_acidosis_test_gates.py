@@ -174,3 +174,18 @@ def test_the_poisoning_emergency_is_printed_where_a_poisoning_is_likely_or_shown
     if "meds" in context:
         data["gas"] = {"sample": "arterial", "ph": 7.45, "pco2": 20, "hco3": 14}
     assert EMERGENCY in drafted(data)
+
+
+def test_a_toxic_salicylate_level_accounts_for_the_gap() -> None:
+    # Salicylate 58 mg/dL, at or above `salicylate_toxic_from` (30 mg/dL, common practice, from memory):
+    # its anion and the acids it drives explain the gap (Kraut & Madias, Nat Rev Nephrol 2010;6:274).
+    toxic = {"lactate": 1.6, "salicylate": 58}
+    assert fact(case_data(toxic)) == BooleanFact(False)
+    assert not suggested(case_data(toxic)) & {"serum_osmolality", "toxic_alcohol_levels"}
+    # A level below the toxic range explains nothing: the gap stays undecided without ketones.
+    assert fact(case_data({"lactate": 1.6, "salicylate": 12})) == MissingFact(
+        "lactate or beta-hydroxybutyrate not measured"
+    )
+    # A reported ingestion still asks for the toxic alcohol tests (a co-ingestion).
+    tests = suggested(case_data(toxic, findings=["intentional ingestion"]))
+    assert {"serum_osmolality", "toxic_alcohol_levels"} <= tests
