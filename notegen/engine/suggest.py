@@ -2,9 +2,8 @@
 
 A test is suggested only when its missing facts left some condition open, and not where its
 pack's `suggest_when` condition is false (true or undecided keeps it: a missing value never hides a
-test); each value a missing
-fact could take (the pack's compiled candidates) is tried, and the trees and cause tiers that
-would come out differently are the test's `decisions`, worded in its `why`.
+test); each value a missing fact could take (the pack's compiled candidates) is tried, and the
+trees and cause tiers that would come out differently are the test's `decisions`, worded in its `why`.
 """
 
 from __future__ import annotations

@@ -132,9 +132,9 @@ def gap_unexplained_fact(case: Case, calcs: Mapping[str, Calculation], pack: Rul
     """Whether the measured lactate, beta-hydroxybutyrate or uremia leave the gap excess unexplained.
 
     False (explained) as soon as what is measured accounts for the excess, even if a value is missing,
-    or a salicylate level is in the toxic range;
-    true only when lactate and beta-hydroxybutyrate are both measured and fall short; otherwise missing,
-    so that a test gated on it is kept (see `suggest_when` in notegen/engine/pack.py).
+    or a salicylate level is in the toxic range; true only when lactate and beta-hydroxybutyrate are
+    both measured and fall short; otherwise missing, so that a test gated on it is kept (see
+    `suggest_when` in notegen/engine/pack.py). The settings and their sources are in the pack.
     """
     excess = calcs.get("delta_gap")
     if excess is None:
