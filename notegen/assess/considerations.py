@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from notegen._format import format_value
-from notegen.assess.facts import MedicationGroup, consideration_facts
+from notegen.assess.facts import EVIDENCE_PREFIX, MedicationGroup, consideration_facts
 from notegen.assess.management_file import (
     PREPARED_NAME,
     Checked,
@@ -202,7 +202,8 @@ class Verdict:
 
 
 def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
-    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_causes)
+    evidence = tuple(name for name in loaded.catalogue if name.startswith(EVIDENCE_PREFIX))
+    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_causes, evidence)
     # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
     env: Env = {
         name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)

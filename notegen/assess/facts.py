@@ -7,7 +7,10 @@ module gives them:
 - the reading: `metabolic_alkalosis`, `metabolic_acidosis` (established), `primary`, `ph_status`, `chronicity`,
   `anion_gap_status`, and `chloride_class` (the pack's tree outcome; missing without a work-up);
 - `na` (serum sodium), `ca` (total calcium), `ionized_ca` and `glucose`;
-- `cause_<id>` (true when the cause is likely or possible), `factor_<id>` (true when present) and
+- `cause_<id>` (true when the cause is likely or possible), for the acidosis pack also
+  `cause_<id>_likely` (true when likely) and `evidence_<cause>_<item>` (true when that item of the
+  pack counted FOR the cause, false otherwise: not met or undecided), so that a consideration can
+  ask for a positive finding, not a tier alone; `factor_<id>` (true when present) and
   `test_<id>` (true when the test is suggested), one per id of the LOADED pack, so that a cause a
   service adds can be named at once;
 - `alert_<code>`: the level of that alert (`critical`, `warning`, `info`) or `none`;
@@ -34,7 +37,7 @@ from notegen.engine.pack import FactSpec
 from notegen.knowledge import shipped_knowledge
 from notegen.workup.facts import derive_facts
 
-__all__ = ["ALERT_CODES", "MedicationGroup", "consideration_catalogue", "consideration_facts"]
+__all__ = ["ALERT_CODES", "EVIDENCE_PREFIX", "MedicationGroup", "consideration_catalogue", "consideration_facts"]
 
 # The alert codes notegen raises (notegen.acidbase); a test keeps this list and the code in step.
 ALERT_CODES = (
@@ -64,6 +67,7 @@ ALERT_CODES = (
     "unsteady_creatinine",
 )
 ALERT_LEVELS = ("none", "info", "warning", "critical")
+EVIDENCE_PREFIX = "evidence_"  # `evidence_<cause>_<item>`: an acidosis finding that counted for its cause
 CHLORIDE_TREE = "chloride_class"
 
 
@@ -109,7 +113,7 @@ def consideration_catalogue(
         added.append(_spec(CHLORIDE_TREE, "enum", "chloride class", values=trees[CHLORIDE_TREE].outcomes))
     added += [_spec(f"cause_{c.id}", "boolean", f"{c.label} likely or possible") for c in pack.causes]
     if acidosis_pack is not None:
-        added += [_spec(f"cause_{c.id}", "boolean", f"{c.label} likely or possible") for c in acidosis_pack.causes]
+        added += _acidosis_specs(acidosis_pack)
     added += [_spec(f"factor_{f.id}", "boolean", f"{f.label} present") for f in pack.factors]
     added += [_spec(f"test_{t.id}", "boolean", f"{t.label} suggested") for t in pack.tests]
     added += [_spec(f"alert_{code}", "enum", f"{code} alert", values=ALERT_LEVELS) for code in ALERT_CODES]
@@ -122,6 +126,33 @@ def consideration_catalogue(
     for spec in added:
         catalogue.setdefault(spec.id, spec)  # the pack's own fact wins a shared name
     return catalogue
+
+
+def _acidosis_specs(acidosis_pack: RulePack) -> list[FactSpec]:
+    specs: list[FactSpec] = []
+    for cause in acidosis_pack.causes:
+        specs.append(_spec(f"cause_{cause.id}", "boolean", f"{cause.label} likely or possible"))
+        specs.append(_spec(f"cause_{cause.id}_likely", "boolean", f"{cause.label} likely"))
+        for index in cause.evidence:
+            item = acidosis_pack.evidence[index]
+            if item.supporting:
+                label = f"{item.id} counted for {cause.label}"
+                specs.append(_spec(f"{EVIDENCE_PREFIX}{cause.id}_{item.id}", "boolean", label))
+    return specs
+
+
+def _acidosis_facts(
+    assessment: Assessment, causes: Sequence[str], evidence: Sequence[str]
+) -> dict[str, Fact]:
+    entries = assessment.acidosis.differential if assessment.acidosis is not None else ()
+    tiers = {c.cause: c.tier for c in entries}
+    held = {f"{EVIDENCE_PREFIX}{c.cause}_{item.id}" for c in entries for item in c.supporting}
+    facts: dict[str, Fact] = {}
+    for cause in causes:
+        facts[f"cause_{cause}"] = BooleanFact(tiers.get(cause) in ("likely", "possible"))
+        facts[f"cause_{cause}_likely"] = BooleanFact(tiers.get(cause) == "likely")
+    facts.update({name: BooleanFact(name in held) for name in evidence})
+    return facts
 
 
 @functools.cache
@@ -164,8 +195,12 @@ def consideration_facts(
     pack: RulePack,
     groups: Sequence[MedicationGroup],
     acidosis_causes: Sequence[str] = (),
+    acidosis_evidence: Sequence[str] = (),
 ) -> dict[str, Fact]:
-    """The facts of `consideration_catalogue` for this assessment; a value not held is missing, never guessed."""
+    """The facts of `consideration_catalogue` for this assessment; a value not held is missing, never guessed.
+
+    `acidosis_evidence` names the `evidence_<cause>_<item>` facts of the catalogue.
+    """
     case = assessment.case
     facts: dict[str, Fact] = dict(derive_facts(case, assessment.acid_base, pack, assessment.calculations))
     facts.update(_reading_facts(assessment))
@@ -175,9 +210,7 @@ def consideration_facts(
     suggested = {t.test for t in assessment.next_tests}
     facts.update({f"cause_{c.id}": BooleanFact(c.id in likely) for c in pack.causes})
     if acidosis_causes:
-        entries = assessment.acidosis.differential if assessment.acidosis is not None else ()
-        acidosis_likely = {c.cause for c in entries if c.tier in ("likely", "possible")}
-        facts.update({f"cause_{cause}": BooleanFact(cause in acidosis_likely) for cause in acidosis_causes})
+        facts.update(_acidosis_facts(assessment, acidosis_causes, acidosis_evidence))
     facts.update({f"factor_{f.id}": BooleanFact(f.id in present) for f in pack.factors})
     facts.update({f"test_{t.id}": BooleanFact(t.id in suggested) for t in pack.tests})
     levels: dict[str, str] = {}

@@ -72,7 +72,8 @@ def negates_tree(condition: Condition, trees: set[str], negated: bool = False) -
 
 
 def all_conditions(spec: PackSpec) -> list[Condition]:
-    return _deciding_conditions(spec) + [f.when for f in spec.factors]
+    gates = [t.suggest_when for t in spec.tests if t.suggest_when is not None]
+    return _deciding_conditions(spec) + [f.when for f in spec.factors] + gates
 
 
 def candidates(spec: PackSpec, limits: Limits) -> dict[str, tuple[Value, ...]]:

@@ -93,6 +93,9 @@ class _Checker:
                     self.problems.append(
                         _at(test.where_of("provides"), f"test `{test.id}` provides unknown fact `{name}`")
                     )
+            if test.suggest_when is not None:
+                # Tests are chosen after every tree is walked, so the condition may read any tree or node.
+                self._condition(test.suggest_when, everything_before, set(self.node_tree))
         return sorted(set(self.problems), key=lambda p: (p[0], p[1] or 0, p[2]))
 
     def _names_shared(self) -> None:

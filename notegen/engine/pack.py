@@ -3,7 +3,8 @@
 A pack folder holds YAML files (read in name order) with these top-level sections, each optional
 in any one file: `pack`, `facts`, `settings`, `scoring`, `factor_groups`, `trees`, `causes`,
 `factors`, `tests`. Every item carries an `id`; every node, evidence item, factor, setting and test
-names its provenance in `source` (a published source, or "common practice").
+names its provenance in `source` (a published source, or "common practice"). A test may carry
+`suggest_when`, a condition: the test is held back where it is false, kept where true or undecided.
 
 `read_pack(dirs)` layers the folders in order: the first is the base (the shipped pack), each later
 one (a service's own) adds or overrides items by id; see `notegen.engine.source` for the rules.
@@ -194,6 +195,9 @@ class NextTest(PackModel):
     provides: tuple[Id, ...] = Field(min_length=1)
     purpose: str = ""
     source: Text
+    # Optional: the test is held back only where this condition is FALSE. True or undecided (a value
+    # it reads is missing) leaves the test to the usual rule, so a missing value never hides a test.
+    suggest_when: ConditionField | None = None
 
 
 class PackSpec(PackModel):

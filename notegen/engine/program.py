@@ -111,6 +111,7 @@ class CompiledTest:
     source: str
     trees: tuple[int, ...]  # trees its facts can change, in walking order
     direct_evidence: tuple[int, ...]  # evidence items reading its facts
+    gate: Compiled | None = None  # `suggest_when`: the test is held back where this is FALSE
 
 
 @dataclass(frozen=True)
@@ -338,6 +339,7 @@ class _PackCompiler:
                     source=test.source,
                     trees=tree_indices,
                     direct_evidence=direct,
+                    gate=None if test.suggest_when is None else compile_condition(test.suggest_when, self.limits),
                 )
             )
         return tuple(tests)

@@ -1,15 +1,16 @@
 """Suggested tests: for each test whose facts are missing, what its possible results would decide.
 
-A test is suggested only when its missing facts left some condition open; each value a missing
-fact could take (the pack's compiled candidates) is tried, and the trees and cause tiers that
-would come out differently are the test's `decisions`, worded in its `why`.
+A test is suggested only when its missing facts left some condition open, and not where its
+pack's `suggest_when` condition is false (true or undecided keeps it: a missing value never hides a
+test); each value a missing fact could take (the pack's compiled candidates) is tried, and the
+trees and cause tiers that would come out differently are the test's `decisions`, worded in its `why`.
 """
 
 from __future__ import annotations
 
 import itertools
 
-from notegen.engine.conditions import TRUE, UNKNOWN, Env
+from notegen.engine.conditions import FALSE, TRUE, UNKNOWN, Env
 from notegen.engine.core import TreeState, points_of, tier_of, walk_tree
 from notegen.engine.facts import Value
 from notegen.engine.program import CompiledTest, RulePack
@@ -30,6 +31,8 @@ def suggest_tests(
     for test in pack.tests:
         missing = tuple(name for name in test.provides if name not in env)
         if not missing or not _left_open(pack, missing, states, truths):
+            continue
+        if test.gate is not None and test.gate(env) == FALSE:
             continue
         decisions = _what_if(pack, test, missing, env, states, truths, tiers, outcomes)
         if not decisions:

@@ -132,6 +132,37 @@ def ketonuria_fact(case: Case, pack: RulePack) -> Fact:
     return BooleanFact(any(value >= limit for value, limit in known))
 
 
+def gap_unexplained_fact(case: Case, calcs: Mapping[str, Calculation], pack: RulePack) -> Fact:
+    """Whether the measured lactate, beta-hydroxybutyrate or uremia leave the gap excess unexplained.
+
+    False (explained) as soon as what is measured accounts for the excess, even if a value is missing,
+    or a salicylate level is in the toxic range; true only when lactate and beta-hydroxybutyrate are
+    both measured and fall short; otherwise missing, so that a test gated on it is kept (see
+    `suggest_when` in notegen/engine/pack.py). The settings and their sources are in the pack.
+    """
+    excess = calcs.get("delta_gap")
+    if excess is None:
+        return MissingFact("no anion gap")
+    if excess.unit != "mmol/L":
+        raise NotegenError(f"calculation `delta_gap` is in {excess.unit}; the pack expects mmol/L")
+    lactate, bhb = case.chem.lactate, case.chem.bhb
+    left = excess.value - (lactate or 0.0) - (bhb or 0.0)
+    if left <= _setting(pack, "gap_excess_explained_within", "mmol/L"):
+        return BooleanFact(False)
+    egfr, bun = calcs.get("egfr"), case.chem.bun
+    uremic = (egfr is not None and egfr.value < _setting(pack, "egfr_uremic_below", "mL/min/1.73 m2")) or (
+        bun is not None and bun >= _setting(pack, "bun_uremic_from", "mg/dL")
+    )
+    if uremic and left <= _setting(pack, "uremic_gap_excess_up_to", "mmol/L"):
+        return BooleanFact(False)
+    salicylate = case.chem.salicylate
+    if salicylate is not None and salicylate >= _setting(pack, "salicylate_toxic_from", "mg/dL"):
+        return BooleanFact(False)  # a toxic level accounts for the gap (the acids it drives with its own anion)
+    if lactate is None or bhb is None:
+        return MissingFact("lactate or beta-hydroxybutyrate not measured")
+    return BooleanFact(True)
+
+
 def derive_acidosis_facts(
     case: Case,
     reading: AcidBaseReading,
@@ -164,4 +195,7 @@ def derive_acidosis_facts(
     facts["gut_losses"] = TextFact(join_words(losses)) if losses else MissingFact("none reported")
     facts.update(acidosis_medication_facts(case))
     facts["ketonuria"] = ketonuria_fact(case, pack) if pack is not None else MissingFact("no pack settings")
+    facts["gap_unexplained"] = (
+        gap_unexplained_fact(case, calcs, pack) if pack is not None else MissingFact("no pack settings")
+    )
     return facts

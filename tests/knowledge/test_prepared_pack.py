@@ -21,7 +21,7 @@ from notegen.resources import rules_dir
 
 ROOT = Path(__file__).resolve().parents[2]
 SAMPLES = sorted((ROOT / "samples").glob("*.yaml"))
-CLOSURES = {"test"}  # compiled condition closures: equal in behaviour, never `==`
+CLOSURES = {"test", "gate"}  # compiled condition closures: equal in behaviour, never `==`
 
 
 @pytest.fixture

@@ -99,6 +99,35 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ),
         ("not recognised",),
     ),
+    # After a cardiac arrest, lactate 9 with a gap excess of about 12: lactate explains the gap (within 4 mmol/L,
+    # common practice), nothing points to a poisoning, so no toxicology is asked for.
+    "post_arrest_lactate": (
+        ("the likely cause is lactic acidosis",),
+        ("Toxic alcohol levels", "osmolal gap", "Salicylate level", "Acetaminophen level", "poison control"),
+    ),
+    # Septic shock, lactate 7.5, creatinine 2.7: lactate explains the gap; perfusion first, no toxicology.
+    "septic_shock_aki": (
+        ("restoring perfusion", "lactic acidosis"),
+        ("Toxic alcohol levels", "osmolal gap", "Salicylate level", "Acetaminophen level", "poison control"),
+    ),
+    # Kidney injury, eGFR below 20 and BUN 84, gap 18: uremia can account for the gap (Kraut & Madias, AJKD 2016;
+    # from memory); lactate and ketones are asked for first, toxicology is not.
+    "kidney_injury_gap": (
+        ("advanced kidney disease", "**Lactate:**", "**Serum beta-hydroxybutyrate or urine ketones:**"),
+        ("Toxic alcohol levels", "osmolal gap", "Salicylate level", "Acetaminophen level", "poison control"),
+    ),
+    # Lactate and ketones fall short of the gap, the measured osmolal gap is normal: a salicylate level, but no
+    # toxic alcohol levels (Kraut & Xing, AJKD 2011).
+    "normal_osmolal_gap": (
+        ("**Salicylate level:**",),
+        ("Toxic alcohol levels", "poison control"),
+    ),
+    # Sepsis with a respiratory alkalosis and a gap of 18, no ingestion reported, no lactate yet: send a salicylate
+    # level and a lactate; no call to poison control on the pattern alone (common practice).
+    "sepsis_respiratory_alkalosis": (
+        ("**Salicylate level:**", "**Lactate:**"),
+        ("poison control", "is an emergency"),
+    ),
 }
 
 
