@@ -642,7 +642,10 @@ EXAMPLES = [
         "ketoacidosis_volume_repletion",
         lambda: assess(sample_data("diabetic_ketoacidosis", context={"volume": "normal"})),
     ),
-    kept_out("ketoacidosis_volume_repletion", sample("ketoacidosis_with_vomiting"), 0),
+    # its ketoacidosis made likely by a measured beta-hydroxybutyrate (the sample has none: only possible there)
+    kept_out(
+        "ketoacidosis_volume_repletion", lambda: assess(sample_data("ketoacidosis_with_vomiting", chem={"bhb": 6.0})), 0
+    ),
     kept_out(
         "ketoacidosis_volume_repletion",
         lambda: assess(sample_data("diabetic_ketoacidosis", context={"findings": ["diabetes", "heart failure"]})),
@@ -762,6 +765,12 @@ EXAMPLES = [
     ),
     kept_out("ventilation_depressing_drugs", lambda: assess(case(OPIOID_HYPOVENTILATION, context={"meds": []}))),
     kept_out("ventilation_depressing_drugs", lambda: assess(case(context={"meds": ["oxycodone"]}))),
+    # The same patient with volume recorded low: ketoacidosis is only possible (diabetes, no ketones measured), so
+    # nothing is said of treating "the ketoacidosis".
+    kept_out(
+        "ketoacidosis_volume_repletion",
+        lambda: assess(case(METFORMIN_LACTIC, context={"volume": "low"})),
+    ),
     # Metformin with a lactic acidosis (invented: lactate 9 mmol/L, creatinine 3.6 mg/dL): stop it, and
     # extracorporeal removal where severe (Calello et al., Crit Care Med 2015; from memory).
     printed(
