@@ -77,6 +77,9 @@ class _Checker:
             self._tree(tree, {t.id for t in spec.trees[:position]})
         everything_before = set(self.trees)
         for cause in spec.causes:
+            if cause.form_of is not None and (cause.form_of not in self.causes or cause.form_of == cause.id):
+                what = f"cause `{cause.id}`: form_of names no other cause `{cause.form_of}`"
+                self.problems.append(_at(cause.where_of("form_of"), what))
             for item in (*cause.evidence.supporting, *cause.evidence.opposing):
                 self._condition(item.when, everything_before, set(self.node_tree))
                 self._template(item.says, item.where_of("says"))

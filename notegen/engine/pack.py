@@ -5,6 +5,8 @@ in any one file: `pack`, `facts`, `settings`, `scoring`, `factor_groups`, `trees
 `factors`, `tests`. Every item carries an `id`; every node, evidence item, factor, setting and test
 names its provenance in `source` (a published source, or "common practice"). A test may carry
 `suggest_when`, a condition: the test is held back where it is false, kept where true or undecided.
+A cause may carry `form_of: <cause id>`: it is a specific form of that cause, and where it is likely
+the note names it alone rather than beside the general one.
 
 `read_pack(dirs)` layers the folders in order: the first is the base (the shipped pack), each later
 one (a service's own) adds or overrides items by id; see `notegen.engine.source` for the rules.
@@ -173,6 +175,9 @@ class Cause(PackModel):
     label: Text
     evidence: EvidenceLists = Field(default_factory=EvidenceLists)
     description: str = ""
+    # Another cause of the pack this one is a specific form of: where this one is likely, a note names it
+    # alone, not the general cause beside it as a second cause "acting together".
+    form_of: Id | None = None
 
 
 class FactorGroup(PackModel):

@@ -148,10 +148,13 @@ def _causes(
     maintenance: Sequence[FactorEntry] = (),
     stated: frozenset[str] = CHLORIDE_FACTS,
 ) -> list[str]:
-    likely = [cause for cause in differential if cause.tier == "likely"]
+    # A likely cause that is a specific form of another (calcium-alkali syndrome of alkali load) is named
+    # alone: the general cause is not a second cause "acting together" with it.
+    general = {cause.form_of for cause in differential if cause.tier == "likely" and cause.form_of}
+    likely = [cause for cause in differential if cause.tier == "likely" and cause.cause not in general]
     # A possible cause that is also a present maintenance factor (reduced GFR) is said once, there.
     maintaining = {factor.factor for factor in maintenance if factor.status == "present"}
-    possible = [cause for cause in differential if cause.tier == "possible"]
+    possible = [cause for cause in differential if cause.tier == "possible" and cause.cause not in general]
     if likely:
         possible = [cause for cause in possible if cause.cause not in maintaining]
     sentences: list[str] = []

@@ -127,6 +127,7 @@ def evaluate_alkalosis(
         for f in result.factors
         if f.group == "maintenance"
     )
+    forms = {cause.id: cause.form_of for cause in pack.spec.causes if cause.form_of is not None}
     differential = tuple(
         CauseEntry.model_validate(
             {
@@ -137,6 +138,7 @@ def evaluate_alkalosis(
                 "against": tuple(_evidence(e) for e in c.opposing),
                 "undecided": tuple(_undecided(pack, o) for o in c.open),
                 "not_assessable_without": _not_assessable_without(pack, c.open),
+                "form_of": forms.get(c.id),
             }
         )
         for c in result.causes

@@ -33,6 +33,7 @@ class CauseEntry(FrozenModel):
     # Tests (by label) whose missing result left a finding FOR this cause open: such a cause is
     # never called unlikely on its own; the note says what it cannot be assessed or excluded without.
     not_assessable_without: tuple[str, ...] = ()
+    form_of: str | None = None  # the cause id this one is a specific form of (the pack's `form_of`)
 
 
 class MechanismEntry(FrozenModel):

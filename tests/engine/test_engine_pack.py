@@ -128,3 +128,17 @@ def test_kind_checks_on_conditions(tmp_path: Path) -> None:
     assert "factor `c`: unknown factor group `nowhere`" in messages
     assert "placeholder `{nothing}` names no fact, setting or tree" in messages
     assert any("`flooded` is not an outcome of tree `watering_need`" in m for m in messages)
+
+
+def test_form_of_must_name_another_cause(tmp_path: Path) -> None:
+    # A cause that is a specific form of another (the alkalosis pack's calcium-alkali syndrome of alkali load).
+    (tmp_path / "x.yaml").write_text(
+        "causes:\n"
+        "  - id: pot_bound\n    label: pot-bound roots\n    form_of: underwatering\n"
+        "  - id: rootless\n    label: no roots\n    form_of: root_rot_typo\n"
+        "  - id: selfish\n    label: itself\n    form_of: selfish\n"
+    )
+    messages = [p[2] for p in check_pack([PLANTS, tmp_path])]
+    assert "cause `rootless`: form_of names no other cause `root_rot_typo`" in messages
+    assert "cause `selfish`: form_of names no other cause `selfish`" in messages
+    assert not any("pot_bound" in message for message in messages)

@@ -54,6 +54,17 @@ def test_calcium_alkali_syndrome_has_its_own_cause_and_is_likely() -> None:
     assert tiers(assessment)["calcium_alkali"] == "likely"
 
 
+def test_calcium_alkali_syndrome_is_named_alone_not_beside_alkali_load() -> None:
+    # It is a form of alkali load (the pack's `form_of`): "two causes ... acting together" misread it as two.
+    from notegen.note.paragraph import draft_paragraph
+
+    assessment = assess(CALCIUM_ALKALI)
+    assert tiers(assessment)["alkali_load"] == "likely"  # the differential keeps both; the paragraph folds
+    paragraph = draft_paragraph(assessment)
+    assert "The likely cause is calcium-alkali syndrome (" in paragraph
+    assert "alkali load" not in paragraph and "acting together" not in paragraph
+
+
 def test_hypercalcemia_keeps_a_high_urine_chloride_from_reading_as_chloride_resistant() -> None:
     assessment = assess(CALCIUM_ALKALI)
     assert assessment.chloride_class == "indeterminate"
