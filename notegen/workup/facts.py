@@ -43,6 +43,7 @@ FINDINGS = (
     "cirrhosis",
     "ascites",
     "laxative_use",
+    "dialysis",
 )
 DIURETIC_WINDOWS = {
     "loop_diuretic": "loop_diuretic_action_hours",

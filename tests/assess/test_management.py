@@ -791,6 +791,23 @@ EXAMPLES = [
         ),
         1,
     ),
+    # A normal-gap acidosis after large saline volumes (invented): more fluid as a balanced crystalloid
+    # (Semler et al., NEJM 2018; from memory); not for a diarrheal one.
+    printed(
+        "chloride_load_fluids",
+        lambda: assess(case(ACIDOSIS, chem={"k": 3.9}, context={"findings": ["saline resuscitation"]})),
+        "as a balanced crystalloid rather than isotonic saline",
+    ),
+    kept_out("chloride_load_fluids", lambda: assess(ACIDOSIS)),
+    # Acetazolamide with a primary respiratory acidosis (invented CO2 retainer, pH 7.28, PaCO2 62).
+    printed(
+        "acetazolamide_in_hypercapnia",
+        lambda: assess(case(BASE, gas={"ph": 7.28, "pco2": 62, "hco3": 28.5}, context={"meds": ["acetazolamide"]})),
+        "whether to continue acetazolamide is worth weighing",
+    ),
+    kept_out(
+        "acetazolamide_in_hypercapnia", lambda: assess(case(BASE, gas={"ph": 7.28, "pco2": 62, "hco3": 28.5}))
+    ),
     # With a concurrent alkalosis holding the pH at 7.39, bicarbonate is not in question (common practice).
     kept_out("bicarbonate_cautions", lambda: assess(sample_data("diabetic_ketoacidosis", **ALCOHOLIC_KETOACIDOSIS)), 0),
     # An ACE inhibitor or ARB with volume recorded low (common practice, sick-day guidance; from memory).

@@ -1,0 +1,73 @@
+"""Invented ward vignettes read as a nephrologist would: dialysis, chloride loading, acetazolamide with
+hypercapnia. Each checks the sentences the chart note must and must not hold."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import pytest
+
+from notegen.case.validation import validate_case
+from notegen.pipeline import Drafter
+
+DRAFTER = Drafter()
+
+# End-stage kidney disease on haemodialysis, vomiting, calcium acetate: the urine no longer reads the
+# kidney's handling of the alkalosis, and aldosterone no longer drives it (common practice).
+DIALYSIS: dict[str, Any] = {
+    "units": "conventional",
+    "patient": {"age": 61, "sex": "female"},
+    "gas": {"sample": "venous", "ph": 7.50, "pco2": 46, "hco3": 35},
+    "chem": {"na": 137, "k": 3.4, "cl": 94, "tco2": 35, "bun": 22, "creatinine": 4.8, "albumin": 3.5},
+    "context": {"bp": "140/82", "volume": "normal", "meds": ["calcium acetate", "sevelamer"],
+                "findings": ["esrd", "vomiting", "hemodialysis"]},
+}  # fmt: skip
+# Six litres of saline after septic shock, now overloaded: a normal-gap acidosis from chloride loading.
+SALINE: dict[str, Any] = {
+    "units": "conventional",
+    "patient": {"age": 54, "sex": "male"},
+    "gas": {"sample": "arterial", "ph": 7.31, "pco2": 33, "hco3": 16.5},
+    "chem": {"na": 141, "k": 3.9, "cl": 117, "tco2": 17, "creatinine": 1.0, "albumin": 3.4, "lactate": 1.4},
+    "context": {"volume": "high", "findings": ["sepsis", "saline resuscitation", "edema"]},
+}
+# A CO2 retainer given acetazolamide: pH 7.28, PaCO2 62, bicarbonate 28.5 (6.1 + log(28.5 / (0.03 x 62)) = 7.29).
+ACETAZOLAMIDE: dict[str, Any] = {
+    "units": "conventional",
+    "patient": {"age": 74, "sex": "male"},
+    "gas": {"sample": "arterial", "ph": 7.28, "pco2": 62, "hco3": 28.5},
+    "chem": {"na": 138, "k": 3.6, "cl": 104, "tco2": 29, "creatinine": 1.1, "albumin": 3.8},
+    "context": {"meds": ["acetazolamide", "furosemide"], "findings": ["chronic co2 retention"]},
+}
+
+READINGS: dict[str, tuple[dict[str, Any], tuple[str, ...], tuple[str, ...]]] = {
+    "dialysis": (
+        DIALYSIS,
+        ("On dialysis that includes the dialysate bicarbonate", "Mineralocorticoid excess is unlikely (dialysis"),
+        ("Spot urine chloride", "Plasma renin", "not recognised"),
+    ),
+    "saline": (SALINE, ("as a balanced crystalloid rather than isotonic saline",), ()),
+    "acetazolamide": (ACETAZOLAMIDE, ("whether to continue acetazolamide is worth weighing",), ()),
+}
+
+
+@pytest.mark.parametrize("name", sorted(READINGS))
+def test_the_note_fits_the_patient(name: str) -> None:
+    data, says, lacks = READINGS[name]
+    note = DRAFTER.draft(validate_case(data))
+    for text in says:
+        assert text in note, note
+    for text in lacks:
+        assert text not in note, note
+
+
+def test_without_dialysis_the_urine_chloride_is_still_asked_for() -> None:
+    data = {**DIALYSIS, "context": {**DIALYSIS["context"], "findings": ["esrd", "vomiting"]}}
+    note = DRAFTER.draft(validate_case(data))
+    assert "Spot urine chloride" in note and "dialysate" not in note
+
+
+def test_the_fluid_and_acetazolamide_sentences_stay_out_where_they_do_not_fit() -> None:
+    diarrhea = {**SALINE, "context": {"volume": "high", "findings": ["diarrhea"]}}
+    assert "balanced crystalloid rather than isotonic saline" not in DRAFTER.draft(validate_case(diarrhea))
+    no_drug = {**ACETAZOLAMIDE, "context": {**ACETAZOLAMIDE["context"], "meds": ["furosemide"]}}
+    assert "acetazolamide" not in DRAFTER.draft(validate_case(no_drug)).lower()
