@@ -114,7 +114,7 @@ class CompiledTest:
     gate: Compiled | None = None  # `suggest_when`: the test is held back where this is FALSE
     # Values to try for each fact the gate reads, to tell which missing facts leave it undecided.
     gate_candidates: Mapping[str, tuple[Value, ...]] = field(default_factory=dict)
-    conditional_says: str = ""  # the pack's wording for a test kept on an undecided gate
+    conditional_says: Mapping[str, str] = field(default_factory=dict)  # fact -> clause, from the pack
 
 
 @dataclass(frozen=True)
@@ -344,7 +344,7 @@ class _PackCompiler:
                     direct_evidence=direct,
                     gate=None if test.suggest_when is None else compile_condition(test.suggest_when, self.limits),
                     gate_candidates=self._gate_candidates(test.suggest_when),
-                    conditional_says=test.conditional_says,
+                    conditional_says=dict(test.conditional_says),
                 )
             )
         return tuple(tests)

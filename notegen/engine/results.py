@@ -145,7 +145,8 @@ class Suggestion:
     # Facts whose absence leaves the test's `suggest_when` undecided: the test is kept, but only
     # conditionally, pending those facts. Empty when the gate held (or the test has none).
     conditional_on: tuple[str, ...] = ()
-    conditional_says: str = ""  # the pack's clause for it, e.g. "if ... leave the gap unexplained"
+    # The pack's clause for each of them that has one, in the same order (empty string where none).
+    conditional_says: tuple[str, ...] = ()
 
     @property
     def conditional(self) -> bool:

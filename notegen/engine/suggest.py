@@ -37,6 +37,7 @@ def suggest_tests(
         gate = test.gate(env) if test.gate is not None else TRUE
         if gate == FALSE:
             continue
+        open_on = _gate_open_on(test, env) if gate == UNKNOWN else ()
         decisions = _what_if(pack, test, missing, env, states, truths, tiers, outcomes)
         if not decisions:
             continue
@@ -52,8 +53,8 @@ def suggest_tests(
                     decisions,
                     _why(pack, test, missing, decisions),
                     test.source,
-                    _gate_open_on(test, env) if gate == UNKNOWN else (),
-                    test.conditional_says if gate == UNKNOWN else "",
+                    open_on,
+                    tuple(test.conditional_says.get(name, "") for name in open_on),
                 ),
             )
         )

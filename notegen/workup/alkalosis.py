@@ -96,8 +96,16 @@ def _conditional(pack: RulePack, suggestion: Suggestion) -> dict[str, Any]:
     """The conditional state of a suggested test: pending which facts, and the clause the note shows."""
     if not suggestion.conditional:
         return {}
-    names = [pack.facts[n].display_label if n in pack.facts else n for n in suggestion.conditional_on]
-    says = suggestion.conditional_says or f"depending on {join_words(names)}"
+    pairs = zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
+    clauses = [clause for _, clause in pairs if clause]
+    unworded = [
+        pack.facts[name].display_label if name in pack.facts else name
+        for name, clause in zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
+        if not clause
+    ]
+    parts = [f"if {join_words(clauses, 'or')}"] if clauses else []
+    parts += [f"depending on {join_words(unworded)}"] if unworded else []
+    says = ", or ".join(parts)
     return {"conditional": True, "conditional_on": suggestion.conditional_on, "conditional_says": says}
 
 

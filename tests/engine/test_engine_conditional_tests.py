@@ -27,7 +27,7 @@ PACK = (
     " source: common practice}\n"
     "tests:\n"
     "  - id: level_test\n    label: level test\n    provides: [level]\n    source: common practice\n"
-    "    conditional_says: if it turns out worth it\n"
+    "    conditional_says: {worth_it: it turns out worth it}\n"
     "    suggest_when: {any: [{fact: worth_it, is: true}, {fact: score, at_least: score_high_from}]}\n"
 )
 MISSING = MissingFact("not measured")
@@ -58,7 +58,9 @@ def test_a_test_is_conditional_on_exactly_the_facts_that_leave_its_gate_open(
     (suggestion,) = result.suggestions
     assert suggestion.conditional_on == open_on
     assert suggestion.conditional is bool(open_on)
-    assert suggestion.conditional_says == ("if it turns out worth it" if open_on else "")
+    # the pack words `worth_it`; `score` has no clause (the workup names it by its label)
+    says = {"worth_it": "it turns out worth it", "score": ""}
+    assert suggestion.conditional_says == tuple(says[name] for name in open_on)
     assert ("conditional_on" in suggestion.as_dict()) is bool(open_on)
 
 
@@ -67,7 +69,10 @@ def test_a_gate_that_is_false_still_hides_the_test(pending: RulePack) -> None:
     assert result.suggestions == ()
 
 
-def test_conditional_wording_without_a_gate_is_refused_at_load_time(tmp_path: Path) -> None:
-    (tmp_path / "pack.yaml").write_text(PACK.split("    suggest_when")[0])
+@pytest.mark.parametrize("cut", ["no-gate", "fact-not-read"])
+def test_wording_for_a_fact_the_gate_does_not_read_is_refused_at_load_time(tmp_path: Path, cut: str) -> None:
+    text = PACK.split("    suggest_when")[0] if cut == "no-gate" else PACK.replace("{worth_it:", "{level:")
+    (tmp_path / "pack.yaml").write_text(text)
     messages = [p[2] for p in check_pack([tmp_path])]
-    assert messages == ["test `level_test` has `conditional_says` but no `suggest_when` to be undecided"]
+    fact = "worth_it" if cut == "no-gate" else "level"
+    assert messages == [f"test `level_test`: `conditional_says` words `{fact}`, which its `suggest_when` does not read"]

@@ -15,11 +15,13 @@ from typing import Any
 from notegen.acidbase.calculations import compute_calculations
 from notegen.acidbase.reading import read_acid_base
 from notegen.engine import walk
+from notegen.engine.results import Suggestion
 from notegen.intake.read import read_case_data
 from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis import evaluate_acidosis
 from notegen.workup.acidosis_facts import derive_acidosis_facts
 from notegen.workup.acidosis_model import AcidosisTest
+from notegen.workup.alkalosis import _conditional
 
 PACK = shipped_knowledge().acidosis_pack
 # Gap 138 - (100 + 14) = 24 mmol/L at albumin 4.0, an excess of 12 mmol/L over the normal 12
@@ -31,6 +33,7 @@ BASE: dict[str, Any] = {
     "chem": {"na": 138, "k": 4.2, "cl": 100, "albumin": 4.0, "creatinine": 0.9, "bun": 15, "glucose": 105},
 }
 IF_UNEXPLAINED = "if lactate and ketones leave the gap unexplained"
+UNRECOGNISED = {"meds": ["zorblatine"]}  # an invented name: every medication class is then undecided
 
 
 def data_with(**chem: float) -> dict[str, Any]:
@@ -74,6 +77,25 @@ def test_an_explained_gap_holds_the_poisoning_tests_back() -> None:
     assert not {"serum_osmolality", "toxic_alcohol_levels", "salicylate_level"} & set(tests)
 
 
+def test_an_explained_gap_is_never_named_as_the_condition() -> None:
+    # Lactate explains the gap; an unrecognised medication could still be a salicylate or acetaminophen.
+    tests = next_tests_of({**data_with(lactate=9.0), "context": UNRECOGNISED})
+    assert not {"serum_osmolality", "toxic_alcohol_levels"} & set(tests)
+    salicylate = tests["salicylate_level"]
+    assert salicylate.conditional_on == ("salicylate_listed",)
+    assert salicylate.conditional_says == "if a medication not recognised is a salicylate"
+
+
+def test_an_undecided_gap_and_medication_are_both_named() -> None:
+    tests = next_tests_of({**data_with(), "context": UNRECOGNISED})
+    assert tests["salicylate_level"].conditional_says == (
+        "if lactate and ketones leave the gap unexplained or a medication not recognised is a salicylate"
+    )
+    assert tests["toxic_alcohol_levels"].conditional_says == (
+        "if the osmolal gap is high or lactate and ketones leave the gap unexplained"
+    )
+
+
 def test_a_gate_that_holds_gives_no_condition() -> None:
     # A reported ingestion makes every poisoning gate true: nothing is left conditional.
     tests = next_tests_of({**data_with(), "context": {"findings": ["toxic_ingestion"]}})
@@ -93,3 +115,15 @@ def test_the_json_carries_the_conditional_state() -> None:
     tests = next_tests_of(data_with())
     dumped = tests["serum_osmolality"].model_dump(mode="json")
     assert dumped["conditional"] is True and dumped["conditional_on"] == ["gap_unexplained"]
+
+
+def test_a_missing_fact_the_pack_does_not_word_is_named_by_its_label() -> None:
+    suggestion = Suggestion(
+        "acetaminophen_level", "acetaminophen level", ("acetaminophen_detected",), (), "", "",
+        ("gap_unexplained", "acetaminophen_listed"), ("lactate and ketones leave the gap unexplained", ""),
+    )  # fmt: skip
+    assert _conditional(PACK, suggestion)["conditional_says"] == (
+        "if lactate and ketones leave the gap unexplained, or depending on acetaminophen listed"
+    )
+    plain = Suggestion("lactate", "lactate", ("lactate",), (), "", "")
+    assert _conditional(PACK, plain) == {}
