@@ -76,11 +76,16 @@ def all_conditions(spec: PackSpec) -> list[Condition]:
     return _deciding_conditions(spec) + [f.when for f in spec.factors] + gates
 
 
-def candidates(spec: PackSpec, limits: Limits) -> dict[str, tuple[Value, ...]]:
-    """One value per distinct answer pattern of all tests on a fact (for "what if it were known")."""
+def candidates(
+    spec: PackSpec, limits: Limits, conditions: Sequence[Condition] | None = None
+) -> dict[str, tuple[Value, ...]]:
+    """One value per distinct answer pattern of all tests on a fact (for "what if it were known").
+
+    The tests are those of the nodes and evidence, or of `conditions` when given (a test's gate).
+    """
     compares: dict[str, list[Compare]] = {}
     words: dict[str, set[str]] = {}
-    for condition in _deciding_conditions(spec):
+    for condition in _deciding_conditions(spec) if conditions is None else conditions:
         for leaf in walk_tests(condition):
             if isinstance(leaf, Compare):
                 compares.setdefault(leaf.fact, []).append(leaf)

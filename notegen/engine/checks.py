@@ -19,6 +19,7 @@ from notegen.engine.conditions import (
     Known,
     OneOf,
     Reached,
+    facts_of,
     walk_tests,
 )
 from notegen.engine.pack import FactSpec, PackInfo, PackModel, PackSpec, Problem, SettingSpec, Tree
@@ -99,6 +100,12 @@ class _Checker:
             if test.suggest_when is not None:
                 # Tests are chosen after every tree is walked, so the condition may read any tree or node.
                 self._condition(test.suggest_when, everything_before, set(self.node_tree))
+            read = facts_of(test.suggest_when) if test.suggest_when is not None else ()
+            for name in test.conditional_says:
+                if name not in read:
+                    message = f"test `{test.id}`: `conditional_says` words `{name}`, which its `suggest_when`"
+                    message += " does not read"
+                    self.problems.append(_at(test.where_of("conditional_says"), message))
         return sorted(set(self.problems), key=lambda p: (p[0], p[1] or 0, p[2]))
 
     def _names_shared(self) -> None:

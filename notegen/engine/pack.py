@@ -203,6 +203,10 @@ class NextTest(PackModel):
     # Optional: the test is held back only where this condition is FALSE. True or undecided (a value
     # it reads is missing) leaves the test to the usual rule, so a missing value never hides a test.
     suggest_when: ConditionField | None = None
+    # Optional: for a fact `suggest_when` reads, the clause that words it when its absence leaves the
+    # test undecided ({gap_unexplained: "lactate and ketones leave the gap unexplained"}); the note says
+    # "if <clause> or <clause>", and names a missing fact that has no clause by its label.
+    conditional_says: dict[Id, Text] = Field(default_factory=dict)
 
 
 class PackSpec(PackModel):

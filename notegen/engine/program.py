@@ -112,6 +112,9 @@ class CompiledTest:
     trees: tuple[int, ...]  # trees its facts can change, in walking order
     direct_evidence: tuple[int, ...]  # evidence items reading its facts
     gate: Compiled | None = None  # `suggest_when`: the test is held back where this is FALSE
+    # Values to try for each fact the gate reads, to tell which missing facts leave it undecided.
+    gate_candidates: Mapping[str, tuple[Value, ...]] = field(default_factory=dict)
+    conditional_says: Mapping[str, str] = field(default_factory=dict)  # fact -> clause, from the pack
 
 
 @dataclass(frozen=True)
@@ -340,9 +343,17 @@ class _PackCompiler:
                     trees=tree_indices,
                     direct_evidence=direct,
                     gate=None if test.suggest_when is None else compile_condition(test.suggest_when, self.limits),
+                    gate_candidates=self._gate_candidates(test.suggest_when),
+                    conditional_says=dict(test.conditional_says),
                 )
             )
         return tuple(tests)
+
+    def _gate_candidates(self, gate: Condition | None) -> dict[str, tuple[Value, ...]]:
+        if gate is None:
+            return {}
+        found = candidates(self.spec, self.limits, [gate])
+        return {name: found[name] for name in facts_of(gate) if name in found}
 
 
 def load_pack(dirs: Sequence[Path]) -> RulePack:

@@ -142,9 +142,21 @@ class Suggestion:
     decides: tuple[Decision, ...]
     why: str
     source: str
+    # Facts whose absence leaves the test's `suggest_when` undecided: the test is kept, but only
+    # conditionally, pending those facts. Empty when the gate held (or the test has none).
+    conditional_on: tuple[str, ...] = ()
+    # The pack's clause for each of them that has one, in the same order (empty string where none).
+    conditional_says: tuple[str, ...] = ()
+
+    @property
+    def conditional(self) -> bool:
+        return bool(self.conditional_on)
 
     def as_dict(self) -> dict[str, Any]:
-        return {"test": self.test, "why": self.why}
+        found: dict[str, Any] = {"test": self.test, "why": self.why}
+        if self.conditional_on:
+            found["conditional_on"] = list(self.conditional_on)
+        return found
 
 
 @dataclass(frozen=True, slots=True)

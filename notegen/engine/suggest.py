@@ -4,6 +4,8 @@ A test is suggested only when its missing facts left some condition open, and no
 pack's `suggest_when` condition is false (true or undecided keeps it: a missing value never hides a
 test); each value a missing fact could take (the pack's compiled candidates) is tried, and the
 trees and cause tiers that would come out differently are the test's `decisions`, worded in its `why`.
+A test kept on an undecided `suggest_when` is conditional: its suggestion names the missing facts that
+leave the gate open (`conditional_on`), for the note to word it as "if ...", not as due now.
 """
 
 from __future__ import annotations
@@ -32,8 +34,10 @@ def suggest_tests(
         missing = tuple(name for name in test.provides if name not in env)
         if not missing or not _left_open(pack, missing, states, truths):
             continue
-        if test.gate is not None and test.gate(env) == FALSE:
+        gate = test.gate(env) if test.gate is not None else TRUE
+        if gate == FALSE:
             continue
+        open_on = _gate_open_on(test, env) if gate == UNKNOWN else ()
         decisions = _what_if(pack, test, missing, env, states, truths, tiers, outcomes)
         if not decisions:
             continue
@@ -42,11 +46,32 @@ def suggest_tests(
         found.append(
             (
                 rank,
-                Suggestion(test.id, test.label, missing, decisions, _why(pack, test, missing, decisions), test.source),
+                Suggestion(
+                    test.id,
+                    test.label,
+                    missing,
+                    decisions,
+                    _why(pack, test, missing, decisions),
+                    test.source,
+                    open_on,
+                    tuple(test.conditional_says.get(name, "") for name in open_on),
+                ),
             )
         )
     found.sort(key=lambda pair: pair[0])
     return tuple(s for _, s in found)
+
+
+def _gate_open_on(test: CompiledTest, env: Env) -> tuple[str, ...]:
+    """The missing facts whose value alone could decide the test's undecided gate (all of them if none alone could)."""
+    assert test.gate is not None
+    missing = tuple(name for name in test.gate_candidates if name not in env)
+    deciding = tuple(
+        name
+        for name in missing
+        if any(test.gate({**env, name: value}) != UNKNOWN for value in test.gate_candidates[name])
+    )
+    return deciding or missing
 
 
 def _left_open(

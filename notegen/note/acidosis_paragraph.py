@@ -16,7 +16,7 @@ from notegen.note.worksheet import plain_source
 from notegen.workup.acidosis_model import AcidosisTest
 from notegen.workup.model import CauseEntry, Evidence, SuggestedTest
 
-__all__ = ["acidosis_context", "acidosis_sentences", "acidosis_test_labels"]
+__all__ = ["acidosis_conditional_tests", "acidosis_context", "acidosis_sentences", "acidosis_test_labels"]
 
 KIND_WORDS = {
     "high_gap": "the high anion gap acidosis",
@@ -105,9 +105,24 @@ def acidosis_sentences(assessment: Assessment) -> list[str]:
 
 
 def acidosis_test_labels(assessment: Assessment) -> list[str]:
-    """The acidosis work-up's suggested tests, for the paragraph's one list of next tests."""
+    """The acidosis work-up's tests due now, for the paragraph's one list of next tests."""
     tests: Sequence[SuggestedTest] = assessment.acidosis.next_tests if assessment.acidosis is not None else ()
-    return [_inline(test.label) for test in tests]
+    return [_inline(test.label) for test in tests if not test.conditional]
+
+
+def acidosis_conditional_tests(assessment: Assessment) -> list[tuple[str, list[str]]]:
+    """The tests kept only on an undecided condition: (the pack's "if ..." clause, their labels), in order."""
+    tests: Sequence[SuggestedTest] = assessment.acidosis.next_tests if assessment.acidosis is not None else ()
+    groups: dict[str, list[str]] = {}
+    for test in tests:
+        if test.conditional:
+            groups.setdefault(test.conditional_says, []).append(_inline(test.label))
+    return list(groups.items())
+
+
+def _in_order(tests: Sequence[AcidosisTest]) -> list[AcidosisTest]:
+    """The tests due now first, then the conditional ones, each in the pack's order."""
+    return [t for t in tests if not t.conditional] + [t for t in tests if t.conditional]
 
 
 # The note's acidosis section -------------------------------------------------------------------
@@ -131,7 +146,18 @@ def _decides(test: AcidosisTest) -> str:
         parts.append(f"settle the {join_words(test.settles)}")
     if test.bears_on:
         parts.append(f"bear on {join_words([_inline(label) for label in test.bears_on])}")
-    return f"Would {' and '.join(parts)}." if parts else test.why
+    decides = f"Would {' and '.join(parts)}." if parts else test.why
+    return _if(test, decides)
+
+
+def _if(test: AcidosisTest, decides: str) -> str:
+    """A conditional test's sentence opens with the pack's clause: "If ..., it would bear on ..."."""
+    if not test.conditional:
+        return decides
+    for opening in ("Would ", "It would "):
+        if decides.startswith(opening):
+            return f"{sentence_case(test.conditional_says)}, it would {decides.removeprefix(opening)}"
+    return f"{sentence_case(test.conditional_says)}: {decides}"
 
 
 def _short_reason(test: AcidosisTest) -> str:
@@ -141,7 +167,9 @@ def _short_reason(test: AcidosisTest) -> str:
         parts.append(f"settle the {join_words(test.settles)}")
     if test.bears_on:
         parts.append(f"bear on {join_words([_inline(label) for label in test.bears_on])}")
-    decides = f"It would {' and '.join(parts)}." if parts else ""
+    decides = _if(test, f"It would {' and '.join(parts)}.") if parts else ""
+    if not decides and test.conditional:
+        decides = f"{sentence_case(test.conditional_says)}."
     return " ".join(text for text in (test.purpose, decides) if text) or test.why
 
 
@@ -173,8 +201,9 @@ def acidosis_context(assessment: Assessment) -> dict[str, Any] | None:
                 "why": t.why,
                 "reason": _short_reason(t),
                 "decides": _decides(t),  # the chart note's one sentence: what the result would bear on
+                "conditional": t.conditional,
             }
-            for t in workup.next_tests
+            for t in _in_order(workup.next_tests)
         ],
         # The walk, step by step, when the draft was asked to explain itself (empty otherwise).
         "trace": [

@@ -106,6 +106,9 @@ def plain_source(source: str) -> str:
 def test_row(test: SuggestedTest) -> dict[str, str]:
     """A suggested test and one plain sentence on what its result would change."""
     sentence = shipped_knowledge().next_test_sentences.get(test.test, "")
+    if test.conditional:  # kept only on an undecided pack condition: say on what it waits
+        opening = sentence_case(test.conditional_says)
+        sentence = f"{opening}: {sentence}" if sentence else f"{opening}."
     return {"test": test.test, "label": sentence_case(test.label), "sentence": sentence}
 
 

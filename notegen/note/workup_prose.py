@@ -263,10 +263,22 @@ def _maintenance(factors: Sequence[FactorEntry]) -> list[str]:
 
 
 def next_test_sentences(assessment: Assessment) -> list[str]:
-    from notegen.note.acidosis_paragraph import acidosis_test_labels
+    from notegen.note.acidosis_paragraph import acidosis_conditional_tests, acidosis_test_labels
 
-    labels = [inline(test.label) for test in assessment.next_tests] + acidosis_test_labels(assessment)
+    labels = [inline(test.label) for test in assessment.next_tests if not test.conditional]
+    labels += acidosis_test_labels(assessment)
+    later: list[tuple[str, list[str]]] = []  # tests kept on an undecided pack condition, grouped by its clause
+    for says, names in [
+        *((test.conditional_says, [inline(test.label)]) for test in assessment.next_tests if test.conditional),
+        *acidosis_conditional_tests(assessment),
+    ]:
+        found = next((group for said, group in later if said == says), None)
+        if found is None:
+            later.append((says, list(names)))
+        else:
+            found.extend(names)
     if not labels:
-        return []
-    noun = "test" if len(labels) == 1 else "tests"
-    return [f"Next {noun} to consider: {word_list(labels)}."]
+        return [f"Tests to consider {says}: {word_list(names)}." for says, names in later]
+    noun = "test" if len(labels) + sum(len(names) for _, names in later) == 1 else "tests"
+    later_words = [f"{says}, {word_list(names)}" for says, names in later]
+    return [f"Next {noun} to consider: {word_list(labels)}{''.join(f'; then, {t}' for t in later_words)}."]

@@ -23,7 +23,7 @@ from notegen.engine.results import Suggestion
 from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis_facts import acidosis_kind, derive_acidosis_facts
 from notegen.workup.acidosis_model import AcidosisTest, AcidosisWorkup
-from notegen.workup.alkalosis import _evidence, _undecided
+from notegen.workup.alkalosis import _conditional, _evidence, _undecided
 from notegen.workup.model import CauseEntry, TraceEntry
 
 KIND_TREE = "gap_pattern"  # the tree whose leaf names the causes in view
@@ -39,6 +39,7 @@ def _test(pack: RulePack, suggestion: Suggestion) -> AcidosisTest:
         purpose=purposes.get(suggestion.test, ""),
         settles=tuple(d.label for d in suggestion.decides if d.kind == "tree"),
         bears_on=tuple(d.label for d in suggestion.decides if d.kind == "cause"),
+        **_conditional(pack, suggestion),
     )
 
 

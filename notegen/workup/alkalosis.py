@@ -16,12 +16,13 @@ from typing import Any, Literal
 
 from pydantic import BaseModel, ConfigDict
 
+from notegen._format import join_words
 from notegen.acidbase.calculations import Calculation
 from notegen.acidbase.model import AcidBaseReading
 from notegen.case.model import Case
 from notegen.engine import Fact, FactInput, RulePack, walk
 from notegen.engine.facts import as_fact, plain_value
-from notegen.engine.results import EvidenceResult, OpenEvidence
+from notegen.engine.results import EvidenceResult, OpenEvidence, Suggestion
 from notegen.knowledge import shipped_knowledge
 from notegen.knowledge.settings import AcidBaseSettings
 from notegen.workup.facts import derive_facts
@@ -91,6 +92,23 @@ def _undecided(pack: RulePack, item: OpenEvidence) -> str:
     return f"{side} ({item.strength}): {item.condition}{lacking}"
 
 
+def _conditional(pack: RulePack, suggestion: Suggestion) -> dict[str, Any]:
+    """The conditional state of a suggested test: pending which facts, and the clause the note shows."""
+    if not suggestion.conditional:
+        return {}
+    pairs = zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
+    clauses = [clause for _, clause in pairs if clause]
+    unworded = [
+        pack.facts[name].display_label if name in pack.facts else name
+        for name, clause in zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
+        if not clause
+    ]
+    parts = [f"if {join_words(clauses, 'or')}"] if clauses else []
+    parts += [f"depending on {join_words(unworded)}"] if unworded else []
+    says = ", or ".join(parts)
+    return {"conditional": True, "conditional_on": suggestion.conditional_on, "conditional_says": says}
+
+
 def evaluate_alkalosis(
     case: Case,
     reading: AcidBaseReading,
@@ -143,7 +161,9 @@ def evaluate_alkalosis(
         )
         for c in result.causes
     )
-    tests = tuple(SuggestedTest(test=s.test, label=s.label, why=s.why) for s in result.suggestions)
+    tests = tuple(
+        SuggestedTest(test=s.test, label=s.label, why=s.why, **_conditional(pack, s)) for s in result.suggestions
+    )
     trace = tuple(TraceEntry(**step.as_dict()) for step in result.trace()) if explain else ()
     return RuleResult(
         applies=True,

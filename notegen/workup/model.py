@@ -63,6 +63,11 @@ class SuggestedTest(FrozenModel):
     test: str
     label: str
     why: str
+    # Kept only because the pack's `suggest_when` could not be decided: due if the missing facts
+    # `conditional_on` (fact ids) turn out to call for it; `conditional_says` is the clause the note shows.
+    conditional: bool = False
+    conditional_on: tuple[str, ...] = ()
+    conditional_says: str = ""
 
 
 class TraceEntry(FrozenModel):

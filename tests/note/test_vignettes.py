@@ -123,10 +123,17 @@ READINGS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
         ("Toxic alcohol levels", "poison control"),
     ),
     # Sepsis with a respiratory alkalosis and a gap of 18, no ingestion reported, no lactate yet: send a salicylate
-    # level and a lactate; no call to poison control on the pattern alone (common practice).
+    # level (the pattern points to it), a lactate and ketones; the osmolal gap and toxic alcohol levels only if
+    # lactate and ketones leave the gap unexplained; no call to poison control on the pattern alone (common
+    # practice: lactate and ketones first; Kraut & Madias, Nat Rev Nephrol 2010;6:274).
     "sepsis_respiratory_alkalosis": (
-        ("**Salicylate level:**", "**Lactate:**"),
-        ("poison control", "is an emergency"),
+        (
+            "**Salicylate level:** Would bear on salicylate poisoning.",
+            "**Lactate:**",
+            "**Measured serum osmolality, for the osmolal gap:** If lactate and ketones leave the gap unexplained,",
+            "**Toxic alcohol levels (methanol, ethylene glycol):** If the osmolal gap is high or lactate and ketones",
+        ),
+        ("poison control", "is an emergency", "osmolal gap:** Would bear", "ethylene glycol):** Would bear"),
     ),
 }
 
