@@ -335,6 +335,12 @@ EXAMPLES = [
     # Volume recorded as normal (invented: ventilated after a CO2-retaining exacerbation): "need not delay
     # repletion of a low volume" would be struck; the suggested urine chloride says whether chloride is short.
     kept_out("chloride_class_unknown", lambda: assess(case(context={"volume": "normal"}), chloride_class="unknown"), 1),
+    # On dialysis (invented end-stage kidney disease) no urine chloride is awaited (common practice).
+    kept_out(
+        "chloride_class_unknown",
+        lambda: assess(case(context={"findings": ["hemodialysis"]}), chloride_class="unknown"),
+        3,
+    ),
     printed(
         "gastric_loss",
         lambda: assess(case(context={"findings": ["vomiting"]}), differential=(cause("gastric_loss"),)),

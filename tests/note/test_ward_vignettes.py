@@ -42,8 +42,12 @@ ACETAZOLAMIDE: dict[str, Any] = {
 READINGS: dict[str, tuple[dict[str, Any], tuple[str, ...], tuple[str, ...]]] = {
     "dialysis": (
         DIALYSIS,
-        ("On dialysis that includes the dialysate bicarbonate", "Mineralocorticoid excess is unlikely (dialysis"),
-        ("Spot urine chloride", "Plasma renin", "not recognised"),
+        (
+            "On dialysis that includes the dialysate bicarbonate",
+            "Mineralocorticoid excess is unlikely (dialysis",
+            "On dialysis the urine chloride does not show whether the alkalosis is chloride-responsive",
+        ),
+        ("Spot urine chloride", "Plasma renin", "not recognised", "Without a urine chloride", "bedside volume"),
     ),
     "saline": (SALINE, ("as a balanced crystalloid rather than isotonic saline",), ()),
     "acetazolamide": (ACETAZOLAMIDE, ("whether to continue acetazolamide is worth weighing",), ()),
