@@ -31,6 +31,7 @@ ACIDOSIS_FINDINGS = (
     "seizure",
     "short_bowel",
     "kidney_disease",
+    "dialysis",
     "diarrhea",
     "ostomy",
     "fistula",

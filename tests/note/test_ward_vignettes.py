@@ -75,3 +75,17 @@ def test_the_fluid_and_acetazolamide_sentences_stay_out_where_they_do_not_fit() 
     assert "balanced crystalloid rather than isotonic saline" not in DRAFTER.draft(validate_case(diarrhea))
     no_drug = {**ACETAZOLAMIDE, "context": {**ACETAZOLAMIDE["context"], "meds": ["furosemide"]}}
     assert "acetazolamide" not in DRAFTER.draft(validate_case(no_drug)).lower()
+
+
+def test_on_dialysis_a_normal_gap_acidosis_asks_for_no_urine_tests() -> None:
+    # Invented: a dialysis patient between sessions, normal-gap acidosis: the urine no longer reads acid excretion.
+    data = {
+        "units": "conventional",
+        "patient": {"age": 66, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.30, "pco2": 30, "hco3": 14},
+        "chem": {"na": 138, "k": 5.2, "cl": 112, "tco2": 15, "creatinine": 6.5, "albumin": 4.0},
+        "context": {"findings": ["hemodialysis"]},
+    }
+    assert "Urine pH" not in DRAFTER.draft(validate_case(data))
+    without = {**data, "context": {"findings": []}}
+    assert "Urine pH" in DRAFTER.draft(validate_case(without))
