@@ -664,7 +664,18 @@ EXAMPLES = [
     printed(
         "chloride_losing_diarrhea",
         lambda: assess(BASE, differential=(cause("chloride_losing_diarrhea", "possible"),)),
-        "laxative",
+        "Laxative use is worth asking about.",
+        lacks=("stopping them",),
+    ),
+    # Laxative misuse admitted (invented): asking about laxatives would be struck; stopping them is the point.
+    printed(
+        "chloride_losing_diarrhea",
+        lambda: assess(
+            case(context={"findings": ["laxative abuse"], "meds": ["senna"]}),
+            differential=(cause("chloride_losing_diarrhea"),),
+        ),
+        "Where laxatives are the cause, stopping them",
+        lacks=("worth asking about",),
     ),
     kept_out("chloride_losing_diarrhea", lambda: assess(BASE)),
     printed(

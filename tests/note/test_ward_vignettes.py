@@ -89,3 +89,28 @@ def test_on_dialysis_a_normal_gap_acidosis_asks_for_no_urine_tests() -> None:
     assert "Urine pH" not in DRAFTER.draft(validate_case(data))
     without = {**data, "context": {"findings": []}}
     assert "Urine pH" in DRAFTER.draft(validate_case(without))
+
+
+def test_citrate_units_and_admitted_laxatives_read_as_a_clinician_writes() -> None:
+    # Invented: 14 units of blood products after trauma; and a young woman admitting daily senna and bisacodyl.
+    transfused = {
+        "units": "conventional",
+        "patient": {"age": 35, "sex": "male"},
+        "gas": {"sample": "arterial", "ph": 7.51, "pco2": 44, "hco3": 34},
+        "chem": {"na": 140, "k": 3.3, "cl": 100, "tco2": 35, "creatinine": 1.0, "albumin": 3.0},
+        "context": {"findings": ["massive transfusion"], "blood_product_units": 14},
+    }
+    note = DRAFTER.draft(validate_case(transfused))
+    assert "14 units of citrated blood products" in note and "units units" not in note
+    laxatives = {
+        "units": "conventional",
+        "patient": {"age": 23, "sex": "female"},
+        "gas": {"sample": "venous", "ph": 7.45, "pco2": 50, "hco3": 33},
+        "chem": {"na": 136, "k": 2.6, "cl": 92, "tco2": 33, "creatinine": 0.7, "albumin": 4.1, "mg": 1.6},
+        "urine": {"na": 8, "k": 18, "cl": 9},
+        "context": {"volume": "low", "meds": ["senna", "bisacodyl"], "findings": ["laxative abuse"]},
+    }
+    note = DRAFTER.draft(validate_case(laxatives))
+    # Galla, JASN 2000 (from memory): laxatives with a low urine chloride, as stool carries chloride away.
+    assert "The likely cause is chloride-losing diarrhea or laxative misuse" in note
+    assert "stopping them" in note and "Laxative use is worth asking about" not in note
