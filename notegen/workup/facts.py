@@ -222,6 +222,8 @@ def derive_facts(
         if calculation is not None and calculation.unit != unit:
             raise NotegenError(f"calculation `{name}` is in {calculation.unit}; the pack expects {unit}")
         facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
+    # a rising creatinine (the reading's alert, KDIGO's definition): the eGFR overstates kidney function
+    facts["creatinine_unsteady"] = BooleanFact(any(a.code == "unsteady_creatinine" for a in reading.alerts))
     if urine.calcium is not None and urine.creatinine is not None and urine.creatinine > 0:
         ratio = urine_calcium_creatinine_ratio(urine.calcium, urine.creatinine)
         facts["urine_calcium_creatinine"] = NumberFact(ratio, "mmol/mmol")

@@ -114,3 +114,23 @@ def test_citrate_units_and_admitted_laxatives_read_as_a_clinician_writes() -> No
     # Galla, JASN 2000 (from memory): laxatives with a low urine chloride, as stool carries chloride away.
     assert "The likely cause is chloride-losing diarrhea or laxative misuse" in note
     assert "stopping them" in note and "Laxative use is worth asking about" not in note
+
+
+def test_a_rising_creatinine_keeps_the_egfr_from_clearing_reduced_gfr() -> None:
+    # Invented: vomiting, creatinine 0.9 mg/dL (eGFR about 80 by CKD-EPI 2021) with acute kidney injury reported:
+    # "eGFR 80 is enough to excrete excess bicarbonate" would be struck while the creatinine rises (KDIGO 2012).
+    data = {
+        "units": "conventional",
+        "patient": {"age": 58, "sex": "female"},
+        "gas": {"sample": "arterial", "ph": 7.52, "pco2": 47, "hco3": 37},
+        "chem": {"na": 137, "k": 3.0, "cl": 88, "tco2": 37, "creatinine": 0.9, "albumin": 4.0},
+        "context": {"volume": "low", "findings": ["vomiting"]},
+    }
+    def against(case_data: dict[str, Any]) -> set[str]:
+        assessment = DRAFTER.assess(validate_case(case_data))
+        return {e.id for c in assessment.differential if c.cause == "reduced_gfr" for e in c.opposing}
+
+    assert "egfr_adequate" in against(data)
+    rising = {**data, "context": {"volume": "low", "findings": ["vomiting", "acute kidney injury"]}}
+    assert "egfr_adequate" not in against(rising)
+    assert "Acute kidney injury is reported" in DRAFTER.draft(validate_case(rising))
