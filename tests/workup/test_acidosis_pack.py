@@ -371,3 +371,12 @@ def test_nsaids_and_trimethoprim_count_as_drugs_that_raise_potassium(drug: str) 
     # (Kraut & Madias, Nat Rev Nephrol 2010; from memory).
     result = workup(case_with(NORMAL_GAP, chem={"k": 6.0}, context={"meds": [drug]}))
     assert "potassium_raising_drug" in {e.id for e in cause_of(result, "hyperkalemic_rta").supporting}
+
+
+def test_a_rising_creatinine_keeps_a_preserved_egfr_from_arguing_against_kidney_disease() -> None:
+    # Creatinine 1.0 mg/dL gives an eGFR near 90 (CKD-EPI 2021); with acute kidney injury reported the
+    # creatinine is not steady and overstates kidney function (KDIGO 2012; from memory).
+    steady = workup(HIGH_GAP)
+    rising = workup(case_with(HIGH_GAP, context={"findings": ["acute kidney injury"]}))
+    assert "egfr_preserved" in against_ids(steady, "kidney_failure")
+    assert "egfr_preserved" not in against_ids(rising, "kidney_failure")
