@@ -80,13 +80,10 @@ def _potassium_alerts(k: float | None, s: AcidBaseSettings, *, magnesium_measure
             f"{join_words(('an ECG', 'cardiac monitoring', 'prompt repletion', *magnesium))}.",
         )  # fmt: skip
     if k < s.potassium_low_warning.value:
-        return _alert(
-            "hypokalemia", "warning",
-            f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:",
-            # magnesium is named once, by the considerations or the suggested tests, not here as well
-            "hypokalemia; consider repletion.",
-            finding=f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}: hypokalemia.",
-        )  # fmt: skip
+        below = f"Potassium {shown} is below {format_value(s.potassium_low_warning.value, 'mmol/L')}:"
+        # magnesium is named once, by the considerations or the suggested tests, not here as well
+        return _alert("hypokalemia", "warning", below, "hypokalemia; consider repletion.",
+                      finding=f"{below} hypokalemia.")  # fmt: skip
     if k >= s.potassium_high_critical.value:
         return _alert(
             "severe_hyperkalemia", "critical",
@@ -129,20 +126,14 @@ def _magnesium_alerts(mg: float | None, s: AcidBaseSettings) -> list[Alert]:
     assert mg is not None
     shown = format_value_beside(mg, (s.magnesium_low_warning.value, s.magnesium_low.value), "mg/dL")
     if mg < s.magnesium_low_warning.value:
-        return _alert(
-            "hypomagnesemia", "warning",
-            f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}:",
-            "severe hypomagnesemia; potassium is hard to replete until magnesium is restored.",
-            finding=f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}: "
-            "severe hypomagnesemia.",
-        )  # fmt: skip
+        below = f"Magnesium {shown} is below {format_value(s.magnesium_low_warning.value, 'mg/dL')}"
+        return _alert("hypomagnesemia", "warning", f"{below}:",
+                      "severe hypomagnesemia; potassium is hard to replete until magnesium is restored.",
+                      finding=f"{below}: severe hypomagnesemia.")  # fmt: skip
     if mg < s.magnesium_low.value:
-        return _alert(
-            "hypomagnesemia", "info",
-            f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')};",
-            "low magnesium hinders potassium repletion.",
-            finding=f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')}: hypomagnesemia.",
-        )  # fmt: skip
+        below = f"Magnesium {shown} is below {format_value(s.magnesium_low.value, 'mg/dL')}"
+        return _alert("hypomagnesemia", "info", f"{below};", "low magnesium hinders potassium repletion.",
+                      finding=f"{below}: hypomagnesemia.")  # fmt: skip
     return []
 
 

@@ -23,7 +23,6 @@ from notegen.acidbase.model import (
     Disorder,
     DisorderBasis,
     ExpectedRange,
-    GapBelowRange,
     GapBicarbonate,
     PhStatus,
     Primary,
@@ -370,7 +369,7 @@ def read_acid_base(
         anion_gap_status=gap.status,
         anion_gap_reference=(s.anion_gap_low.value, s.anion_gap_high.value),
         anion_gap_within_alkalemia_rise=gap.within_alkalemia_rise,
-        anion_gap_below_range=_below_range(gap.corrected if gap.corrected is not None else gap.value, s),
+        anion_gap_below_range=gap.below_range,
         anion_gap_bicarbonate=_gap_label(gap.bicarbonate),
         delta_gap=_r(gap.delta_gap, 2),
         delta_ratio=_r(gap.delta_ratio, 2),
@@ -427,11 +426,3 @@ def _gap_label(label: str | None) -> GapBicarbonate | None:
 
 def _r(value: float | None, digits: int) -> float | None:
     return None if value is None else round_half_up(value, digits)
-
-
-def _below_range(gap: float | None, s: AcidBaseSettings) -> GapBelowRange | None:
-    """How far a gap below the reference range lies below it: within the gap's measurement variation or beyond."""
-    if gap is None or gap >= s.anion_gap_low.value:
-        return None
-    return "beyond_variation" if gap < s.anion_gap_low.value - s.anion_gap_low_margin.value else "within_variation"
-

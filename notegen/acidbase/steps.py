@@ -34,6 +34,7 @@ from notegen.acidbase.model import (
     Disorder,
     DisorderBasis,
     ExpectedRange,
+    GapBelowRange,
     GapStatus,
     PhStatus,
     PrimaryBasis,
@@ -316,6 +317,7 @@ class GapResult:
     allows_compensation: bool = False
     normal_gap_acidosis: bool = False
     within_alkalemia_rise: bool = False
+    below_range: GapBelowRange | None = None  # below the reference range: within the gap's variation or beyond
 
 
 # long: the gap, its albumin correction, the delta ratio and its interpretation read as one sequence
@@ -355,15 +357,14 @@ def read_anion_gap(case: Case, ph_status: PhStatus | None, w: ReadingDraft) -> G
     text += f"; reference {span(low, high, 'mmol/L')}: {out.status}."
     if used < low - EPS:
         text = text[:-1] + " (below range: consider a low albumin or a laboratory error)."
+        out.below_range = "beyond_variation" if used < low - s.anion_gap_low_margin.value - EPS else "within_variation"
     w.findings.append(text)
     if out.status != "high":
         return out
     rise = s.alkalemia_gap_rise.value
     # a measured lactate or ketone above normal keeps the acidosis established, whatever the pH
-    measured_acid = any(
-        value is not None and usable(value) and value >= limit - EPS
-        for value, limit in ((chem.lactate, s.lactate_normal_below.value), (chem.bhb, s.bhb_normal_below.value))
-    )
+    limits = ((chem.lactate, s.lactate_normal_below.value), (chem.bhb, s.bhb_normal_below.value))
+    measured_acid = any(value is not None and usable(value) and value >= limit - EPS for value, limit in limits)
     if ph_status == "alkalemia" and used <= high + rise + EPS and not measured_acid:
         # Madias, Ayus & Adrogue, NEJM 1979 (from memory): alkalemia itself raises the gap a few mmol/L.
         out.within_alkalemia_rise = True

@@ -78,6 +78,7 @@ class Considerations:
     catalogue: Mapping[str, FactSpec]
     acidosis_causes: tuple[str, ...] = ()  # the acidosis pack's cause ids: `cause_<id>` facts
     setting_text: Mapping[str, str] = field(default_factory=dict)  # "{k_before_insulin_from}" -> "3.3 mmol/L"
+    acidosis_evidence: tuple[str, ...] = ()  # the catalogue's `evidence_<cause>_<item>` facts
 
     @property
     def specs(self) -> tuple[ConsiderationSpec, ...]:
@@ -103,7 +104,10 @@ def _assemble(checked: Checked, pack: RulePack) -> Considerations:
     compiled = _compile(checked.merged, pack)
     settings = setting_specs(pack, checked.merged.settings)
     text = {s.id: format_value(s.value, s.unit) for s in settings}
-    return Considerations(compiled, pack, checked.groups, checked.catalogue, checked.acidosis_causes, text)
+    evidence = tuple(name for name in checked.catalogue if name.startswith(EVIDENCE_PREFIX))
+    return Considerations(
+        compiled, pack, checked.groups, checked.catalogue, checked.acidosis_causes, text, evidence
+    )
 
 
 def _pack(service_folders: tuple[Path, ...]) -> RulePack:
@@ -202,8 +206,9 @@ class Verdict:
 
 
 def _env(assessment: Assessment, loaded: Considerations) -> tuple[dict[str, Fact], Env]:
-    evidence = tuple(name for name in loaded.catalogue if name.startswith(EVIDENCE_PREFIX))
-    facts = consideration_facts(assessment, loaded.pack, loaded.groups, loaded.acidosis_causes, evidence)
+    facts = consideration_facts(
+        assessment, loaded.pack, loaded.groups, loaded.acidosis_causes, loaded.acidosis_evidence
+    )
     # Yes/no and word facts are most of them; their value is read directly (fact_value for the rest).
     env: Env = {
         name: fact.value if isinstance(fact, BooleanFact | TextFact) else fact_value(fact)

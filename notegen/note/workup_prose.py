@@ -267,18 +267,14 @@ def next_test_sentences(assessment: Assessment) -> list[str]:
 
     labels = [inline(test.label) for test in assessment.next_tests if not test.conditional]
     labels += acidosis_test_labels(assessment)
-    later: list[tuple[str, list[str]]] = []  # tests kept on an undecided pack condition, grouped by its clause
-    for says, names in [
-        *((test.conditional_says, [inline(test.label)]) for test in assessment.next_tests if test.conditional),
-        *acidosis_conditional_tests(assessment),
-    ]:
-        found = next((group for said, group in later if said == says), None)
-        if found is None:
-            later.append((says, list(names)))
-        else:
-            found.extend(names)
+    later: dict[str, list[str]] = {}  # tests kept on an undecided pack condition, grouped by its clause
+    for test in assessment.next_tests:
+        if test.conditional:
+            later.setdefault(test.conditional_says, []).append(inline(test.label))
+    for says, names in acidosis_conditional_tests(assessment):
+        later.setdefault(says, []).extend(names)
     if not labels:
-        return [f"Tests to consider {says}: {word_list(names)}." for says, names in later]
-    noun = "test" if len(labels) + sum(len(names) for _, names in later) == 1 else "tests"
-    later_words = [f"{says}, {word_list(names)}" for says, names in later]
+        return [f"Tests to consider {says}: {word_list(names)}." for says, names in later.items()]
+    noun = "test" if len(labels) + sum(len(names) for names in later.values()) == 1 else "tests"
+    later_words = [f"{says}, {word_list(names)}" for says, names in later.items()]
     return [f"Next {noun} to consider: {word_list(labels)}{''.join(f'; then, {t}' for t in later_words)}."]

@@ -18,7 +18,7 @@ from notegen.engine import BooleanFact, Fact, MissingFact, NumberFact, RulePack,
 from notegen.errors import NotegenError
 from notegen.knowledge import shipped_knowledge
 from notegen.workup.acidosis_model import AcidosisWorkupKind
-from notegen.workup.facts import class_facts
+from notegen.workup.facts import class_facts, creatinine_unsteady
 
 ACIDOSIS_FINDINGS = (
     "diabetes",
@@ -192,8 +192,7 @@ def derive_acidosis_facts(
         facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
     for finding in ACIDOSIS_FINDINGS:
         facts[finding] = BooleanFact(finding in case.context.findings)
-    # a rising creatinine (the reading's alert, KDIGO's definition): the eGFR overstates kidney function
-    facts["creatinine_unsteady"] = BooleanFact(any(a.code == "unsteady_creatinine" for a in reading.alerts))
+    facts["creatinine_unsteady"] = creatinine_unsteady(reading)
     losses = [shipped_knowledge().finding_label(f) for f in GUT_LOSSES if f in case.context.findings]
     facts["gut_losses"] = TextFact(join_words(losses)) if losses else MissingFact("none reported")
     facts.update(acidosis_medication_facts(case))

@@ -96,13 +96,13 @@ def _conditional(pack: RulePack, suggestion: Suggestion) -> dict[str, Any]:
     """The conditional state of a suggested test: pending which facts, and the clause the note shows."""
     if not suggestion.conditional:
         return {}
-    pairs = zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
-    clauses = [clause for _, clause in pairs if clause]
-    unworded = [
-        pack.facts[name].display_label if name in pack.facts else name
-        for name, clause in zip(suggestion.conditional_on, suggestion.conditional_says, strict=True)
-        if not clause
-    ]
+    clauses: list[str] = []
+    unworded: list[str] = []  # facts the pack gives no clause for, named by their label
+    for name, clause in zip(suggestion.conditional_on, suggestion.conditional_says, strict=True):
+        if clause:
+            clauses.append(clause)
+        else:
+            unworded.append(pack.facts[name].display_label if name in pack.facts else name)
     parts = [f"if {join_words(clauses, 'or')}"] if clauses else []
     parts += [f"depending on {join_words(unworded)}"] if unworded else []
     says = ", or ".join(parts)

@@ -174,6 +174,11 @@ def urine_chloride_range(case: Case) -> dict[str, Fact]:
     return {"urine_cl_lowest": NumberFact(min(values), "mmol/L"), "urine_cl_highest": NumberFact(max(values), "mmol/L")}
 
 
+def creatinine_unsteady(reading: AcidBaseReading) -> BooleanFact:
+    """Whether the reading flagged a rising creatinine (KDIGO's definition): the eGFR then overstates function."""
+    return BooleanFact(any(alert.code == "unsteady_creatinine" for alert in reading.alerts))
+
+
 def derive_facts(
     case: Case,
     reading: AcidBaseReading,
@@ -222,8 +227,7 @@ def derive_facts(
         if calculation is not None and calculation.unit != unit:
             raise NotegenError(f"calculation `{name}` is in {calculation.unit}; the pack expects {unit}")
         facts[name] = NumberFact(calculation.value, unit) if calculation is not None else MissingFact()
-    # a rising creatinine (the reading's alert, KDIGO's definition): the eGFR overstates kidney function
-    facts["creatinine_unsteady"] = BooleanFact(any(a.code == "unsteady_creatinine" for a in reading.alerts))
+    facts["creatinine_unsteady"] = creatinine_unsteady(reading)
     if urine.calcium is not None and urine.creatinine is not None and urine.creatinine > 0:
         ratio = urine_calcium_creatinine_ratio(urine.calcium, urine.creatinine)
         facts["urine_calcium_creatinine"] = NumberFact(ratio, "mmol/mmol")
